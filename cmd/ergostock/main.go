@@ -1,0 +1,88 @@
+// Command ergostock evaluates and tunes replenishment policies from the
+// stationary distribution of the Markov chain of stock levels.
+//
+// Exit status: 0 on success; 1 when the input cannot be used or a solve
+// fails; 2 for a command-line usage error; 3 when a batch finished but some
+// items failed.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+
+	"github.com/urfave/cli/v2"
+)
+
+// version is set at build time with -ldflags "-X main.version=...".
+var version = "0.1.0-dev"
+
+// exitError carries an exit status other than 1.
+type exitError struct {
+	code int
+	err  error
+}
+
+func (e *exitError) Error() string { return e.err.Error() }
+func (e *exitError) Unwrap() error { return e.err }
+
+// usageErr marks an error in the command line itself (exit status 2).
+func usageErr(format string, a ...any) error {
+	return &exitError{code: 2, err: fmt.Errorf(format, a...)}
+}
+
+func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
+	app := &cli.App{
+		Name:            "ergostock",
+		Usage:           "exact service and cost of replenishment policies from Markov chains of stock levels",
+		Version:         version,
+		Reader:          stdin,
+		Writer:          stdout,
+		ErrWriter:       stderr,
+		HideHelpCommand: true,
+		Commands: []*cli.Command{
+			chainCommand(),
+			evaluateCommand(),
+			optimizeCommand(),
+			simulateCommand(),
+			fitCommand(),
+			batchCommand(),
+			reportCommand(),
+		},
+		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
+			return usageErr("%v (see --help)", err)
+		},
+		ExitErrHandler: func(*cli.Context, error) {}, // main reports errors itself
+	}
+	return app
+}
+
+// run executes the command line and returns the exit status.
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	err := newApp(stdin, stdout, stderr).Run(args)
+	if err == nil {
+		return 0
+	}
+	fmt.Fprintf(stderr, "ergostock: %v\n", oneLine(err.Error()))
+	var ee *exitError
+	if errors.As(err, &ee) {
+		return ee.code
+	}
+	return 1
+}
+
+// oneLine folds a message onto a single line.
+func oneLine(s string) string {
+	b := []byte(s)
+	for i, c := range b {
+		if c == '\n' || c == '\r' {
+			b[i] = ' '
+		}
+	}
+	return string(b)
+}
+
+func main() {
+	os.Exit(run(os.Args, os.Stdin, os.Stdout, os.Stderr))
+}
