@@ -2,6 +2,8 @@ package chain
 
 // Matrix is a square row-stochastic matrix in some storage.
 // Row calls fn for every stored entry (j, p) of row i, in increasing j.
+// Stored entries may include explicit zeros; structural code treats only
+// p > 0 as a transition.
 type Matrix interface {
 	Len() int
 	Row(i int, fn func(j int, p float64))
@@ -26,11 +28,35 @@ const (
 	MethodUniform Method = "uniform"
 )
 
+// Methods lists every method name in a stable order.
+var Methods = []Method{MethodAuto, MethodPower, MethodEigen, MethodDirect,
+	MethodGTH, MethodGaussSeidel, MethodForward, MethodUniform}
+
+// ParseMethod returns the Method named s, or an error naming the choices.
+func ParseMethod(s string) (Method, error) {
+	for _, m := range Methods {
+		if string(m) == s {
+			return m, nil
+		}
+	}
+	return "", &MethodError{Name: s}
+}
+
+// Defaults applied by Solve to the zero fields of Options.
+const (
+	DefaultTol     = 1e-13
+	DefaultMaxIter = 100000
+)
+
 // Options tune a solve. The zero value means auto, tolerance 1e-13 and a
 // default iteration cap.
 type Options struct {
-	Method  Method
-	Tol     float64
+	Method Method
+	// Tol is the target of the residual ||pi P - pi||_1 for the iterative
+	// methods (power, gauss-seidel). Zero means DefaultTol.
+	Tol float64
+	// MaxIter caps the iterations of the iterative methods. Zero means
+	// DefaultMaxIter.
 	MaxIter int
 }
 
@@ -44,6 +70,14 @@ type Diagnostics struct {
 	BalanceState int `json:"balance_state"`
 	States       int `json:"states"`
 	NonZeros     int `json:"nonzeros"`
+
+	// Transient is the number of transient states (given probability 0).
+	Transient int `json:"transient"`
+	// Period is the period of the closed class (1: aperiodic).
+	Period int `json:"period"`
+	// Lazy reports that the power method iterated the lazy chain (I+P)/2
+	// because the chain is periodic.
+	Lazy bool `json:"lazy,omitempty"`
 }
 
 // Result is a stationary distribution with its diagnostics.

@@ -1,0 +1,345 @@
+package chain
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+
+	"gonum.org/v1/gonum/floats"
+	"gonum.org/v1/gonum/mat"
+)
+
+// Forward returns the stationary distribution of an irreducible chain in
+// which every transition into a state j >= 1 comes from a state i <= j,
+// that is P(i,j) = 0 for i > j >= 1. Global balance at j then reads
+//
+//	pi_j * sum_{k!=j} P(j,k) = sum_{i<j} pi_i P(i,j),
+//
+// so with pi_0 = 1 each pi_j follows from the earlier ones by one division,
+// after which pi is normalised. Every operation is an addition,
+// multiplication or division of non-negative numbers (1 - P(j,j) is
+// computed as the sum of the other entries of row j), so the result is
+// accurate to a few ulps componentwise, in O(n + nnz) (the subtraction-free
+// argument of Grassmann, Taksar & Heyman, Operations Research 33(5), 1985).
+func Forward(m Matrix) ([]float64, error) {
+	return forward(unwrap(m), func(i int) string { return fmt.Sprint(i) })
+}
+
+func forward(m Matrix, name func(int) string) ([]float64, error) {
+	n := m.Len()
+	acc := make([]float64, n)
+	pi := make([]float64, n)
+	var bad error
+	for i := 0; i < n && bad == nil; i++ {
+		var off float64
+		m.Row(i, func(j int, p float64) {
+			if j != i {
+				off += p
+			}
+			if p != 0 && j >= 1 && j < i && bad == nil {
+				bad = &MethodMismatchError{Method: MethodForward, Reason: fmt.Sprintf("transition from state %s back to state %s", name(i), name(j))}
+			}
+		})
+		if i == 0 {
+			pi[0] = 1
+		} else {
+			if off == 0 {
+				return nil, &MethodMismatchError{Method: MethodForward, Reason: fmt.Sprintf("state %s is absorbing (chain not irreducible)", name(i))}
+			}
+			pi[i] = acc[i] / off
+		}
+		pii := pi[i]
+		m.Row(i, func(j int, p float64) {
+			if j > i {
+				acc[j] += pii * p
+			}
+		})
+	}
+	if bad != nil {
+		return nil, bad
+	}
+	normalise(pi)
+	return pi, nil
+}
+
+func normalise(x []float64) {
+	s := sum(x)
+	for i := range x {
+		x[i] /= s
+	}
+}
+
+// GTH returns the stationary distribution of the irreducible n-state chain
+// whose row-major transition matrix is a (overwritten), by the algorithm of
+// Grassmann, Taksar & Heyman, "Regenerative analysis and steady state
+// distributions for Markov chains", Operations Research 33(5), 1985. States
+// are censored out from the last: for k = n-1, ..., 1, with
+// s_k = sum_{j<k} a(k,j),
+//
+//	a(i,j) += a(i,k) a(k,j) / s_k   for i, j < k,
+//
+// then pi_0 = 1 and pi_j = sum_{i<j} pi_i a(i,j) / s_j. No subtraction
+// occurs (s_k replaces 1 - a(k,k)), so the result has small componentwise
+// relative error even for nearly decomposable chains (O'Cinneide, Numer.
+// Math. 65, 1993). Work n^3/3 multiply-adds.
+func GTH(a []float64, n int) []float64 {
+	for k := n - 1; k >= 1; k-- {
+		rk := a[k*n : k*n+k]
+		s := sum(rk)
+		if s == 0 {
+			s = math.SmallestNonzeroFloat64 // reducible input; avoid 0/0
+		}
+		for i := 0; i < k; i++ {
+			ri := a[i*n : i*n+k]
+			f := a[i*n+k] / s
+			a[i*n+k] = f
+			if f == 0 {
+				continue
+			}
+			floats.AddScaled(ri, f, rk) // ri += f*rk, gonum's assembly axpy
+		}
+	}
+	pi := make([]float64, n)
+	pi[0] = 1
+	for j := 1; j < n; j++ {
+		var s float64
+		for i := 0; i < j; i++ {
+			s += pi[i] * a[i*n+j]
+		}
+		pi[j] = s
+	}
+	normalise(pi)
+	return pi
+}
+
+// direct solves pi (P - I) = 0 with the last equation replaced by
+// sum pi = 1, by dense LU with partial pivoting (gonum mat; Stewart 1994,
+// sec. 2.3). Round-off can leave tiny negative components; they are kept
+// as computed and show up in the diagnostics.
+func direct(m Matrix) ([]float64, error) {
+	n := m.Len()
+	p := toDense(m)
+	// A = (P - I)^T, row n-1 replaced by ones.
+	a := mat.NewDense(n, n, nil)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			v := p[j*n+i]
+			if i == j {
+				v--
+			}
+			a.Set(i, j, v)
+		}
+	}
+	for j := 0; j < n; j++ {
+		a.Set(n-1, j, 1)
+	}
+	b := mat.NewVecDense(n, nil)
+	b.SetVec(n-1, 1)
+	var lu mat.LU
+	lu.Factorize(a)
+	var x mat.VecDense
+	if err := lu.SolveVecTo(&x, false, b); err != nil {
+		return nil, fmt.Errorf("direct: %w", err)
+	}
+	pi := make([]float64, n)
+	for i := range pi {
+		pi[i] = x.AtVec(i)
+	}
+	return pi, nil
+}
+
+// eigen returns the left eigenvector of P for the eigenvalue nearest 1
+// (gonum mat.Eigen), real part, normalised to sum 1.
+func eigen(m Matrix) ([]float64, error) {
+	n := m.Len()
+	a := mat.NewDense(n, n, toDense(m))
+	var e mat.Eigen
+	if !e.Factorize(a, mat.EigenLeft) {
+		return nil, fmt.Errorf("eigen: the eigenvalue decomposition failed")
+	}
+	vals := e.Values(nil)
+	best := 0
+	for k, v := range vals {
+		if cmplx.Abs(v-1) < cmplx.Abs(vals[best]-1) {
+			best = k
+		}
+	}
+	var vec mat.CDense
+	e.LeftVectorsTo(&vec)
+	pi := make([]float64, n)
+	for i := range pi {
+		pi[i] = real(vec.At(i, best))
+	}
+	s := sum(pi)
+	if s == 0 || math.IsNaN(s) {
+		return nil, fmt.Errorf("eigen: the eigenvector for eigenvalue 1 sums to %v", s)
+	}
+	for i := range pi {
+		pi[i] /= s
+	}
+	return pi, nil
+}
+
+// power iterates x <- x P from the uniform vector (Stewart 1994, sec. 3.1),
+// normalising each step, until ||x P - x||_1 <= tol. On a periodic chain
+// the iteration does not converge, so the lazy chain (I + P)/2 is iterated
+// instead: it has the same stationary distribution and is aperiodic.
+func power(c *CSR, lazy bool, tol float64, maxIter int) ([]float64, int, error) {
+	n := c.n
+	x := make([]float64, n)
+	y := make([]float64, n)
+	for i := range x {
+		x[i] = 1 / float64(n)
+	}
+	r := math.Inf(1)
+	var stall stagnation
+	for it := 1; it <= maxIter; it++ {
+		mulVec(c, x, y)
+		r = 0
+		for j := range y {
+			r += math.Abs(y[j] - x[j])
+		}
+		if r <= tol {
+			return x, it, nil
+		}
+		if stall.stuck(r) {
+			return nil, it, fmt.Errorf("power: %w: residual stagnated at %.3g after %d iterations, want <= %g (raise the tolerance, or use gth)", ErrNotConverged, stall.best, it, tol)
+		}
+		if lazy {
+			for j := range y {
+				y[j] = 0.5*y[j] + 0.5*x[j]
+			}
+		}
+		normalise(y)
+		x, y = y, x
+	}
+	return nil, maxIter, fmt.Errorf("power: %w after %d iterations: residual %.3g, want <= %g (raise the iteration cap or the tolerance, or use gth)", ErrNotConverged, maxIter, r, tol)
+}
+
+// transpose returns the off-diagonal part of c by columns: for column j,
+// the rows i != j and values P(i,j) at positions ptr[j] <= k < ptr[j+1];
+// and the diagonal P(j,j). Built in O(n + nnz).
+func transpose(c *CSR) (ptr []int, row []int32, val, diag []float64) {
+	n := c.n
+	ptr = make([]int, n+1)
+	diag = make([]float64, n)
+	for i := 0; i < n; i++ {
+		for k := c.rowPtr[i]; k < c.rowPtr[i+1]; k++ {
+			if j := int(c.col[k]); j != i {
+				ptr[j+1]++
+			} else {
+				diag[i] += c.val[k]
+			}
+		}
+	}
+	for j := 0; j < n; j++ {
+		ptr[j+1] += ptr[j]
+	}
+	pos := make([]int, n)
+	copy(pos, ptr[:n])
+	row = make([]int32, ptr[n])
+	val = make([]float64, ptr[n])
+	for i := 0; i < n; i++ {
+		for k := c.rowPtr[i]; k < c.rowPtr[i+1]; k++ {
+			if j := c.col[k]; int(j) != i {
+				row[pos[j]] = int32(i)
+				val[pos[j]] = c.val[k]
+				pos[j]++
+			}
+		}
+	}
+	return ptr, row, val, diag
+}
+
+// gaussSeidel solves pi (I - P) = 0 by forward Gauss-Seidel sweeps
+// (Stewart 1994, sec. 3.2):
+//
+//	pi_j <- sum_{i!=j} pi_i P(i,j) / sum_{k!=j} P(j,k),   j = 0, ..., n-1,
+//
+// using the newest values, on the transpose built once; the vector is
+// normalised after each sweep and the residual ||pi P - pi||_1 checked.
+// On nearly completely decomposable chains convergence can be very slow;
+// the error then reports the residual reached.
+func gaussSeidel(c *CSR, tol float64, maxIter int) ([]float64, int, error) {
+	n := c.n
+	cp, cr, cv, diag := transpose(c)
+	diagOff := make([]float64, n) // sum_{k!=j} P(j,k)
+	for i := 0; i < n; i++ {
+		for k := c.rowPtr[i]; k < c.rowPtr[i+1]; k++ {
+			if int(c.col[k]) != i {
+				diagOff[i] += c.val[k]
+			}
+		}
+	}
+	x := make([]float64, n)
+	for i := range x {
+		x[i] = 1 / float64(n)
+	}
+	prev := make([]float64, n)
+	copy(prev, x)
+	r := math.Inf(1)
+	var stall stagnation
+	for it := 1; it <= maxIter; it++ {
+		for j := 0; j < n; j++ {
+			var s float64
+			for k := cp[j]; k < cp[j+1]; k++ {
+				s += x[cr[k]] * cv[k]
+			}
+			x[j] = s / diagOff[j]
+		}
+		normalise(x)
+		// The true residual costs another pass over the matrix; take it only
+		// once the sweep's own change suggests convergence, or every 8th
+		// sweep.
+		if delta := change(x, prev); delta > 100*tol && it%8 != 0 && it != maxIter {
+			copy(prev, x)
+			continue
+		}
+		copy(prev, x)
+		// Residual: (xP)_j - x_j from the columns.
+		r = 0
+		for j := 0; j < n; j++ {
+			s := diag[j] * x[j]
+			for k := cp[j]; k < cp[j+1]; k++ {
+				s += x[cr[k]] * cv[k]
+			}
+			r += math.Abs(s - x[j])
+		}
+		if r <= tol {
+			return x, it, nil
+		}
+		if stall.stuck(r) {
+			return nil, it, fmt.Errorf("gauss-seidel: %w: residual stagnated at %.3g after %d sweeps, want <= %g (round-off floor: raise the tolerance)", ErrNotConverged, stall.best, it, tol)
+		}
+	}
+	return nil, maxIter, fmt.Errorf("gauss-seidel: %w after %d sweeps: residual %.3g, want <= %g (the chain may be nearly decomposable or slowly mixing: raise the iteration cap or the tolerance, or use gth on up to %d states)", ErrNotConverged, maxIter, r, tol, MaxGTHStates)
+}
+
+// stagnationSweeps is how many iterations without a new best residual end
+// an iterative solve as stagnated (the residual has hit its round-off
+// floor above the tolerance).
+const stagnationSweeps = 200
+
+type stagnation struct {
+	best  float64
+	since int
+	init  bool
+}
+
+func (s *stagnation) stuck(r float64) bool {
+	if !s.init || r < s.best {
+		s.best, s.since, s.init = r, 0, true
+		return false
+	}
+	s.since++
+	return s.since >= stagnationSweeps
+}
+
+// change returns ||x - y||_1.
+func change(x, y []float64) float64 {
+	var d float64
+	for i := range x {
+		d += math.Abs(x[i] - y[i])
+	}
+	return d
+}

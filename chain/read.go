@@ -1,0 +1,392 @@
+package chain
+
+import (
+	"bufio"
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// ReadError reports input that cannot be used, in the manner of
+// encoding/csv's ParseError: the file, the 1-based line and column (field)
+// where it was found (0 when it does not apply), and what was wrong.
+type ReadError struct {
+	File   string
+	Line   int
+	Column int
+	Err    error
+}
+
+func (e *ReadError) Error() string {
+	switch {
+	case e.Line == 0:
+		return fmt.Sprintf("%s: %v", e.File, e.Err)
+	case e.Column == 0:
+		return fmt.Sprintf("%s: line %d: %v", e.File, e.Line, e.Err)
+	}
+	return fmt.Sprintf("%s: line %d, column %d: %v", e.File, e.Line, e.Column, e.Err)
+}
+
+func (e *ReadError) Unwrap() error { return e.Err }
+
+// ErrEmpty is wrapped by the error for an input without any data.
+var ErrEmpty = errors.New("empty input: want a dense matrix (one row a line) or a from,to,probability list")
+
+// MaxLineBytes is the longest input line accepted.
+const MaxLineBytes = 1 << 26
+
+// lineReader yields the non-blank lines of an input split into fields.
+type lineReader struct {
+	sc     *bufio.Scanner
+	line   int
+	fields [][]byte
+	quoted []byte // scratch for unquoted fields
+	file   string
+}
+
+func newLineReader(r io.Reader, file string) *lineReader {
+	sc := bufio.NewScanner(r)
+	sc.Buffer(make([]byte, 0, 64*1024), MaxLineBytes)
+	return &lineReader{sc: sc, file: file}
+}
+
+func (lr *lineReader) errf(line, col int, format string, a ...any) error {
+	return &ReadError{File: lr.file, Line: line, Column: col, Err: fmt.Errorf(format, a...)}
+}
+
+// next advances to the next non-blank line; it returns false at the end of
+// input or on error (then err is set).
+func (lr *lineReader) next() (ok bool, err error) {
+	for lr.sc.Scan() {
+		lr.line++
+		b := lr.sc.Bytes()
+		if lr.line == 1 {
+			b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf"))
+		}
+		if len(bytes.TrimSpace(b)) == 0 {
+			continue
+		}
+		if err := lr.split(b); err != nil {
+			return false, err
+		}
+		return true, nil
+	}
+	if err := lr.sc.Err(); err != nil {
+		if errors.Is(err, bufio.ErrTooLong) {
+			return false, lr.errf(lr.line+1, 0, "line longer than %d bytes", MaxLineBytes)
+		}
+		return false, &ReadError{File: lr.file, Line: lr.line + 1, Err: err}
+	}
+	return false, nil
+}
+
+// split cuts a line at commas into trimmed fields. A field may be quoted
+// with double quotes ("" inside stands for one quote), as in RFC 4180.
+func (lr *lineReader) split(b []byte) error {
+	lr.fields = lr.fields[:0]
+	lr.quoted = lr.quoted[:0]
+	pos := 0
+	for {
+		// Skip leading blanks.
+		for pos < len(b) && (b[pos] == ' ' || b[pos] == '\t') {
+			pos++
+		}
+		col := len(lr.fields) + 1
+		if pos < len(b) && b[pos] == '"' {
+			start := len(lr.quoted)
+			pos++
+			for {
+				if pos >= len(b) {
+					return lr.errf(lr.line, col, "quoted field has no closing quote")
+				}
+				c := b[pos]
+				pos++
+				if c == '"' {
+					if pos < len(b) && b[pos] == '"' {
+						lr.quoted = append(lr.quoted, '"')
+						pos++
+						continue
+					}
+					break
+				}
+				lr.quoted = append(lr.quoted, c)
+			}
+			for pos < len(b) && (b[pos] == ' ' || b[pos] == '\t' || b[pos] == '\r') {
+				pos++
+			}
+			if pos < len(b) && b[pos] != ',' {
+				return lr.errf(lr.line, col, "text after the closing quote: want a comma")
+			}
+			lr.fields = append(lr.fields, lr.quoted[start:len(lr.quoted):len(lr.quoted)])
+		} else {
+			end := bytes.IndexByte(b[pos:], ',')
+			if end < 0 {
+				end = len(b)
+			} else {
+				end += pos
+			}
+			if q := bytes.IndexByte(b[pos:end], '"'); q >= 0 {
+				return lr.errf(lr.line, col, "bare \" in an unquoted field")
+			}
+			lr.fields = append(lr.fields, bytes.TrimRight(b[pos:end], " \t\r"))
+			pos = end
+		}
+		if pos >= len(b) {
+			return nil
+		}
+		pos++ // the comma
+	}
+}
+
+// parseProb parses a probability cell.
+func (lr *lineReader) parseProb(f []byte, col int) (float64, error) {
+	if len(f) == 0 {
+		return 0, lr.errf(lr.line, col, "empty cell: want a probability (a number in [0,1])")
+	}
+	p, err := strconv.ParseFloat(string(f), 64)
+	if err != nil {
+		return 0, lr.errf(lr.line, col, "%q: want a probability (a number in [0,1])", f)
+	}
+	if math.IsNaN(p) || math.IsInf(p, 0) {
+		return 0, lr.errf(lr.line, col, "%q: want a finite probability in [0,1]", f)
+	}
+	if p < 0 || p > 1 {
+		return 0, lr.errf(lr.line, col, "%s: want a probability in [0,1]", f)
+	}
+	return p, nil
+}
+
+func isNumber(f []byte) bool {
+	_, err := strconv.ParseFloat(string(f), 64)
+	return err == nil
+}
+
+// Read reads a transition matrix in either format: a from,to,probability
+// list, recognised by that header (case-insensitive), or otherwise a dense
+// CSV matrix (see ReadDense and ReadList). name is used in error messages.
+func Read(r io.Reader, name string) (Labeled, error) {
+	lr := newLineReader(r, name)
+	ok, err := lr.next()
+	if err != nil {
+		return Labeled{}, err
+	}
+	if !ok {
+		return Labeled{}, &ReadError{File: name, Err: ErrEmpty}
+	}
+	if isListHeader(lr.fields) {
+		return readList(lr)
+	}
+	return readDense(lr)
+}
+
+// ReadDense reads a dense matrix: one row a line, comma-separated, with an
+// optional first line of state labels (taken as a header when any of its
+// cells is not a number; without one the labels are "0".."n-1"). Every
+// row must have n cells, there must be n rows, entries must be finite and
+// in [0,1], and each row must sum to 1 within RowSumTol.
+func ReadDense(r io.Reader, name string) (Labeled, error) {
+	lr := newLineReader(r, name)
+	ok, err := lr.next()
+	if err != nil {
+		return Labeled{}, err
+	}
+	if !ok {
+		return Labeled{}, &ReadError{File: name, Err: ErrEmpty}
+	}
+	return readDense(lr)
+}
+
+// ReadList reads a from,to,probability list: a header line with those
+// three names (any case), then one transition a line. States are numbered
+// in order of first appearance. Every state must have a row (a line with it
+// as from), a pair may appear once, entries must be finite and in [0,1],
+// and each row must sum to 1 within RowSumTol.
+func ReadList(r io.Reader, name string) (Labeled, error) {
+	lr := newLineReader(r, name)
+	ok, err := lr.next()
+	if err != nil {
+		return Labeled{}, err
+	}
+	if !ok {
+		return Labeled{}, &ReadError{File: name, Err: ErrEmpty}
+	}
+	if !isListHeader(lr.fields) {
+		return Labeled{}, lr.errf(lr.line, 0, "header %q: want from,to,probability", joinFields(lr.fields))
+	}
+	return readList(lr)
+}
+
+func joinFields(f [][]byte) string {
+	s := make([]string, len(f))
+	for i, b := range f {
+		s[i] = string(b)
+	}
+	return strings.Join(s, ",")
+}
+
+func isListHeader(f [][]byte) bool {
+	return len(f) == 3 && strings.EqualFold(string(f[0]), "from") &&
+		strings.EqualFold(string(f[1]), "to") && strings.EqualFold(string(f[2]), "probability")
+}
+
+func readDense(lr *lineReader) (Labeled, error) {
+	var labels []string
+	header := false
+	for _, f := range lr.fields {
+		if !isNumber(f) {
+			header = true
+			break
+		}
+	}
+	n := len(lr.fields)
+	if header {
+		seen := make(map[string]int, n)
+		for c, f := range lr.fields {
+			s := string(f)
+			if s == "" {
+				return Labeled{}, lr.errf(lr.line, c+1, "empty state label in the header")
+			}
+			if prev, dup := seen[s]; dup {
+				return Labeled{}, lr.errf(lr.line, c+1, "state label %q repeats column %d", s, prev+1)
+			}
+			seen[s] = c
+			labels = append(labels, s)
+		}
+	} else {
+		labels = make([]string, n)
+		for i := range labels {
+			labels[i] = strconv.Itoa(i)
+		}
+	}
+	headerLine := lr.line
+	var data []float64
+	rows, lastLine := 0, lr.line
+	for {
+		if rows > 0 || header {
+			ok, err := lr.next()
+			if err != nil {
+				return Labeled{}, err
+			}
+			if !ok {
+				break
+			}
+		}
+		lastLine = lr.line
+		if len(lr.fields) != n {
+			return Labeled{}, lr.errf(lr.line, 0, "%d cells: want %d, one per state (ragged row)", len(lr.fields), n)
+		}
+		if rows == n {
+			return Labeled{}, lr.errf(lr.line, 0, "row %d: the matrix has %d columns, so want %d rows (square)", rows+1, n, n)
+		}
+		var s float64
+		for c, f := range lr.fields {
+			p, err := lr.parseProb(f, c+1)
+			if err != nil {
+				return Labeled{}, err
+			}
+			s += p
+			data = append(data, p)
+		}
+		if math.Abs(s-1) > RowSumTol {
+			return Labeled{}, lr.errf(lr.line, 0, "row of state %q sums to %.17g: want 1 (within %g)", labels[rows], s, RowSumTol)
+		}
+		rows++
+	}
+	if rows == 0 {
+		return Labeled{}, lr.errf(headerLine, 0, "a header and no rows: want %d rows", n)
+	}
+	if rows != n {
+		return Labeled{}, lr.errf(lastLine, 0, "%d rows for %d columns: want a square matrix", rows, n)
+	}
+	return Labeled{Matrix: &Dense{n: n, data: data}, Labels: labels}, nil
+}
+
+func readList(lr *lineReader) (Labeled, error) {
+	headerLine := lr.line
+	idx := newLabelIndex()
+	var firstSeen, firstFrom []int32
+	var ri, ci []int32
+	var vi []float64
+	var li []int32
+	state := func(f []byte, col int) (int32, error) {
+		if len(f) == 0 {
+			return 0, lr.errf(lr.line, col, "empty state label")
+		}
+		if idx.len() == math.MaxInt32-1 {
+			return 0, lr.errf(lr.line, col, "too many states")
+		}
+		k, added := idx.index(f)
+		if added {
+			firstSeen = append(firstSeen, int32(lr.line))
+			firstFrom = append(firstFrom, 0)
+		}
+		return k, nil
+	}
+	lastFrom := int32(-1)
+	for {
+		ok, err := lr.next()
+		if err != nil {
+			return Labeled{}, err
+		}
+		if !ok {
+			break
+		}
+		if len(lr.fields) != 3 {
+			return Labeled{}, lr.errf(lr.line, 0, "%d fields: want 3 (from,to,probability)", len(lr.fields))
+		}
+		// Lines of one row usually come together: reuse the last from.
+		var i int32
+		if f := lr.fields[0]; lastFrom >= 0 && bytes.Equal(f, idx.label(lastFrom)) {
+			i = lastFrom
+		} else {
+			i, err = state(f, 1)
+			if err != nil {
+				return Labeled{}, err
+			}
+			lastFrom = i
+		}
+		j, err := state(lr.fields[1], 2)
+		if err != nil {
+			return Labeled{}, err
+		}
+		p, err := lr.parseProb(lr.fields[2], 3)
+		if err != nil {
+			return Labeled{}, err
+		}
+		if firstFrom[i] == 0 {
+			firstFrom[i] = int32(lr.line)
+		}
+		ri = append(ri, i)
+		ci = append(ci, j)
+		vi = append(vi, p)
+		li = append(li, int32(lr.line))
+	}
+	if len(ri) == 0 {
+		return Labeled{}, lr.errf(headerLine, 0, "a header and no transitions: want from,to,probability lines")
+	}
+	labels := idx.strings()
+	n := len(labels)
+	idx = nil
+	for k := range labels {
+		if firstFrom[k] == 0 {
+			return Labeled{}, lr.errf(int(firstSeen[k]), 2, "state %q has no row: no line has it as from (unknown label)", labels[k])
+		}
+	}
+	rowPtr, col, val, err := assemble(n, ri, ci, vi, func(a, b int) error {
+		return lr.errf(int(li[b]), 0, "duplicate transition %q -> %q: first given on line %d", labels[ri[a]], labels[ci[a]], li[a])
+	})
+	if err != nil {
+		return Labeled{}, err
+	}
+	for i := 0; i < n; i++ {
+		s := sum(val[rowPtr[i]:rowPtr[i+1]])
+		if math.Abs(s-1) > RowSumTol {
+			return Labeled{}, lr.errf(int(firstFrom[i]), 0, "row of state %q (first line with it as from) sums to %.17g: want 1 (within %g)", labels[i], s, RowSumTol)
+		}
+	}
+	return Labeled{Matrix: &CSR{n: n, rowPtr: rowPtr, col: col, val: val}, Labels: labels}, nil
+}

@@ -1,0 +1,154 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+)
+
+// chainRun runs `ergostock chain args...` with stdin and returns the exit
+// status, stdout and stderr.
+func chainRun(stdin string, args ...string) (int, string, string) {
+	var out, errb bytes.Buffer
+	code := run(append([]string{"ergostock", "chain"}, args...), strings.NewReader(stdin), &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+type chainOut struct {
+	States       []string  `json:"states"`
+	Distribution []float64 `json:"distribution"`
+	Method       string    `json:"method"`
+	Iterations   int       `json:"iterations"`
+	Residual     float64   `json:"residual"`
+	Balance      float64   `json:"balance"`
+	Period       int       `json:"period"`
+	Lazy         bool      `json:"lazy"`
+	Transient    []string  `json:"transient"`
+}
+
+func chainJSONRun(t *testing.T, stdin string, args ...string) chainOut {
+	t.Helper()
+	code, out, errs := chainRun(stdin, append(args, "--json")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var v chainOut
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatalf("bad JSON %q: %v", out, err)
+	}
+	return v
+}
+
+// The tram chain, both file formats, every general method, against the
+// Markov chain tree theorem: pi_i is proportional to the sum over spanning
+// trees directed into i of the products of their transition probabilities
+// (Freidlin & Wentzell, Random Perturbations of Dynamical Systems, 1984,
+// ch. 6, Lemma 3.1; reference from memory).
+func TestChainAllMethodsTram(t *testing.T) {
+	P := [3][3]float64{{0.92, 0.06, 0.02}, {0.55, 0.35, 0.10}, {0.30, 0.05, 0.65}}
+	// In-trees to root r over the other two states a, b: a->r b->r, a->b b->r, b->a a->r.
+	tree := func(r, a, b int) float64 {
+		return P[a][r]*P[b][r] + P[a][b]*P[b][r] + P[b][a]*P[a][r]
+	}
+	w := []float64{tree(0, 1, 2), tree(1, 0, 2), tree(2, 0, 1)}
+	s := w[0] + w[1] + w[2]
+	for _, meth := range []string{"auto", "power", "eigen", "direct", "gth", "gauss-seidel"} {
+		for _, file := range []string{"../../data/tram-availability.csv", "../../testdata/chain/tram-list.csv"} {
+			v := chainJSONRun(t, "", "--matrix", file, "--method", meth)
+			if strings.Join(v.States, "|") != "in service|minor fault|in workshop" {
+				t.Errorf("%s %s: states %q", file, meth, v.States)
+			}
+			for i := range w {
+				if math.Abs(v.Distribution[i]-w[i]/s) > 1e-12 {
+					t.Errorf("%s %s: pi[%d]=%v, want %v", file, meth, i, v.Distribution[i], w[i]/s)
+				}
+			}
+			if v.Residual > 1e-12 || v.Balance > 1e-12 || v.Period != 1 {
+				t.Errorf("%s %s: residual %v balance %v period %d", file, meth, v.Residual, v.Balance, v.Period)
+			}
+			if want := meth; want != "auto" && v.Method != want {
+				t.Errorf("method %q, want %q", v.Method, want)
+			}
+		}
+	}
+}
+
+func TestChainHumanOutput(t *testing.T) {
+	code, out, errs := chainRun("", "--matrix", "../../data/tram-availability.csv")
+	if code != 0 || errs != "" {
+		t.Fatalf("exit %d, stderr %q", code, errs)
+	}
+	for _, want := range []string{"state        probability", "in service   0.8444", "method      gth", "residual", "balance", "period 1", "transient   none"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+func TestChainStdinPeriodicTransient(t *testing.T) {
+	v := chainJSONRun(t, "from,to,probability\na,b,1\nb,c,1\nc,a,1\n", "--matrix", "-", "--method", "power")
+	if v.Period != 3 || !v.Lazy || math.Abs(v.Distribution[0]-1.0/3) > 1e-12 {
+		t.Errorf("periodic: %+v", v)
+	}
+	code, out, _ := chainRun("", "--matrix", "../../testdata/chain/periodic.csv", "--method", "power")
+	if code != 0 || !strings.Contains(out, "lazy chain") || !strings.Contains(out, "period 3") {
+		t.Errorf("periodic human output: %d %s", code, out)
+	}
+	v = chainJSONRun(t, "", "--matrix", "../../testdata/chain/transient.csv")
+	// Closed class {running, resting}: two-state closed form, a = 0.6, b = 0.9
+	// (Kemeny & Snell 1960).
+	if v.Distribution[0] != 0 || math.Abs(v.Distribution[1]-0.6) > 1e-14 || strings.Join(v.Transient, ",") != "new" {
+		t.Errorf("transient: %+v", v)
+	}
+}
+
+// Every unusable input: exit status 1 (2 for flags), one line on stderr
+// naming the file, line and column, nothing on stdout, no panic.
+func TestChainBadInput(t *testing.T) {
+	for _, tc := range []struct {
+		name  string
+		stdin string
+		args  []string
+		code  int
+		want  string
+	}{
+		{"missing file", "", []string{"--matrix", "no/such.csv"}, 1, "--matrix no/such.csv: cannot open: no such file or directory"},
+		{"empty file", "", []string{"--matrix", "../../testdata/chain/empty.csv"}, 1, "empty.csv: empty input"},
+		{"ragged", "", []string{"--matrix", "../../testdata/chain/ragged.csv"}, 1, "ragged.csv: line 3: 2 cells: want 3"},
+		{"duplicate", "", []string{"--matrix", "../../testdata/chain/duplicate.csv"}, 1, `duplicate.csv: line 5: duplicate transition "x" -> "y": first given on line 2`},
+		{"reducible", "", []string{"--matrix", "../../testdata/chain/reducible.csv"}, 1, "reducible.csv: chain is reducible: 2 closed classes, so no unique stationary distribution: {depot A}, {depot B}"},
+		{"non-numeric", "a,b\n0.5,half\n1,0\n", []string{"--matrix", "-"}, 1, `stdin: line 2, column 2: "half": want a probability`},
+		{"negative", "a,b\n1.5,-0.5\n1,0\n", []string{"--matrix", "-"}, 1, "stdin: line 2, column 1: 1.5: want a probability in [0,1]"},
+		{"nan", "a,b\nNaN,1\n1,0\n", []string{"--matrix", "-"}, 1, "line 2, column 1: \"NaN\": want a finite probability"},
+		{"inf", "a,b\n0,+Inf\n1,0\n", []string{"--matrix", "-"}, 1, "line 2, column 2: \"+Inf\": want a finite probability"},
+		{"row sum", "a,b\n0.5,0.4\n1,0\n", []string{"--matrix", "-"}, 1, `stdin: line 2: row of state "a" sums to 0.9`},
+		{"non-square", "a,b\n0.5,0.5\n", []string{"--matrix", "-"}, 1, "stdin: line 2: 1 rows for 2 columns: want a square matrix"},
+		{"unknown label", "from,to,probability\nx,y,1\ny,x,0.5\ny,z,0.5\n", []string{"--matrix", "-"}, 1, `stdin: line 4, column 2: state "z" has no row`},
+		{"list row sum", "from,to,probability\nx,y,1\ny,x,0.5\n", []string{"--matrix", "-"}, 1, `stdin: line 3: row of state "y"`},
+		{"forward mismatch", "", []string{"--matrix", "../../data/tram-availability.csv", "--method", "forward"}, 1, "method forward does not apply: transition from state in workshop back to state minor fault"},
+		{"uniform mismatch", "", []string{"--matrix", "../../data/tram-availability.csv", "--method", "uniform"}, 1, "method uniform does not apply"},
+		{"not converged", "", []string{"--matrix", "../../data/tram-availability.csv", "--method", "power", "--max-iter", "3"}, 1, "power: did not converge after 3 iterations: residual"},
+		{"bad method", "", []string{"--matrix", "x", "--method", "magic"}, 2, `--method magic: unknown method "magic": want one of auto, power`},
+		{"bad tol", "", []string{"--matrix", "x", "--tol", "-1"}, 2, "--tol -1: want a finite number > 0"},
+		{"bad max-iter", "", []string{"--matrix", "x", "--max-iter", "0"}, 2, "--max-iter 0: want an integer >= 1"},
+		{"no matrix", "", nil, 2, "--matrix: want a file name"},
+		{"tol not a number", "", []string{"--matrix", "x", "--tol", "abc"}, 2, `chain: invalid value "abc" for flag -tol`},
+		{"stray argument", "", []string{"--matrix", "x", "extra"}, 2, `unexpected argument "extra"`},
+	} {
+		code, out, errs := chainRun(tc.stdin, tc.args...)
+		if code != tc.code {
+			t.Errorf("%s: exit %d, want %d (stderr %q)", tc.name, code, tc.code, errs)
+		}
+		if out != "" && tc.code == 1 {
+			t.Errorf("%s: stdout %q, want nothing", tc.name, out)
+		}
+		if !strings.HasPrefix(errs, "ergostock: ") || !strings.Contains(errs, tc.want) {
+			t.Errorf("%s: stderr %q, want %q", tc.name, errs, tc.want)
+		}
+		if strings.Count(errs, "\n") != 1 || strings.Contains(errs, "goroutine") {
+			t.Errorf("%s: stderr is not one line: %q", tc.name, errs)
+		}
+	}
+}
