@@ -1,8 +1,8 @@
 package inventory
 
 import (
-	"fmt"
 	"math"
+	"strconv"
 )
 
 // Mode says what happens to demand that cannot be served at once.
@@ -30,17 +30,17 @@ type System struct {
 // *FieldError values naming the offending field.
 func (s System) Validate() error {
 	if s.Demand == nil {
-		return &FieldError{Field: "demand", Want: "a demand distribution"}
+		return &FieldError{Field: "demand", Want: "a demand distribution (see Parse)"}
 	}
 	if s.LeadTime < 0 {
-		return &FieldError{Field: "lead_time", Value: fmt.Sprint(s.LeadTime), Want: "a whole number of periods >= 0"}
+		return &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime), Want: "a whole number of periods >= 0"}
 	}
 	for _, c := range []struct {
 		name string
 		v    float64
 	}{{"holding_cost", s.Holding}, {"shortage_cost", s.Shortage}, {"order_cost", s.OrderCost}, {"unit_cost", s.UnitCost}} {
 		if math.IsNaN(c.v) || math.IsInf(c.v, 0) || c.v < 0 {
-			return &FieldError{Field: c.name, Value: fmt.Sprint(c.v), Want: "a finite cost >= 0"}
+			return &FieldError{Field: c.name, Value: ftoa(c.v), Want: "a finite cost >= 0"}
 		}
 	}
 	switch s.Mode {
