@@ -1,10 +1,379 @@
 package main
 
-import "github.com/urfave/cli/v2"
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"sync"
+	"sync/atomic"
+	"text/tabwriter"
 
-// fitCommand is a placeholder until the command is built.
+	"github.com/urfave/cli/v2"
+
+	"ergostock/inventory/history"
+)
+
+// fitCommand fits a demand model to each SKU of a history file.
 func fitCommand() *cli.Command {
-	return &cli.Command{Name: "fit", Usage: "not yet available", Action: func(*cli.Context) error {
-		return usageErr("fit: not yet available")
-	}}
+	return &cli.Command{
+		Name:      "fit",
+		Usage:     "fit a demand distribution to each SKU of a demand history",
+		UsageText: "ergostock fit --history FILE [--period day|week|month] [--json | --out FILE]",
+		Description: "Reads a CSV with columns sku, date (YYYY-MM-DD) or an integer period, and quantity\n" +
+			"(other columns ignored), sums it into periods, and for every SKU reports the mean,\n" +
+			"variance, demand pattern (Syntetos-Boylan-Croston) and the candidate models\n" +
+			"(poisson, negbin, normal, gamma, pmf) fitted by maximum likelihood, choosing the\n" +
+			"one of least AICc (Akaike's criterion with the small-sample correction). Bad rows\n" +
+			"are skipped with a warning. FILE - reads standard input. Exit status 3 when some\n" +
+			"SKU gets no model (no demand, or no usable rows).",
+		Flags: []cli.Flag{
+			&cli.StringFlag{Name: "history", Usage: "demand history CSV `FILE` (- for standard input)"},
+			&cli.StringFlag{Name: "period", Usage: "review period for dated rows: day, week (ISO 8601, Monday first) or month; an integer period column is taken as it is", Value: "week"},
+			&cli.BoolFlag{Name: "json", Usage: "print a JSON array, one object per SKU"},
+			&cli.StringFlag{Name: "out", Usage: "write the results as CSV to `FILE` (atomically) instead of a table"},
+		},
+		Action: fitAction,
+	}
+}
+
+// fitResult is one SKU's fit as printed.
+type fitResult struct {
+	SKU     string
+	First   string
+	Summary history.Summary
+	Err     error
+}
+
+func fitAction(c *cli.Context) error {
+	if c.NArg() > 0 {
+		return usageErr("fit: unexpected argument %q (see --help)", c.Args().First())
+	}
+	path := c.String("history")
+	if path == "" {
+		return usageErr("--history: want the demand history CSV file (- for standard input)")
+	}
+	if c.Bool("json") && c.IsSet("out") {
+		return usageErr("--json and --out: give one of them, not both")
+	}
+	if c.IsSet("out") && c.String("out") == "" {
+		return usageErr("--out: want a file name")
+	}
+	period, err := history.ParsePeriod(c.String("period"))
+	if err != nil {
+		return usageErr("--%v", err)
+	}
+	h, err := fitRead(c, path, period)
+	if err != nil {
+		return err
+	}
+	stderr := c.App.ErrWriter
+	for _, e := range h.Errors {
+		fmt.Fprintf(stderr, "ergostock: warning: bad row skipped: %v\n", e)
+	}
+	if len(h.SKUs) == 0 {
+		return fmt.Errorf("%s: no data rows, want at least one row of sku, date and quantity", h.File)
+	}
+	res := fitAll(h)
+	failed := 0
+	for _, r := range res {
+		if r.Err != nil || r.Summary.Demand == nil {
+			failed++
+		}
+	}
+
+	switch {
+	case c.Bool("json"):
+		err = fitWriteJSON(c.App.Writer, res)
+	case c.IsSet("out"):
+		err = fitWriteAtomic(c.String("out"), func(w io.Writer) error { return fitWriteCSV(w, res) })
+	default:
+		err = fitWriteTable(c.App.Writer, res)
+	}
+	if err != nil {
+		return err
+	}
+	span := ""
+	if failed < len(res) || h.Rows > len(h.Errors) {
+		span = fmt.Sprintf(", %s .. %s", h.Label(fitFirst(h)), h.Label(h.Last))
+	}
+	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model\n",
+		len(res), h.File, h.Period, span, len(res)-failed, failed)
+	if failed > 0 {
+		return &exitError{code: 3, err: fmt.Errorf("%d of %d SKUs have no demand model", failed, len(res))}
+	}
+	return nil
+}
+
+// fitAll fits every SKU, spread over all cores; the results are in the
+// order of h.SKUs whatever the number of workers.
+func fitAll(h *history.History) []fitResult {
+	res := make([]fitResult, len(h.SKUs))
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), max(1, len(res))) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= len(res) {
+					return
+				}
+				k := h.SKUs[i]
+				s, err := k.Fit()
+				res[i] = fitResult{SKU: k.SKU, Summary: s, Err: err}
+				if len(k.Demand) > 0 {
+					res[i].First = h.Label(k.Start)
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	return res
+}
+
+// fitFirst returns the earliest first period over the SKUs with records.
+func fitFirst(h *history.History) int {
+	first, ok := 0, false
+	for _, k := range h.SKUs {
+		if len(k.Demand) > 0 && (!ok || k.Start < first) {
+			first, ok = k.Start, true
+		}
+	}
+	return first
+}
+
+// fitRead reads the history from a file or, for "-", standard input.
+func fitRead(c *cli.Context, path string, p history.Period) (*history.History, error) {
+	if path == "-" {
+		return history.Read(c.App.Reader, "stdin", p)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("--history: %w", err)
+	}
+	defer f.Close()
+	return history.Read(f, path, p)
+}
+
+// fitNum formats a figure for the table and the CSV; non-finite values
+// (the ADI and CV² of a series without demand) are left empty.
+func fitNum(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(x, 'g', -1, 64)
+}
+
+// fitShort formats a figure to 4 significant digits for the table.
+func fitShort(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return "-"
+	}
+	return strconv.FormatFloat(x, 'g', 4, 64)
+}
+
+func (r *fitResult) demand() string {
+	if r.Summary.Demand == nil {
+		return ""
+	}
+	return r.Summary.Demand.String()
+}
+
+func (r *fitResult) errText() string {
+	if r.Err == nil {
+		return ""
+	}
+	return oneLine(r.Err.Error())
+}
+
+// fitBrief shortens a SPEC string for the table: parameters to 4
+// significant digits, and a pmf as its support range and point count.
+// --json and --out print the exact string.
+func fitBrief(spec string) string {
+	family, params, ok := strings.Cut(spec, ":")
+	if !ok {
+		return spec
+	}
+	kvs := strings.Split(params, ",")
+	if family == "pmf" {
+		first, _, _ := strings.Cut(kvs[0], "=")
+		last, _, _ := strings.Cut(kvs[len(kvs)-1], "=")
+		if len(kvs) == 1 {
+			return spec
+		}
+		return fmt.Sprintf("pmf on %s..%s (%d points)", first, last, len(kvs))
+	}
+	for i, kv := range kvs {
+		k, v, _ := strings.Cut(kv, "=")
+		if x, err := strconv.ParseFloat(v, 64); err == nil {
+			kvs[i] = k + "=" + strconv.FormatFloat(x, 'g', 4, 64)
+		}
+	}
+	return family + ":" + strings.Join(kvs, ",")
+}
+
+func fitWriteTable(w io.Writer, res []fitResult) error {
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "sku\tperiods\tmean\tvariance\tpattern\tdemand\twarnings")
+	for _, r := range res {
+		s := r.Summary
+		d := fitBrief(r.demand())
+		if d == "" {
+			d = "-"
+		}
+		notes := s.Warnings
+		if r.Err != nil {
+			notes = append([]string{r.errText()}, notes...)
+		}
+		pat := string(s.Pattern)
+		if pat == "" {
+			pat = "-"
+		}
+		fmt.Fprintf(tw, "%s\t%d\t%s\t%s\t%s\t%s\t%s\n", r.SKU, s.Periods, fitShort(s.Mean), fitShort(s.Variance),
+			pat, d, strings.Join(notes, "; "))
+	}
+	return tw.Flush()
+}
+
+// fitFloat is a number in JSON, null when not finite.
+type fitFloat float64
+
+func (x fitFloat) MarshalJSON() ([]byte, error) {
+	f := float64(x)
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return []byte("null"), nil
+	}
+	return strconv.AppendFloat(nil, f, 'g', -1, 64), nil
+}
+
+type fitCandidateJSON struct {
+	Model         string   `json:"model"`
+	Parameters    int      `json:"parameters"`
+	LogLikelihood fitFloat `json:"log_likelihood"`
+	AIC           fitFloat `json:"aic"`
+	AICc          fitFloat `json:"aicc"`
+	Demand        string   `json:"demand"`
+	Chosen        bool     `json:"chosen"`
+}
+
+type fitJSON struct {
+	SKU          string             `json:"sku"`
+	FirstPeriod  string             `json:"first_period"`
+	Periods      int                `json:"periods"`
+	Total        int                `json:"total"`
+	Mean         fitFloat           `json:"mean"`
+	Variance     fitFloat           `json:"variance"`
+	ZeroFraction fitFloat           `json:"zero_fraction"`
+	ADI          fitFloat           `json:"adi"`
+	CV2          fitFloat           `json:"cv2"`
+	Pattern      string             `json:"pattern"`
+	TrendSlope   fitFloat           `json:"trend_slope"`
+	TrendP       fitFloat           `json:"trend_p"`
+	Model        string             `json:"model"`
+	Demand       string             `json:"demand"`
+	Candidates   []fitCandidateJSON `json:"candidates"`
+	Warnings     []string           `json:"warnings"`
+	Error        string             `json:"error,omitempty"`
+}
+
+func fitWriteJSON(w io.Writer, res []fitResult) error {
+	out := make([]fitJSON, len(res))
+	for i, r := range res {
+		s := r.Summary
+		j := fitJSON{
+			SKU: r.SKU, FirstPeriod: r.First, Periods: s.Periods, Total: s.Total,
+			Mean: fitFloat(s.Mean), Variance: fitFloat(s.Variance), ZeroFraction: fitFloat(s.ZeroFraction),
+			ADI: fitFloat(s.ADI), CV2: fitFloat(s.CV2), Pattern: string(s.Pattern),
+			TrendSlope: fitFloat(s.Trend.Slope), TrendP: fitFloat(s.Trend.P),
+			Model: s.Model(), Demand: r.demand(),
+			Candidates: []fitCandidateJSON{}, Warnings: s.Warnings, Error: r.errText(),
+		}
+		if j.Warnings == nil {
+			j.Warnings = []string{}
+		}
+		for i := range s.Candidates {
+			c := &s.Candidates[i]
+			spec := ""
+			if d, err := c.Build(); err == nil {
+				spec = d.String()
+			}
+			j.Candidates = append(j.Candidates, fitCandidateJSON{c.Model, c.Params, fitFloat(c.LogLikelihood),
+				fitFloat(c.AIC), fitFloat(c.AICc), spec, i == s.Chosen})
+		}
+		out[i] = j
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(out)
+}
+
+// fitCSVHeader names the columns of fit --out.
+var fitCSVHeader = []string{"sku", "first_period", "periods", "total", "mean", "variance", "zero_fraction", "adi", "cv2",
+	"pattern", "trend_slope", "trend_p", "model", "demand", "log_likelihood", "aic", "aicc", "warnings", "error"}
+
+func fitWriteCSV(w io.Writer, res []fitResult) error {
+	cw := csv.NewWriter(w)
+	if err := cw.Write(fitCSVHeader); err != nil {
+		return err
+	}
+	for _, r := range res {
+		s := r.Summary
+		ll, aic, aicc := "", "", ""
+		if s.Chosen >= 0 {
+			c := s.Candidates[s.Chosen]
+			ll, aic, aicc = fitNum(c.LogLikelihood), fitNum(c.AIC), fitNum(c.AICc)
+		}
+		rec := []string{r.SKU, r.First, strconv.Itoa(s.Periods), strconv.Itoa(s.Total), fitNum(s.Mean), fitNum(s.Variance),
+			fitNum(s.ZeroFraction), fitNum(s.ADI), fitNum(s.CV2), string(s.Pattern), fitNum(s.Trend.Slope), fitNum(s.Trend.P),
+			s.Model(), r.demand(), ll, aic, aicc, strings.Join(s.Warnings, "; "), r.errText()}
+		if err := cw.Write(rec); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// fitWriteAtomic writes a file through a temporary file in the same
+// directory, renamed over path only once everything is written and synced,
+// so a failure leaves any existing file untouched.
+func fitWriteAtomic(path string, write func(io.Writer) error) (err error) {
+	dir, base := filepath.Split(path)
+	if dir == "" {
+		dir = "."
+	}
+	f, err := os.CreateTemp(dir, "."+base+".tmp-*")
+	if err != nil {
+		return fmt.Errorf("--out %s: %w", path, err)
+	}
+	defer func() {
+		if err != nil {
+			f.Close()
+			os.Remove(f.Name())
+		}
+	}()
+	if err = write(f); err != nil {
+		return fmt.Errorf("--out %s: %w", path, err)
+	}
+	if err = f.Chmod(0o644); err != nil {
+		return fmt.Errorf("--out %s: %w", path, err)
+	}
+	if err = f.Sync(); err != nil {
+		return fmt.Errorf("--out %s: %w", path, err)
+	}
+	if err = f.Close(); err != nil {
+		return fmt.Errorf("--out %s: %w", path, err)
+	}
+	if err = os.Rename(f.Name(), path); err != nil {
+		return fmt.Errorf("--out %s: %w", path, err)
+	}
+	return nil
 }
