@@ -1,7 +1,8 @@
 package policies
 
 import (
-	"errors"
+	"fmt"
+	"math"
 
 	"ergostock/chain"
 	"ergostock/inventory"
@@ -12,8 +13,17 @@ const DefaultMaxStates = 5_000_000
 
 // Options tune an evaluation. The zero value uses the defaults.
 type Options struct {
-	MaxStates int           // largest lost-sales chain to build; 0 means DefaultMaxStates
+	// MaxStates is the largest chain to build (lost-sales states, or
+	// inventory positions in backorder mode; at most 2^31-1); 0 means
+	// DefaultMaxStates. Chains are refused before allocation when a bound
+	// on their size exceeds it, or when a bound on their transitions
+	// exceeds 32 times it.
+	MaxStates int
 	Chain     chain.Options // solver choice for the chain
+	// Exhaustive stores every transition of positive probability in the
+	// inventory-position chain of s-S and base-stock; by default those
+	// below 1e-20 join the restart at top (see Evaluation.Neglected).
+	Exhaustive bool
 }
 
 // Evaluation is what a policy delivers, with the chain it came from.
@@ -22,11 +32,84 @@ type Evaluation struct {
 	Figures     inventory.Figures
 	States      int               // states of the solved chain
 	Diagnostics chain.Diagnostics // of the stationary solve
-	Neglected   float64           // probability mass neglected by any truncation
+	// Neglected is the largest probability mass that any one truncation
+	// left out or placed approximately (each is bounded separately): the
+	// tail beyond a truncated convolution (lead-time demand of families
+	// without a closed form for sums), the transitions below 1e-20 moved to
+	// the restart (largest per row; s-S and base-stock in backorder mode),
+	// the residues of demand beyond P(D > K) <= 1e-30 for s-nQ, and the
+	// remainders of the loss-function sums (below 1e-300 at the low end).
+	Neglected float64
+	// FlowBalance is |E[units ordered per period] - E[units served per
+	// period]|, with the left side summed directly over the chain's
+	// transitions and the right side E[D] (backorder mode) or
+	// E[min(D, on-hand after the arrival)] (lost mode): a check of the
+	// long-run flow balance, zero up to round-off.
+	FlowBalance float64
 }
 
 // Evaluate computes every figure of policy p on system sys exactly from the
-// stationary distribution of the chain the policy induces (placeholder).
+// stationary distribution of the chain the policy induces.
+//
+// Backorder mode: the chain is that of inventory position Y just after
+// review, on s+1..top, started at top. With X_n the demand over n periods,
+// on-hand is E[(Y-X_{L+1})^+], backorders E[(X_{L+1}-Y)^+], stockout
+// probability P(X_{L+1} > Y), fill rate E[min(D, (Y-X_L)^+)]/E[D], order
+// frequency E[P(D >= Y-s)], and E[D] units are ordered per period. The s-S
+// and base-stock chain moves only down or restarts at top and is solved
+// by forward substitution; the s-nQ chain is doubly stochastic (uniform
+// law; Hadley & Whitin 1963, Analysis of Inventory Systems).
+//
+// Lost mode: the chain is that of (on-hand x, outstanding orders o_1..o_L)
+// at review, over the states reachable from (top, 0, ..., 0), solved by
+// sparse Gauss-Seidel (up to 300 states by the solver's automatic choice).
+// With a the on-hand after the arrival and q the order, on-hand is
+// E[(a-D)^+], lost sales E[(D-a)^+], stockout P(D > a), fill rate
+// 1 - E[lost]/E[D], order frequency P(q > 0).
+//
+// Tails of demand are taken from the closed forms of the distribution:
+// jumps past the reorder point (or past the stock on hand) are one lumped
+// transition, so no demand tail is truncated; only transitions of
+// negligible probability are folded (see Options.Exhaustive and
+// Evaluation.Neglected). Solver diagnostics (residual, global balance)
+// come with every answer.
+//
+// Errors name the policy and, for inputs, are *inventory.FieldError values
+// naming the field; a chain larger than Options.MaxStates is refused with a
+// *SizeError before any memory is taken.
 func Evaluate(sys inventory.System, p Policy, opt Options) (*Evaluation, error) {
-	return nil, errors.New("evaluate: not implemented yet")
+	if err := sys.Validate(); err != nil {
+		return nil, err
+	}
+	if err := p.Validate(sys.Mode); err != nil {
+		return nil, err
+	}
+	if opt.MaxStates == 0 {
+		opt.MaxStates = DefaultMaxStates
+	}
+	if opt.MaxStates < 0 {
+		return nil, fmt.Errorf("state limit %d: want a count >= 1 (0 for the default %d)", opt.MaxStates, DefaultMaxStates)
+	}
+	// States are indexed by int32.
+	opt.MaxStates = min(opt.MaxStates, math.MaxInt32)
+	if sys.Mode == inventory.Lost {
+		return evaluateLost(sys, p, opt)
+	}
+	return evaluateBackorder(sys, p, opt)
+}
+
+// leadTimeDemand returns the law of the demand over n periods (nil for
+// n = 0, the law concentrated at 0) and the mass its computation neglected.
+func leadTimeDemand(d inventory.Distribution, n int) (inventory.Distribution, float64, error) {
+	switch n {
+	case 0:
+		return nil, 0, nil
+	case 1:
+		return d, 0, nil
+	}
+	x, err := inventory.Sum(d, n)
+	if err != nil {
+		return nil, 0, fmt.Errorf("demand over %d periods: %w", n, err)
+	}
+	return x, inventory.Neglected(x), nil
 }

@@ -1,0 +1,293 @@
+package policies
+
+import (
+	"errors"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+
+	"ergostock/inventory"
+)
+
+func lostSystem(d inventory.Distribution, L int, h, b, k, c float64) inventory.System {
+	return inventory.System{Demand: d, LeadTime: L, Holding: h, Shortage: b, OrderCost: k, UnitCost: c, Mode: inventory.Lost}
+}
+
+// TestLostZeroLeadHand checks lost sales with zero lead time on cases
+// derived by hand (the derivations are in the comments).
+func TestLostZeroLeadHand(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		d    inventory.Distribution
+		p    Policy
+		want inventory.Figures
+	}{
+		{
+			// D = 0 or 2 with probability 1/2 each, base-stock S = 1, L = 0.
+			// Every review lifts on-hand to 1 at once, so a = 1 always:
+			// on-hand E[(1-D)^+] = 1/2, lost E[(D-1)^+] = 1/2, stockout
+			// P(D > 1) = 1/2, fill rate 1 - (1/2)/1 = 1/2. On-hand at review
+			// is 0 (after D = 2) with probability 1/2, and then 1 unit is
+			// ordered: order frequency 1/2, mean quantity 1, E[q] = 1/2
+			// (= E[D] - E[lost]). With h = 1, b = 4, K = 3, c = 2: holding
+			// 1/2, shortage 2, ordering 3/2, purchase 1, total 5.
+			name: "base-stock S=1, D in {0,2}",
+			d:    pmf(t, 0.5, 0, 0.5),
+			p:    Policy{Kind: BaseStock, OrderUpTo: 1},
+			want: inventory.Figures{FillRate: 0.5, StockoutProbability: 0.5, MeanOnHand: 0.5, MeanLostSales: 0.5,
+				OrderFrequency: 0.5, MeanOrderQuantity: 1, HoldingCost: 0.5, ShortageCost: 2, OrderingCost: 1.5, PurchaseCost: 1, TotalCost: 5},
+		},
+		{
+			// D = 0 or 1 with probability 1/2 each, s = 0, S = 2, L = 0.
+			// On-hand at review x in {0,1,2}; x = 0 orders 2 (a = 2),
+			// x = 1, 2 order nothing (a = x). Transitions: 2 -> 2, 1;
+			// 1 -> 1, 0; 0 -> 2, 1, each with probability 1/2. Balance:
+			// pi2 = (pi2 + pi0)/2, pi0 = pi1/2, so pi = (1/4, 1/2, 1/4) for
+			// x = 0, 1, 2. Then a = 2 w.p. 1/2 and a = 1 w.p. 1/2: on-hand
+			// (1/2)(3/2) + (1/2)(1/2) = 1; nothing is ever lost (D <= 1 <= a):
+			// fill rate 1, stockout 0. Orders: frequency pi0 = 1/4, size 2,
+			// E[q] = 1/2 = E[D]. With h = 1, b = 4, K = 3, c = 2: holding 1,
+			// ordering 3/4, purchase 1, total 11/4.
+			name: "s-S s=0 S=2, D in {0,1}",
+			d:    pmf(t, 0.5, 0.5),
+			p:    Policy{Kind: SS, ReorderPoint: 0, OrderUpTo: 2},
+			want: inventory.Figures{FillRate: 1, MeanOnHand: 1, OrderFrequency: 0.25, MeanOrderQuantity: 2,
+				HoldingCost: 1, OrderingCost: 0.75, PurchaseCost: 1, TotalCost: 2.75},
+		},
+		{
+			// D = 0, 1, 2 with probabilities 1/4, 1/4, 1/2; s-nQ with s = 0,
+			// Q = 2 (top = 2), L = 0. x = 0 orders 2 (a = 2); x = 1, 2 order
+			// nothing. From a = 2: x' = 2, 1, 0 w.p. 1/4, 1/4, 1/2; from
+			// a = 1: x' = 1, 0 w.p. 1/4, 3/4. With x = 0 and x = 2 both at
+			// a = 2: pi2 = (pi0 + pi2)/4, pi1 = (pi0 + pi2)/4 + pi1/4,
+			// pi0 = (pi0 + pi2)/2 + 3 pi1/4. Let u = pi0 + pi2: pi2 = u/4,
+			// pi1 = u/3, and u + pi1 = 1 gives u = 3/4: pi = (9/16, 1/4,
+			// 3/16). a = 2 w.p. 3/4, a = 1 w.p. 1/4. On-hand: a = 2 gives
+			// (2/4 + 1/4) = 3/4, a = 1 gives 1/4: (3/4)(3/4) + (1/4)(1/4) =
+			// 5/8. Lost: a = 2 none, a = 1 gives (1/2)(1) = 1/2: mean 1/8.
+			// Stockout: P(D > 1) = 1/2 when a = 1: 1/8. E[D] = 5/4, fill
+			// rate 1 - (1/8)/(5/4) = 9/10. Orders: frequency 9/16, size 2,
+			// E[q] = 9/8 = E[D] - E[lost]. With h = 1, b = 4, K = 3, c = 2:
+			// holding 5/8, shortage 1/2, ordering 27/16, purchase 9/4,
+			// total 5.0625.
+			name: "s-nQ s=0 Q=2, D in {0,1,2}",
+			d:    pmf(t, 0.25, 0.25, 0.5),
+			p:    Policy{Kind: SNQ, ReorderPoint: 0, OrderMultiple: 2},
+			want: inventory.Figures{FillRate: 0.9, StockoutProbability: 0.125, MeanOnHand: 0.625, MeanLostSales: 0.125,
+				OrderFrequency: 9.0 / 16, MeanOrderQuantity: 2, HoldingCost: 0.625, ShortageCost: 0.5, OrderingCost: 27.0 / 16,
+				PurchaseCost: 2.25, TotalCost: 5.0625},
+		},
+	} {
+		e, err := Evaluate(lostSystem(c.d, 0, 1, 4, 3, 2), c.p, Options{})
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		got, want := e.Figures.Fields(), c.want.Fields()
+		for i := range got {
+			if !close(got[i].Value, want[i].Value, tight) {
+				t.Errorf("%s: %s = %.17g, want %.17g", c.name, got[i].Name, got[i].Value, want[i].Value)
+			}
+		}
+	}
+}
+
+// bruteLost is an independent reference for lost mode with L = 1 and a
+// demand of bounded support: it lists every pair (x, o) with x + o <= top,
+// applies the event order of a period (review and order q, receive o,
+// demand d, next state ((x+o-d)^+, q)) for every demand value, solves
+// pi P = pi, sum pi = 1 densely with gonum's mat (LU), keeps the
+// distribution on the states reached from (top, 0), and averages the figures over states and demands.
+func bruteLost(t *testing.T, p []float64, pol Policy) (onHand, lost, stockout, freq, qty float64) {
+	t.Helper()
+	_, top := pol.Levels()
+	type st struct{ x, o int }
+	var states []st
+	index := map[st]int{}
+	for x := 0; x <= top; x++ {
+		for o := 0; x+o <= top; o++ {
+			index[st{x, o}] = len(states)
+			states = append(states, st{x, o})
+		}
+	}
+	n := len(states)
+	P := mat.NewDense(n, n, nil)
+	for i, s := range states {
+		q := pol.Order(s.x + s.o)
+		a := s.x + s.o
+		for d, pd := range p {
+			nx := max(a-d, 0)
+			j := index[st{nx, q}]
+			P.Set(i, j, P.At(i, j)+pd)
+		}
+	}
+	// The states reached from (top, 0), by depth-first search; the linear
+	// system pi (P - I) = 0 with one equation replaced by sum pi = 1 has a
+	// unique solution on them (one closed class; transient states get 0).
+	seen := make([]bool, n)
+	stack := []int{index[st{top, 0}]}
+	seen[stack[0]] = true
+	var reach []int
+	for len(stack) > 0 {
+		i := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		reach = append(reach, i)
+		for j := range n {
+			if P.At(i, j) > 0 && !seen[j] {
+				seen[j] = true
+				stack = append(stack, j)
+			}
+		}
+	}
+	k := len(reach)
+	A := mat.NewDense(k, k, nil)
+	rhs := mat.NewVecDense(k, nil)
+	for r := range k {
+		for c := range k {
+			v := P.At(reach[c], reach[r])
+			if r == c {
+				v--
+			}
+			A.Set(r, c, v)
+		}
+	}
+	for c := range k {
+		A.Set(k-1, c, 1)
+	}
+	rhs.SetVec(k-1, 1)
+	var sol mat.VecDense
+	if err := sol.SolveVec(A, rhs); err != nil {
+		t.Fatal(err)
+	}
+	for r, i := range reach {
+		w := sol.AtVec(r)
+		s := states[i]
+		a := s.x + s.o
+		if q := pol.Order(s.x + s.o); q > 0 {
+			freq += w
+			qty += w * float64(q)
+		}
+		for d, pd := range p {
+			onHand += w * pd * float64(max(a-d, 0))
+			lost += w * pd * float64(max(d-a, 0))
+			if d > a {
+				stockout += w * pd
+			}
+		}
+	}
+	return onHand, lost, stockout, freq, qty / freq
+}
+
+func TestLostOneLeadBrute(t *testing.T) {
+	for _, c := range []struct {
+		p   []float64
+		pol Policy
+	}{
+		{[]float64{0.3, 0.4, 0.2, 0.1}, Policy{Kind: BaseStock, OrderUpTo: 4}},
+		{[]float64{0.3, 0.4, 0.2, 0.1}, Policy{Kind: SS, ReorderPoint: 1, OrderUpTo: 5}},
+		{[]float64{0.1, 0.2, 0.3, 0.2, 0.2}, Policy{Kind: SNQ, ReorderPoint: 2, OrderMultiple: 3}},
+		{[]float64{0.5, 0, 0.5}, Policy{Kind: BaseStock, OrderUpTo: 3}},
+		// No zero demand: the start (top, 0) is transient.
+		{[]float64{0, 0.6, 0.4}, Policy{Kind: SS, ReorderPoint: 2, OrderUpTo: 6}},
+		{[]float64{0, 0.6, 0.4}, Policy{Kind: BaseStock, OrderUpTo: 2}},
+	} {
+		d := pmf(t, c.p...)
+		pol := c.pol
+		e, err := Evaluate(lostSystem(d, 1, 1, 1, 0, 0), pol, Options{})
+		if err != nil {
+			t.Fatalf("%v: %v", pol, err)
+		}
+		on, lost, out, freq, qty := bruteLost(t, c.p, pol)
+		f := e.Figures
+		for _, v := range []struct {
+			name      string
+			got, want float64
+		}{
+			{"mean_on_hand", f.MeanOnHand, on}, {"mean_lost_sales", f.MeanLostSales, lost},
+			{"stockout_probability", f.StockoutProbability, out}, {"order_frequency", f.OrderFrequency, freq},
+			{"mean_order_quantity", f.MeanOrderQuantity, qty},
+		} {
+			if !close(v.got, v.want, 1e-10) {
+				t.Errorf("%v L=1: %s = %.15g, want %.15g (brute force)", pol, v.name, v.got, v.want)
+			}
+		}
+		if e.FlowBalance > 1e-12 {
+			t.Errorf("%v: flow balance off by %.3g", pol, e.FlowBalance)
+		}
+		lc, _, err := solveLost(d, pol, 1, Options{MaxStates: DefaultMaxStates})
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkBalance(t, pol.String()+" lost L=1", lc.m, lc.pi, lc.ip)
+	}
+}
+
+// TestLostBalance checks global balance and the cuts {IP <= k} on larger
+// lost-sales chains with Poisson demand.
+func TestLostBalance(t *testing.T) {
+	for _, c := range []struct {
+		mean float64
+		L    int
+		pol  Policy
+	}{
+		{3, 2, Policy{Kind: BaseStock, OrderUpTo: 10}},
+		{2, 3, Policy{Kind: SS, ReorderPoint: 3, OrderUpTo: 9}},
+		{4, 1, Policy{Kind: SNQ, ReorderPoint: 5, OrderMultiple: 6}},
+		{6, 0, Policy{Kind: SS, ReorderPoint: 4, OrderUpTo: 20}},
+	} {
+		d := poisson(t, c.mean)
+		lc, _, err := solveLost(d, c.pol, c.L, Options{MaxStates: DefaultMaxStates})
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkBalance(t, c.pol.String(), lc.m, lc.pi, lc.ip)
+		e, err := Evaluate(lostSystem(d, c.L, 1, 5, 10, 1), c.pol, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if e.FlowBalance > 1e-12 {
+			t.Errorf("%v: flow balance off by %.3g", c.pol, e.FlowBalance)
+		}
+	}
+}
+
+func TestLostTooLarge(t *testing.T) {
+	sys := lostSystem(poisson(t, 5), 4, 1, 5, 0, 0)
+	_, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: 30}, Options{MaxStates: 100000})
+	var se *SizeError
+	if !errors.As(err, &se) {
+		t.Fatalf("err = %v, want a *SizeError", err)
+	}
+	if se.Bound != 324632 || se.Limit != 100000 || !strings.Contains(err.Error(), "--max-states") {
+		t.Errorf("err = %v", err)
+	}
+	// An absurd level is refused before any allocation.
+	if _, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: 1 << 40}, Options{}); !errors.As(err, &se) {
+		t.Errorf("err = %v, want a *SizeError", err)
+	}
+}
+
+// TestLostLongPipeline: with (top+1)^L beyond 63 bits the pipeline keys are
+// byte strings; the chain must still balance (common practice) and conserve
+// flow: units ordered = units served.
+func TestLostLongPipeline(t *testing.T) {
+	d := pmf(t, 0.5, 0.3, 0.2)
+	for _, L := range []int{31, 32} {
+		pol := Policy{Kind: BaseStock, OrderUpTo: 3}
+		lc, _, err := solveLost(d, pol, L, Options{MaxStates: DefaultMaxStates})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if ix := newStateIndex(lc.top, L, 1); (ix.small == nil) != (L >= 32) {
+			t.Fatalf("L = %d: uint64 keys %v, want them for 4^L < 2^63 only", L, ix.small != nil)
+		}
+		checkBalance(t, pol.String(), lc.m, lc.pi, lc.ip)
+		e, err := Evaluate(lostSystem(d, L, 1, 1, 0, 0), pol, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if e.FlowBalance > 1e-12 || e.States != lc.m.Len() {
+			t.Errorf("L = %d: flow balance %g, states %d", L, e.FlowBalance, e.States)
+		}
+	}
+}

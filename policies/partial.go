@@ -1,0 +1,145 @@
+package policies
+
+import (
+	"sort"
+
+	"ergostock/inventory"
+)
+
+// lossTable holds, for a demand law X on 0, 1, 2, ... and every integer y of
+// a range lo..hi, the first-order loss functions
+//
+//	below(y) = E[(y-X)^+] = sum_{k=0}^{y-1} P(X <= k),
+//	above(y) = E[(X-y)^+] = sum_{k>=y} P(X > k),
+//
+// and the tail over(y) = P(X > y), all in O(hi - lo + 1) time by running
+// sums (the standard loss-function identities; Zipkin 2000, Foundations of
+// Inventory Management, appendix C, from memory). Every sum adds
+// non-negative terms: the right tail starts from the distribution's closed
+// tail P(X >= hi+1), so small tails keep their relative accuracy and nothing
+// is truncated except the rapidly vanishing remainder of above(hi) (see
+// tailSum). A nil X stands for the law concentrated at 0.
+type lossTable struct {
+	lo    int
+	pmf   []float64 // P(X = pmf0 + i); pmf0 = 0 when lo <= 0
+	pmf0  int
+	below []float64 // E[(y-X)^+], y = lo..hi
+	above []float64 // E[(X-y)^+], y = lo..hi
+	over  []float64 // P(X > y), y = lo..hi
+	// neglected bounds the part of above(hi) that tailSum left out.
+	neglected float64
+}
+
+// tailSumCap is the most closed-tail terms summed for above(hi).
+const tailSumCap = 1 << 16
+
+func newLossTable(x inventory.Distribution, lo, hi int) lossTable {
+	if hi < lo {
+		hi = lo
+	}
+	n := hi - lo + 1
+	t := lossTable{lo: lo, below: make([]float64, n), above: make([]float64, n), over: make([]float64, n)}
+	if x == nil {
+		for i := range n {
+			y := lo + i
+			t.below[i] = float64(max(y, 0))
+			t.above[i] = float64(max(-y, 0))
+			if y < 0 {
+				t.over[i] = 1
+			}
+		}
+		t.pmf = []float64{1}
+		return t
+	}
+	mu := x.Mean()
+	h := max(hi, 0)
+	// Start the running sums at k0 <= lo, the largest point with
+	// k0 P(X < k0) <= 1e-300, so E[(k0-X)^+] <= 1e-300 is taken as 0 and a
+	// table far above 0 costs O(hi - k0), not O(hi).
+	k0 := 0
+	if lo > 0 {
+		k0 = max(sort.Search(lo+1, func(k int) bool { return float64(k)*x.CDF(k-1) > lowerNegligible })-1, 0)
+	}
+	m := h - k0 + 1
+	pmf := make([]float64, m) // P(X = k0 + i)
+	for i := range pmf {
+		pmf[i] = x.PMF(k0 + i)
+	}
+	t.pmf, t.pmf0 = pmf, k0
+	// P(X > k) for k = k0..h, downwards from the closed tail P(X >= h+1).
+	gt := make([]float64, m)
+	gt[m-1] = x.Tail(h + 1)
+	for i := m - 2; i >= 0; i-- {
+		gt[i] = gt[i+1] + pmf[i+1]
+	}
+	// E[(k-X)^+] = E[(k-1-X)^+] + P(X <= k-1), upwards from k0.
+	bw := make([]float64, m+1)
+	cdf := 0.0
+	if k0 > 0 {
+		cdf = x.CDF(k0 - 1)
+	}
+	for i := range m {
+		cdf += pmf[i]
+		bw[i+1] = bw[i] + cdf
+	}
+	// E[(X-k)^+] = P(X > k) + E[(X-k-1)^+], downwards from k = h.
+	ab := make([]float64, m)
+	rest, negl := tailSum(x, h+1, mu, bw[m])
+	t.neglected = negl
+	if k0 > 0 {
+		t.neglected = max(t.neglected, float64(k0)*x.CDF(k0-1))
+	}
+	ab[m-1] = gt[m-1] + rest
+	for i := m - 2; i >= 0; i-- {
+		ab[i] = ab[i+1] + gt[i]
+	}
+	for i := range n {
+		y := lo + i
+		if y < 0 {
+			t.above[i] = mu - float64(y)
+			t.over[i] = 1
+			continue
+		}
+		t.over[i] = gt[y-k0]
+		t.above[i] = ab[y-k0]
+		t.below[i] = bw[y-k0]
+	}
+	return t
+}
+
+// lowerNegligible bounds the mass E[(k0-X)^+] that a loss table starting
+// at k0 > 0 takes as 0.
+const lowerNegligible = 1e-300
+
+// tailSum returns sum_{k>=from} P(X > k) = E[(X-from)^+] from the closed
+// tails, stopping when a term no longer changes the sum, and a bound on the
+// part left out. If the terms decay too slowly to finish in tailSumCap
+// steps, it falls back to the identity E[(X-y)^+] = E[X] - y + E[(y-X)^+]
+// with below = E[(from-X)^+].
+func tailSum(x inventory.Distribution, from int, mu, below float64) (sum, neglected float64) {
+	// A truncated convolution counts its neglected mass in every tail;
+	// where that mass lies is unknown, so it is left out here and
+	// reported with the evaluation.
+	neg := inventory.Neglected(x)
+	prev := 0.0
+	for k := from; k < from+tailSumCap; k++ {
+		term := max(x.Tail(k+1)-neg, 0)
+		if term == 0 {
+			return sum, 0
+		}
+		sum += term
+		if term <= 1e-17*sum {
+			// Remaining terms decay at least geometrically at ratio term/prev.
+			if prev > term {
+				r := term / prev
+				return sum, term * r / (1 - r)
+			}
+			return sum, term
+		}
+		prev = term
+	}
+	return max(mu-float64(from)+below, 0), 0
+}
+
+// at returns the index of y in the table's range.
+func (t *lossTable) at(y int) int { return y - t.lo }
