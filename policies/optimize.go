@@ -1,19 +1,46 @@
 package policies
 
 import (
-	"errors"
+	"fmt"
 
 	"ergostock/inventory"
 )
 
-// SearchOptions tune the search for the cheapest policy.
+// DefaultMaxEvaluations caps the chain evaluations of a lost-sales search.
+const DefaultMaxEvaluations = 400
+
+// floorTol is the round-off allowed when the chain's figures confirm a floor
+// that the closed-form service figures of a backorder search found met.
+const floorTol = 1e-12
+
+// DefaultPatience is how many base-stock levels past the best a lost-sales
+// scan evaluates without improvement before it stops.
+const DefaultPatience = 5
+
+// SearchOptions tune the search for the cheapest policy. The zero value
+// searches without a service floor with the default evaluation options.
 type SearchOptions struct {
-	MinFillRate float64 // 0 means no floor
-	MaxStockout float64 // 0 means no ceiling on stockout probability
+	// MinFillRate, when in (0, 1), asks for fill_rate >= MinFillRate;
+	// 0 means no floor.
+	MinFillRate float64
+	// MaxStockout, when in (0, 1), asks for stockout_probability <=
+	// MaxStockout; 0 means no ceiling.
+	MaxStockout float64
 	Eval        Options
+	// MaxEvaluations caps the chains a lost-sales search evaluates;
+	// 0 means DefaultMaxEvaluations.
+	MaxEvaluations int
+	// Patience stops a lost-sales base-stock scan after this many levels
+	// past the best without improvement; 0 means DefaultPatience, and a
+	// negative value scans on to the proven cost bounds.
+	Patience int
 }
 
-// Search records how a search ran.
+// Search records how a search ran: how many candidate policies it costed
+// (closed-form costs in backorder mode, chain evaluations in lost mode, plus
+// the final evaluation of the optimum), by which method, within which
+// bounds on the levels (each a closed range [lo, hi]), and what the result
+// is guaranteed to be.
 type Search struct {
 	Evaluated int               `json:"policies_evaluated"`
 	Method    string            `json:"method"`
@@ -27,7 +54,208 @@ type Optimum struct {
 	Search Search
 }
 
-// Optimize finds the cheapest policy of the given kind (placeholder).
+// Optimize finds the cheapest policy of the given kind for sys, under the
+// service floors of opt, and evaluates it with Evaluate.
+//
+// Backorder mode (exact, global):
+//   - base-stock: the critical fractile, the smallest S with
+//     P(X_{L+1} <= S) >= b/(b+h) (Arrow, Harris and Marschak 1951; Veinott
+//     1966); under a floor, the smallest S at or above it that meets the
+//     floor, since the cost is convex in S and the fill rate rises and the
+//     stockout probability falls with S.
+//   - s-S: the algorithm of Zheng and Federgruen (1991), "Finding optimal
+//     (s,S) policies is about as simple as evaluating a single policy".
+//     Under a floor: for each width S-s the cost is convex and the service
+//     monotone in s, so the cheapest feasible s is found by walks; widths
+//     stop at a proven lower bound on the cost of every wider policy.
+//   - s-nQ: the position after review is uniform on the Q levels above s,
+//     so for each Q the cost is convex in s; Q stops where the mean of the
+//     Q smallest one-period costs, a lower bound for every s, reaches the
+//     best cost found. A floor raises s as for s-S.
+//
+// The purchase cost c E[D] is the same for every policy in backorder mode
+// (every unit demanded is ordered once) and does not move the optimum.
+//
+// Lost mode: searches that evaluate candidates on the exact chain (at most
+// MaxEvaluations of them, each once), starting from the backorder optimum
+// for the shortage cost b - c (a lost unit forgoes its purchase). Base-stock
+// scans S both ways between proven cost bounds (global optimum when both
+// bounds are reached; otherwise best of the scanned range, stopped by
+// Patience). s-S and s-nQ use a compass search: the result is a local
+// optimum (no cheaper policy among its eight unit neighbours), with no
+// global guarantee, because the lost-sales cost is not known to be convex.
+// Search.Guarantee says which case applies.
+//
+// Costs h <= 0 or b <= 0 are refused (no finite optimum, or none worth
+// finding); so are floors outside (0, 1), as *inventory.FieldError values
+// naming min_fill_rate or max_stockout_probability. When no policy within
+// the bounds meets a floor, the error says so and gives the bounds. The
+// returned policy's floors are confirmed on Evaluate's figures (to 1e-12).
 func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, error) {
-	return nil, errors.New("optimize: not implemented yet")
+	if err := sys.Validate(); err != nil {
+		return nil, err
+	}
+	if !(sys.Holding > 0) {
+		return nil, &inventory.FieldError{Field: "holding_cost", Value: fmt.Sprint(sys.Holding),
+			Want: "a holding cost > 0 to optimize (with h = 0 more stock is never worse)"}
+	}
+	if !(sys.Shortage > 0) {
+		return nil, &inventory.FieldError{Field: "shortage_cost", Value: fmt.Sprint(sys.Shortage),
+			Want: "a shortage cost > 0 to optimize (with b = 0 the cheapest policy holds nothing)"}
+	}
+	fl := floors{minFill: opt.MinFillRate, maxStockout: opt.MaxStockout}
+	for _, f := range []struct {
+		name string
+		v    float64
+	}{{"min_fill_rate", fl.minFill}, {"max_stockout_probability", fl.maxStockout}} {
+		if f.v != 0 && !(f.v > 0 && f.v < 1) {
+			return nil, &inventory.FieldError{Field: f.name, Value: fmt.Sprint(f.v), Want: "a probability strictly between 0 and 1"}
+		}
+	}
+	switch kind {
+	case BaseStock, SS, SNQ:
+	default:
+		return nil, &inventory.FieldError{Field: "policy", Value: string(kind), Want: "base-stock, s-S or s-nQ"}
+	}
+	if opt.MaxEvaluations < 0 {
+		return nil, fmt.Errorf("evaluation cap %d: want a count >= 1 (0 for the default %d)", opt.MaxEvaluations, DefaultMaxEvaluations)
+	}
+	if opt.MaxEvaluations == 0 {
+		opt.MaxEvaluations = DefaultMaxEvaluations
+	}
+	var (
+		o   *Optimum
+		err error
+	)
+	if sys.Mode == inventory.Lost {
+		o, err = optimizeLost(sys, kind, fl, opt)
+	} else {
+		o, err = optimizeBackorder(sys, kind, fl, opt)
+	}
+	if err != nil {
+		return nil, err
+	}
+	if fl.violation(o.Figures.FillRate, o.Figures.StockoutProbability) > floorTol {
+		// The search's own service figures said the floor is met; the chain
+		// disagrees beyond round-off. Never return a policy that misses it.
+		return nil, fmt.Errorf("%v: the evaluated fill rate %.12g and stockout probability %.12g miss the floor %v that the search found met",
+			o.Policy, o.Figures.FillRate, o.Figures.StockoutProbability, fl)
+	}
+	return o, nil
+}
+
+// optimizeBackorder runs the exact backorder searches and evaluates the
+// optimum on the chain.
+func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOptions) (*Optimum, error) {
+	mo, err := newBOModel(sys)
+	if err != nil {
+		return nil, err
+	}
+	var (
+		p  Policy
+		sr Search
+	)
+	switch kind {
+	case BaseStock:
+		p, sr, err = mo.baseStock(fl)
+	case SS:
+		p, sr, err = mo.optimizeSS(fl)
+	case SNQ:
+		p, sr, err = mo.snqSearch(sys.Demand, fl)
+	}
+	if err != nil {
+		return nil, err
+	}
+	ev, err := Evaluate(sys, p, opt.Eval)
+	if err != nil {
+		return nil, fmt.Errorf("evaluating the optimum: %w", err)
+	}
+	sr.Evaluated++
+	return &Optimum{Evaluation: *ev, Search: sr}, nil
+}
+
+// baseStock returns the critical fractile, raised to the smallest level
+// meeting the floors.
+func (mo *boModel) baseStock(fl floors) (Policy, Search, error) {
+	S, err := mo.fractile()
+	if err != nil {
+		return Policy{}, Search{}, err
+	}
+	lo := S
+	n := 1
+	for {
+		_, fill, so := mo.ssService(S-1, S)
+		if fl.meets(fill, so) {
+			break
+		}
+		if S-lo >= maxLevel {
+			return Policy{}, Search{}, noneMeets(fl, map[string][2]int{"order_up_to": {lo, S}})
+		}
+		S++
+		n++
+	}
+	sr := Search{
+		Evaluated: n,
+		Method:    "critical fractile of lead-time-plus-one-period demand",
+		Bounds:    map[string][2]int{"order_up_to": {lo, S}},
+		Guarantee: "global optimum (exact): the cost is convex in S with its smallest minimiser at the critical fractile",
+	}
+	if !fl.none() {
+		sr.Method += ", raised to the smallest level meeting the floor"
+		sr.Guarantee = "global optimum under the floor (exact): the cost is convex in S, the fill rate non-decreasing and the stockout probability non-increasing in S"
+	}
+	return Policy{Kind: BaseStock, OrderUpTo: S}, sr, nil
+}
+
+// optimizeSS runs Zheng-Federgruen and, if its optimum misses a floor, the
+// constrained search.
+func (mo *boModel) optimizeSS(fl floors) (Policy, Search, error) {
+	r, err := mo.zhengFedergruen()
+	if err != nil {
+		return Policy{}, Search{}, err
+	}
+	sr := Search{
+		Evaluated: r.computed,
+		Method:    "Zheng-Federgruen (1991)",
+		Bounds:    map[string][2]int{"reorder_point": {r.sLo, max(r.ystar-1, r.s)}, "order_up_to": {r.ystar, r.sStop - 1}},
+		Guarantee: "global optimum over all s < S (exact; proved by Zheng and Federgruen 1991)",
+	}
+	p := Policy{Kind: SS, ReorderPoint: r.s, OrderUpTo: r.S}
+	if fl.none() {
+		return p, sr, nil
+	}
+	_, fill, so := mo.ssService(r.s, r.S)
+	if fl.meets(fill, so) {
+		sr.Guarantee = "global optimum under the floor (exact): the unconstrained optimum meets it"
+		return p, sr, nil
+	}
+	c, err := mo.ssConstrained(fl, r)
+	if err != nil {
+		return Policy{}, Search{}, err
+	}
+	return Policy{Kind: SS, ReorderPoint: c.s, OrderUpTo: c.S}, Search{
+		Evaluated: r.computed + c.computed,
+		Method:    "Zheng-Federgruen (1991), then for each width S-s the cheapest reorder point meeting the floor",
+		Bounds:    map[string][2]int{"order_up_to_minus_reorder_point": {1, c.nmax}},
+		Guarantee: "global optimum under the floor (exact): for each width the cost is convex and the service monotone in s; widths beyond the bound provably cost more",
+	}, nil
+}
+
+// noneMeets is the error when no policy within the bounds meets the floors.
+func noneMeets(fl floors, bounds map[string][2]int) error {
+	return fmt.Errorf("no policy within the bounds %v meets %v", formatBounds(bounds), fl)
+}
+
+// formatBounds prints bounds in a stable order.
+func formatBounds(b map[string][2]int) string {
+	s := ""
+	for _, k := range []string{"reorder_point", "order_up_to", "order_multiple", "order_up_to_minus_reorder_point"} {
+		if v, ok := b[k]; ok {
+			if s != "" {
+				s += ", "
+			}
+			s += fmt.Sprintf("%s %d..%d", k, v[0], v[1])
+		}
+	}
+	return s
 }

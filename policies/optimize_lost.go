@@ -1,0 +1,377 @@
+package policies
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"ergostock/inventory"
+)
+
+// lostCandidate is one memoised chain evaluation of a lost-sales search.
+type lostCandidate struct {
+	ev   *Evaluation
+	err  error
+	cost float64 // total cost; +Inf when the chain could not be evaluated
+	viol float64 // how far the figures miss the floors (0 when met)
+}
+
+// better orders candidates: any feasible one beats any infeasible one;
+// feasible ones by cost, infeasible ones by their violation of the floors.
+func (a lostCandidate) better(b lostCandidate) bool {
+	switch {
+	case a.err != nil:
+		return false
+	case b.err != nil:
+		return true
+	case a.viol == 0 && b.viol == 0:
+		return a.cost < b.cost
+	case a.viol == 0:
+		return true
+	case b.viol == 0:
+		return false
+	}
+	return a.viol < b.viol
+}
+
+// lostSearch evaluates candidates on the exact lost-sales chain, once each.
+type lostSearch struct {
+	sys   inventory.System
+	opt   SearchOptions
+	fl    floors
+	memo  map[Policy]lostCandidate
+	evals int
+}
+
+var errCap = errors.New("evaluation cap reached")
+
+// eval returns the memoised evaluation of p; errCap once the cap is spent.
+// A chain too large to build (a *SizeError) is a candidate that loses to
+// every evaluated one, not a failure of the search.
+func (ls *lostSearch) eval(p Policy) (lostCandidate, error) {
+	if c, ok := ls.memo[p]; ok {
+		return c, nil
+	}
+	if ls.evals >= ls.opt.MaxEvaluations {
+		return lostCandidate{}, errCap
+	}
+	ls.evals++
+	ev, err := Evaluate(ls.sys, p, ls.opt.Eval)
+	var c lostCandidate
+	if err != nil {
+		var se *SizeError
+		if !errors.As(err, &se) {
+			return c, err
+		}
+		c = lostCandidate{err: err, cost: math.Inf(1), viol: math.Inf(1)}
+	} else {
+		c = lostCandidate{ev: ev, cost: ev.Figures.TotalCost, viol: ls.fl.violation(ev.Figures.FillRate, ev.Figures.StockoutProbability)}
+	}
+	ls.memo[p] = c
+	return c, nil
+}
+
+// optimizeLost dispatches the lost-sales searches.
+func optimizeLost(sys inventory.System, kind Kind, fl floors, opt SearchOptions) (*Optimum, error) {
+	// The backorder optimum with shortage cost b - c starts the search: a
+	// lost unit costs b but saves its purchase c.
+	bo := sys
+	bo.Mode = inventory.Backorder
+	bo.Shortage = max(sys.Shortage-sys.UnitCost, sys.Shortage*1e-6)
+	mo, err := newBOModel(bo)
+	if err != nil {
+		return nil, err
+	}
+	// The lost-sales lower bounds use X_{L+1} and D of the real system.
+	lost, err := newBOModel(sys)
+	if err != nil {
+		return nil, err
+	}
+	ls := &lostSearch{sys: sys, opt: opt, fl: fl, memo: map[Policy]lostCandidate{}}
+	// Under a floor the start is the backorder optimum under the same floor
+	// (backorder service is a guide to lost-sales service, not equal to it).
+	switch kind {
+	case BaseStock:
+		p, _, err := mo.baseStock(fl)
+		if err != nil {
+			return nil, err
+		}
+		return ls.baseStock(lost, max(p.OrderUpTo, 0))
+	case SS:
+		p, _, err := mo.optimizeSS(fl)
+		if err != nil {
+			return nil, err
+		}
+		s := max(p.ReorderPoint, -1)
+		S := max(p.OrderUpTo, s+1)
+		return ls.pattern(lost, ssCoords{}, [2]int{s, S})
+	default:
+		p, _, err := mo.snqSearch(bo.Demand, fl)
+		if err != nil {
+			return nil, err
+		}
+		return ls.pattern(lost, snqCoords{}, [2]int{max(p.ReorderPoint, -1), p.OrderMultiple})
+	}
+}
+
+// lostLower returns bounds on the lost-sales cost of any policy whose
+// inventory position after review is at least y and at most top:
+//
+//	cost >= h E[(y - X_{L+1})^+] + min(b, c) E[D]             (upper),
+//	cost >= min(b, c) E[D] + (b - c)^+ E[(D - top)^+]          (lower).
+//
+// The first holds because all stock counted in the position at a review
+// has arrived L periods later and only demand can have taken it away, so
+// on-hand at the end of that period is at least (y - X_{L+1})^+; the
+// second because on-hand before demand never exceeds top, so at least
+// (D - top)^+ is lost each period; and b E[lost] + c E[ordered] =
+// c E[D] + (b - c) E[lost] >= min(b, c) E[D] since 0 <= E[lost] <= E[D].
+func lostLower(mo *boModel, y, top int) (upper, lower float64) {
+	base := min(mo.b, mo.c) * mo.mu
+	return mo.h*mo.x1.below(y) + base, base + max(mo.b-mo.c, 0)*lostAbove(mo, top)
+}
+
+// lostAbove returns E[(D - top)^+] for single-period demand.
+func lostAbove(mo *boModel, top int) float64 {
+	// E[(D-top)^+] = sum_{k > top} P(D >= k), from the kernel's pmf.
+	p0 := 1 / mo.m[0]
+	q := 1 - p0 // q[i] = P(D = i)/q
+	var v float64
+	for i := max(top+1, mo.qlo); i < len(mo.q); i++ {
+		v += float64(i-top) * mo.q[i] * q
+	}
+	return v
+}
+
+// baseStock scans base-stock levels in lost mode, upwards from S0 and then
+// downwards from S0-1. A scan in either direction stops at the first of:
+//
+//   - the proven bound: upwards, the first S whose upper bound of lostLower
+//     (with y = S, the position after every review) reaches the cheapest
+//     feasible cost found; downwards, S = 0 or the first S whose lower
+//     bound (with top = S) does. Both bounds are monotone in S, so no level
+//     beyond is cheaper;
+//   - patience: Patience consecutive levels (default DefaultPatience) past
+//     the cheapest feasible level so far without a cheaper one (skipped
+//     when Patience < 0);
+//   - the evaluation cap.
+//
+// When both scans end at their proven bounds the result is the global
+// optimum over all S >= 0; otherwise it is the best level of the scanned
+// range, and the lost-sales cost is not known to be convex or unimodal in S,
+// so levels outside that range are not proven dearer.
+func (ls *lostSearch) baseStock(mo *boModel, S0 int) (*Optimum, error) {
+	best := lostCandidate{err: errCap}
+	hi, lo := S0, S0
+	capped := false
+	proven := [2]bool{}
+	patience := ls.opt.Patience
+	if patience == 0 {
+		patience = DefaultPatience
+	}
+	// try evaluates S; improved reports a new best.
+	try := func(S int) (ok, improved bool, err error) {
+		c, err := ls.eval(Policy{Kind: BaseStock, OrderUpTo: S})
+		if err == errCap {
+			capped = true
+			return false, false, nil
+		}
+		if err != nil {
+			return false, false, err
+		}
+		if c.better(best) {
+			best = c
+			return true, true, nil
+		}
+		return true, false, nil
+	}
+	for dir := range 2 {
+		step, S := 1, S0
+		if dir == 1 {
+			step, S = -1, S0-1
+		}
+		since := 0
+		for ; ; S += step {
+			if S < 0 {
+				proven[dir] = true
+				break
+			}
+			if best.err == nil && best.viol == 0 {
+				up, low := lostLower(mo, S, S)
+				if (dir == 0 && up >= best.cost) || (dir == 1 && low >= best.cost) {
+					proven[dir] = true
+					break
+				}
+				if patience > 0 && since >= patience {
+					break
+				}
+			}
+			if S-S0 >= maxLevel {
+				break
+			}
+			ok, improved, err := try(S)
+			if err != nil {
+				return nil, err
+			}
+			if !ok {
+				break
+			}
+			if improved {
+				since = 0
+			} else {
+				since++
+			}
+			if dir == 0 {
+				hi = S
+			} else {
+				lo = S
+			}
+		}
+		if capped {
+			break
+		}
+	}
+	bounds := map[string][2]int{"order_up_to": {lo, hi}}
+	if best.err != nil {
+		return nil, fmt.Errorf("no base-stock level within %s could be evaluated: %w", formatBounds(bounds), best.err)
+	}
+	if best.viol > 0 {
+		return nil, ls.noneMeets(bounds, capped)
+	}
+	var g string
+	switch {
+	case proven[0] && proven[1]:
+		g = "global optimum over all S >= 0 (exact chain; levels outside the scan are excluded by proven cost bounds)"
+	case capped:
+		g = fmt.Sprintf("best of the levels scanned before the cap of %d evaluations; no global guarantee", ls.opt.MaxEvaluations)
+	default:
+		g = fmt.Sprintf("best of the levels scanned, which stopped %d levels past the best without improvement where the proven cost bounds were not yet reached; the lost-sales cost is not known to be convex in S, so there is no global guarantee", patience)
+	}
+	return &Optimum{Evaluation: *best.ev, Search: Search{
+		Evaluated: ls.evals,
+		Method:    "scan of base-stock levels on the exact lost-sales chain from the critical fractile for b - c",
+		Bounds:    bounds,
+		Guarantee: g,
+	}}, nil
+}
+
+// noneMeets is the error of a lost-sales search that found no policy
+// meeting the floors.
+func (ls *lostSearch) noneMeets(bounds map[string][2]int, capped bool) error {
+	err := noneMeets(ls.fl, bounds)
+	if capped {
+		return fmt.Errorf("%w (the cap of %d evaluations stopped the search; raise --max-evaluations)", err, ls.opt.MaxEvaluations)
+	}
+	return err
+}
+
+// coords maps a point of a two-dimensional search to a policy.
+type coords interface {
+	policy(x [2]int) (Policy, bool) // false when x is not a legal policy
+	names() [2]string
+}
+
+type ssCoords struct{}
+
+func (ssCoords) policy(x [2]int) (Policy, bool) {
+	return Policy{Kind: SS, ReorderPoint: x[0], OrderUpTo: x[1]}, x[0] >= -1 && x[1] > x[0]
+}
+func (ssCoords) names() [2]string { return [2]string{"reorder_point", "order_up_to"} }
+
+type snqCoords struct{}
+
+func (snqCoords) policy(x [2]int) (Policy, bool) {
+	return Policy{Kind: SNQ, ReorderPoint: x[0], OrderMultiple: x[1]}, x[0] >= -1 && x[1] >= 1
+}
+func (snqCoords) names() [2]string { return [2]string{"reorder_point", "order_multiple"} }
+
+// pattern is a compass (pattern) search on the exact lost-sales chain
+// (Hooke and Jeeves 1961; Kolda, Lewis and Torczon, SIAM Review 45(3),
+// 2003): from the start it polls the eight neighbours at distance delta in
+// each coordinate, moves to the best improving one, and halves delta when
+// none improves; delta starts at about a quarter of the standard deviation
+// of X_{L+1} and the search stops when no neighbour at distance 1 improves.
+// Every chain is evaluated once (memoised), and at most MaxEvaluations
+// chains are evaluated.
+//
+// What is guaranteed: the result is no worse than any of its eight unit
+// neighbours (a local optimum), or, if the cap stopped the search, the best
+// policy evaluated. The lost-sales cost is not known to be convex or
+// unimodal in (s, S) or (s, Q): there is no global guarantee. Reorder
+// points are kept at -1 or above (the position never falls below 0).
+func (ls *lostSearch) pattern(mo *boModel, cs coords, x0 [2]int) (*Optimum, error) {
+	delta := 1
+	if v := ls.sys.Demand.Variance() * float64(ls.sys.LeadTime+1); v > 0 && isFinite(v) {
+		delta = max(1, int(math.Sqrt(v)/4))
+	}
+	lo, hi := x0, x0
+	note := func(x [2]int) {
+		for i := range 2 {
+			lo[i], hi[i] = min(lo[i], x[i]), max(hi[i], x[i])
+		}
+	}
+	capped := false
+	at := func(x [2]int) (lostCandidate, bool, error) {
+		p, ok := cs.policy(x)
+		if !ok {
+			return lostCandidate{}, false, nil
+		}
+		c, err := ls.eval(p)
+		if err == errCap {
+			capped = true
+			return c, false, nil
+		}
+		if err != nil {
+			return c, false, err
+		}
+		note(x)
+		return c, true, nil
+	}
+	x := x0
+	cur, ok, err := at(x)
+	if err != nil {
+		return nil, err
+	}
+	if !ok {
+		return nil, fmt.Errorf("lost-sales search: the starting policy %v could not be evaluated", x)
+	}
+	for !capped {
+		bestX, bestC := x, cur
+		for _, d := range [8][2]int{{-1, 0}, {1, 0}, {0, -1}, {0, 1}, {-1, -1}, {1, 1}, {-1, 1}, {1, -1}} {
+			y := [2]int{x[0] + d[0]*delta, x[1] + d[1]*delta}
+			c, ok, err := at(y)
+			if err != nil {
+				return nil, err
+			}
+			if ok && c.better(bestC) {
+				bestX, bestC = y, c
+			}
+		}
+		if bestX != x {
+			x, cur = bestX, bestC
+			continue
+		}
+		if delta == 1 {
+			break
+		}
+		delta /= 2
+	}
+	n := cs.names()
+	bounds := map[string][2]int{n[0]: {lo[0], hi[0]}, n[1]: {lo[1], hi[1]}}
+	if cur.err != nil {
+		return nil, fmt.Errorf("no policy within %s could be evaluated: %w", formatBounds(bounds), cur.err)
+	}
+	if cur.viol > 0 {
+		return nil, ls.noneMeets(bounds, capped)
+	}
+	g := "local optimum: no cheaper policy among its eight unit neighbours on the exact chain; the lost-sales cost is not known to be convex, so there is no global guarantee"
+	if capped {
+		g = fmt.Sprintf("best policy evaluated before the cap of %d evaluations; not verified as a local optimum; no global guarantee", ls.opt.MaxEvaluations)
+	}
+	return &Optimum{Evaluation: *cur.ev, Search: Search{
+		Evaluated: ls.evals,
+		Method:    "compass search on the exact lost-sales chain from the backorder optimum for b - c",
+		Bounds:    bounds,
+		Guarantee: g,
+	}}, nil
+}
