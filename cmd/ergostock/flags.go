@@ -23,7 +23,7 @@ func systemFlags() []cli.Flag {
 		&cli.Float64Flag{Name: "order-cost", Usage: "fixed cost K per order", Value: 0},
 		&cli.Float64Flag{Name: "unit-cost", Usage: "purchase cost c per unit ordered", Value: 0},
 		&cli.StringFlag{Name: "unmet", Usage: "what happens to demand not served at once: backorder or lost", Value: "backorder"},
-		&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build", Value: policies.DefaultMaxStates},
+		&cli.IntFlag{Name: "max-states", Usage: "largest chain to build, in states (lost-sales chains grow fast with the lead time)", Value: policies.DefaultMaxStates},
 	}
 }
 

@@ -11,6 +11,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 )
@@ -55,12 +56,49 @@ func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
 		},
 		ExitErrHandler: func(*cli.Context, error) {}, // main reports errors itself
 	}
+	for _, cmd := range app.Commands {
+		oneLineUsage(cmd)
+	}
 	return app
+}
+
+// oneLineUsage makes every command-line mistake of cmd a one-line usage
+// error with exit status 2: a flag that does not parse, a missing required
+// flag (checked here rather than by the cli package, which would print the
+// whole help text and exit 1) and a stray argument.
+func oneLineUsage(cmd *cli.Command) {
+	name := cmd.Name
+	if cmd.OnUsageError == nil {
+		cmd.OnUsageError = func(_ *cli.Context, err error, _ bool) error {
+			return usageErr("%s: %v (see --help)", name, err)
+		}
+	}
+	required := unrequire(cmd.Flags)
+	action := cmd.Action
+	if action == nil {
+		return
+	}
+	cmd.Action = func(c *cli.Context) error {
+		for _, f := range required {
+			if !c.IsSet(f) {
+				return usageErr("%s: --%s is required (see --help)", name, f)
+			}
+		}
+		if c.NArg() > 0 {
+			return usageErr("%s: unexpected argument %q (every input is given by a flag)", name, c.Args().First())
+		}
+		return action(c)
+	}
 }
 
 // run executes the command line and returns the exit status.
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
-	err := newApp(stdin, stdout, stderr).Run(args)
+	app := newApp(stdin, stdout, stderr)
+	if len(args) > 1 && !strings.HasPrefix(args[1], "-") && args[1] != "help" && app.Command(args[1]) == nil {
+		fmt.Fprintf(stderr, "ergostock: unknown command %q: want one of %s (see --help)\n", args[1], commandNames(app))
+		return 2
+	}
+	err := app.Run(args)
 	if err == nil {
 		return 0
 	}
@@ -70,6 +108,15 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		return ee.code
 	}
 	return 1
+}
+
+// commandNames lists the app's commands for messages.
+func commandNames(app *cli.App) string {
+	var names []string
+	for _, c := range app.Commands {
+		names = append(names, c.Name)
+	}
+	return strings.Join(names, ", ")
 }
 
 // oneLine folds a message onto a single line.
