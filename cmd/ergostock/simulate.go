@@ -1,10 +1,249 @@
 package main
 
-import "github.com/urfave/cli/v2"
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"unicode/utf8"
 
-// simulateCommand is a placeholder until the command is built.
+	"github.com/urfave/cli/v2"
+
+	"ergostock/inventory"
+	"ergostock/policies"
+	"ergostock/policies/sim"
+)
+
+// simulateCommand runs the Monte Carlo simulator and sets each interval
+// beside the exact value when the exact engine can evaluate the case.
 func simulateCommand() *cli.Command {
-	return &cli.Command{Name: "simulate", Usage: "not yet available", Action: func(*cli.Context) error {
-		return usageErr("simulate: not yet available")
-	}}
+	flags := append(systemFlags(), policyFlags()...)
+	flags = append(flags,
+		&cli.IntFlag{Name: "periods", Usage: "periods simulated per replication, warm-up included", Value: sim.DefaultPeriods},
+		&cli.IntFlag{Name: "replications", Usage: "independent replications (>= 2)", Value: sim.DefaultReplications},
+		&cli.IntFlag{Name: "seed", Usage: "seed of the random streams (>= 0)", Value: 1},
+		&cli.IntFlag{Name: "warmup", Usage: "leading periods of each replication left out", DefaultText: "a tenth of --periods"},
+		&cli.IntFlag{Name: "workers", Usage: "replications run at once (0: all cores); never changes the output", Value: 0},
+		&cli.BoolFlag{Name: "json", Usage: "print every figure as {\"mean\", \"ci95\"} in JSON"},
+	)
+	return &cli.Command{
+		Name:  "simulate",
+		Usage: "simulate a policy period by period and report every figure with a 95% confidence interval",
+		Description: "Plays review, receipt, demand and charges period by period on independent random streams\n" +
+			"derived from --seed, and reports each figure's mean across replications with the half-width\n" +
+			"of its 95% Student t interval. The table sets the exact value beside each interval and marks\n" +
+			"those outside it.",
+		Flags:  flags,
+		Action: simulateAction,
+		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
+			return usageErr("simulate: %v (see ergostock simulate --help)", err)
+		},
+	}
+}
+
+func simulateAction(c *cli.Context) error {
+	sys, err := systemFromFlags(c)
+	if err != nil {
+		return err
+	}
+	p, err := policyFromFlags(c, sys.Mode)
+	if err != nil {
+		return err
+	}
+	seed := c.Int("seed")
+	if seed < 0 {
+		return usageErr("--seed %d: want an integer >= 0", seed)
+	}
+	opt := sim.Options{
+		Periods:      c.Int("periods"),
+		Warmup:       sim.DefaultWarmup(c.Int("periods")),
+		Replications: c.Int("replications"),
+		Seed:         uint64(seed),
+		Workers:      c.Int("workers"),
+	}
+	if c.IsSet("warmup") {
+		opt.Warmup = c.Int("warmup")
+	}
+	res, err := sim.Run(sys, p, opt)
+	if err != nil {
+		return flagErr(err)
+	}
+	out := c.App.Writer
+	if c.Bool("json") {
+		return simWriteJSON(out, sys, p, res)
+	}
+	var exact *inventory.Figures
+	if ev, err := policies.Evaluate(sys, p, evalOptions(c)); err != nil {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: %v\n", oneLine(err.Error()))
+	} else {
+		exact = &ev.Figures
+	}
+	return simWriteTable(out, sys, p, res, exact)
+}
+
+// simPolicy is the JSON form of a policy: its type and the levels that apply.
+type simPolicy struct {
+	Type          policies.Kind `json:"type"`
+	ReorderPoint  *int          `json:"reorder_point,omitempty"`
+	OrderUpTo     *int          `json:"order_up_to,omitempty"`
+	OrderMultiple *int          `json:"order_multiple,omitempty"`
+}
+
+func simPolicyJSON(p policies.Policy) simPolicy {
+	j := simPolicy{Type: p.Kind}
+	switch p.Kind {
+	case policies.BaseStock:
+		j.OrderUpTo = &p.OrderUpTo
+	case policies.SS:
+		j.ReorderPoint, j.OrderUpTo = &p.ReorderPoint, &p.OrderUpTo
+	case policies.SNQ:
+		j.ReorderPoint, j.OrderMultiple = &p.ReorderPoint, &p.OrderMultiple
+	}
+	return j
+}
+
+// simSettings records how the simulation ran; it holds nothing that depends
+// on the number of workers.
+type simSettings struct {
+	Periods      int     `json:"periods"`
+	Warmup       int     `json:"warmup"`
+	Replications int     `json:"replications"`
+	Seed         uint64  `json:"seed"`
+	Confidence   float64 `json:"confidence"`
+	TQuantile    float64 `json:"t_quantile"`
+	Demand       string  `json:"demand"`
+	LeadTime     int     `json:"lead_time"`
+	Unmet        string  `json:"unmet"`
+	HoldingCost  float64 `json:"holding_cost"`
+	ShortageCost float64 `json:"shortage_cost"`
+	OrderCost    float64 `json:"order_cost"`
+	UnitCost     float64 `json:"unit_cost"`
+}
+
+// simNumber encodes a float as JSON, NaN (an undefined figure) as null.
+func simNumber(v float64) json.RawMessage {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return json.RawMessage("null")
+	}
+	b, _ := json.Marshal(v)
+	return b
+}
+
+// simWriteJSON prints every figure as {"mean": x, "ci95": h} under its
+// SPEC name, in the fixed order of Figures.Fields, then policy and settings.
+func simWriteJSON(w io.Writer, sys inventory.System, p policies.Policy, res *sim.Result) error {
+	var b bytes.Buffer
+	b.WriteByte('{')
+	hw := res.HalfWidth.Fields()
+	for i, f := range res.Mean.Fields() {
+		fmt.Fprintf(&b, `%q:{"mean":%s,"ci95":%s},`, f.Name, simNumber(f.Value), simNumber(hw[i].Value))
+	}
+	pol, err := json.Marshal(simPolicyJSON(p))
+	if err != nil {
+		return err
+	}
+	set, err := json.Marshal(simSettings{
+		Periods: res.Periods, Warmup: res.Warmup, Replications: res.Replications, Seed: res.Seed,
+		Confidence: res.Level, TQuantile: res.TQuantile,
+		Demand: sys.Demand.String(), LeadTime: sys.LeadTime, Unmet: string(sys.Mode),
+		HoldingCost: sys.Holding, ShortageCost: sys.Shortage, OrderCost: sys.OrderCost, UnitCost: sys.UnitCost,
+	})
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(&b, `"policy":%s,"settings":%s}`, pol, set)
+	return writeJSON(w, json.RawMessage(b.Bytes()))
+}
+
+// simDecimals is the number of decimals that shows a half-width to two
+// significant digits (at most 9; 4 when the half-width is 0 or undefined).
+func simDecimals(h float64) int {
+	if !(h > 0) || math.IsInf(h, 0) {
+		return 4
+	}
+	return min(max(1-int(math.Floor(math.Log10(h))), 0), 9)
+}
+
+// simWriteTable prints the aligned table: figure | mean ± ci95 | exact |
+// mark | unit, with a summary of how many exact values fall outside.
+func simWriteTable(w io.Writer, sys inventory.System, p policies.Policy, res *sim.Result, exact *inventory.Figures) error {
+	fmt.Fprintf(w, "simulated %v: demand %s, lead time %d, unmet %s, h=%g b=%g K=%g c=%g\n",
+		p, sys.Demand, sys.LeadTime, sys.Mode, sys.Holding, sys.Shortage, sys.OrderCost, sys.UnitCost)
+	fmt.Fprintf(w, "%d replications of %d periods (first %d discarded), seed %d; %g%% intervals, Student t with %d df (t = %.4f)\n\n",
+		res.Replications, res.Periods, res.Warmup, res.Seed, 100*res.Level, res.Replications-1, res.TQuantile)
+	rows := [][]string{{"figure", "mean", "", "ci95", "exact", "", "unit"}}
+	var ex []inventory.Field
+	if exact != nil {
+		ex = exact.Fields()
+	}
+	hw := res.HalfWidth.Fields()
+	compared, outside := 0, 0
+	for i, f := range res.Mean.Fields() {
+		h := hw[i].Value
+		d := simDecimals(h)
+		row := []string{f.Label, simFormat(f.Value, d), "±", simFormat(h, d), "", "", f.Unit}
+		if ex != nil {
+			e := ex[i].Value
+			row[4] = simFormat(e, d+2)
+			// The exact engine is exact to round-off: allow 1e-9 relative.
+			tol := 1e-9 * math.Max(1, math.Abs(e))
+			// Figures that cannot vary (0 by the mode, or every order of size Q) are not compared.
+			if !(h == 0 && math.Abs(e-f.Value) <= tol) && !math.IsNaN(h) {
+				compared++
+				if !(math.Abs(e-f.Value) <= h+tol) {
+					outside++
+					row[5] = "OUTSIDE"
+				}
+			}
+		} else {
+			row[4] = "-"
+		}
+		rows = append(rows, row)
+	}
+	simAlign(w, rows)
+	if exact != nil {
+		fmt.Fprintf(w, "\nexact values outside their interval: %d of %d (about 1 in 20 is expected by chance at %g%%)\n",
+			outside, compared, 100*res.Level)
+	}
+	return nil
+}
+
+func simFormat(v float64, d int) string {
+	if math.IsNaN(v) {
+		return "undefined"
+	}
+	return fmt.Sprintf("%.*f", d, v)
+}
+
+// simAlign prints rows with the first and last columns left-aligned and
+// the others right-aligned, two spaces apart (one around "±").
+func simAlign(w io.Writer, rows [][]string) {
+	width := make([]int, len(rows[0]))
+	for _, r := range rows {
+		for j, c := range r {
+			width[j] = max(width[j], utf8.RuneCountInString(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for j, c := range r {
+			pad := strings.Repeat(" ", width[j]-utf8.RuneCountInString(c))
+			switch {
+			case j == 0 || j == len(r)-1:
+				b.WriteString(c + pad)
+			default:
+				b.WriteString(pad + c)
+			}
+			switch {
+			case j == len(r)-1:
+			case j == 1 || j == 2:
+				b.WriteString(" ")
+			default:
+				b.WriteString("  ")
+			}
+		}
+		fmt.Fprintln(w, strings.TrimRight(b.String(), " "))
+	}
 }

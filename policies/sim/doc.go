@@ -1,0 +1,63 @@
+// Package sim is an independent Monte Carlo simulator of the periodic-review
+// inventory system: it plays the events of each period one by one (review,
+// receive, demand, end-of-period charges) and reports every long-run figure
+// as a mean across independent replications with a Student t confidence
+// interval.
+//
+// The simulator shares only the demand distribution and the policy's order
+// rule (policies.Policy.Order) with the exact engine, so that each checks the
+// other. It never builds a Markov chain.
+//
+// # Events of a period
+//
+// With on-hand stock OH, backorders BO and the orders outstanding, period t
+// runs as follows.
+//
+//  1. Review: the inventory position IP = OH + on-order - BO is computed, the
+//     policy orders q = Order(IP); a fixed cost K is incurred when q > 0 and
+//     a purchase cost c per unit ordered.
+//  2. Receive: the order placed at the review of period t-L arrives (with
+//     L = 0 the order just placed).
+//  3. Demand D_t is drawn and served from on-hand stock. In backorder mode
+//     the arrival first clears outstanding backorders and the unserved
+//     demand is backordered; in lost mode the unserved demand is lost.
+//  4. Charges: h per unit on hand at the end of the period; b per unit
+//     backordered at the end of the period, or b per unit lost in it.
+//
+// Each replication starts with the inventory position at the policy's top
+// level (all of it on hand, nothing on order) and discards a warm-up of
+// periods before it starts counting.
+//
+// # Figures and intervals
+//
+// Within a replication every figure is a ratio of exact integer sums over
+// the counted periods: the fill rate is units served at once over units
+// demanded (in backorder mode "at once" means min(D, on-hand after the
+// arrival has cleared backorders)), the mean order quantity is units ordered
+// over orders placed, and the other figures are sums divided by the number
+// of periods. Each figure is then averaged across the R replications and
+// given the half-width t_{1-α/2,R-1} s/√R of the confidence interval of a
+// mean from R independent replications (the replication/deletion approach
+// for steady-state means; A. M. Law, Simulation Modeling and Analysis, 5th
+// ed., 2015, chapter 9, cited from memory), with the t quantile from gonum's distuv.StudentsT. The
+// ratio figures are therefore averages of per-replication ratios; their bias
+// is of order 1/n in the number n of counted periods and is negligible
+// against the interval at the run lengths used.
+//
+// # Random numbers
+//
+// Demand is drawn in O(1) by the alias method (A. J. Walker, "An efficient
+// method for generating discrete random variables with general
+// distributions", ACM TOMS 3, 1977; table built as in M. D. Vose, "A linear
+// algorithm for generating random numbers with a given distribution", IEEE
+// TSE 17, 1991) over the values 0..K with P(D > K) <= 1e-16, plus one cell
+// for the event D > K, which is resolved by inverting the exact tail
+// function of the distribution, so no demand is ever truncated. Every
+// replication draws from its own PCG generator (M. E. O'Neill, "PCG: a
+// family of simple fast space-efficient statistically good algorithms for
+// random number generation", 2014; math/rand/v2.PCG) seeded with two
+// consecutive outputs of SplitMix64 (G. L. Steele, D. Lea, C. H. Flood,
+// "Fast splittable pseudorandom number generators", OOPSLA 2014) started at
+// the user's seed, so results depend only on the seed and the replication
+// index, never on the number of workers.
+package sim
