@@ -1,0 +1,211 @@
+package batch
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"testing"
+	"time"
+
+	"ergostock/inventory"
+	"ergostock/inventory/history"
+	"ergostock/policies"
+)
+
+// catalogue describes a synthetic catalogue for writeSynthetic.
+type catalogue struct {
+	n, weeks  int
+	seed      uint64
+	lostEvery int // every lostEvery-th item is in lost-sales mode; 0: none
+	maxLead   int // lead times are drawn uniformly from 0..maxLead
+}
+
+// writeSynthetic writes a seeded catalogue of c.n SKUs with c.weeks weeks
+// of history, one row per SKU and week with demand (dated the Monday),
+// mixing the four demand patterns; invented data, for timing only. Half the
+// items carry an order cost (an s-S search) and a third give a current
+// s-S policy.
+func writeSynthetic(tb testing.TB, dir string, c catalogue) (itemsPath, histPath string) {
+	n, weeks, seed := c.n, c.weeks, c.seed
+	tb.Helper()
+	rng := rand.New(rand.NewPCG(seed, 0x5eed))
+	itemsPath, histPath = filepath.Join(dir, "items.csv"), filepath.Join(dir, "history.csv")
+	fi, err := os.Create(itemsPath)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	fh, err := os.Create(histPath)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	wi, wh := bufio.NewWriter(fi), bufio.NewWriter(fh)
+	fmt.Fprintln(wi, "sku,lead_time,holding_cost,shortage_cost,order_cost,unmet,current_reorder_point,current_order_up_to")
+	fmt.Fprintln(wh, "sku,date,quantity")
+	monday := time.Date(2024, 12, 30, 0, 0, 0, 0, time.UTC) // ISO week 1 of 2025
+	dates := make([]string, weeks)
+	for w := range dates {
+		dates[w] = monday.AddDate(0, 0, 7*w).Format("2006-01-02")
+	}
+	poisson := func(lam float64) int {
+		// Knuth's multiplication method; lam is small here.
+		l, k, p := math.Exp(-lam), 0, 1.0
+		for {
+			p *= rng.Float64()
+			if p <= l {
+				return k
+			}
+			k++
+		}
+	}
+	for i := range n {
+		sku := fmt.Sprintf("SKU-%05d", i)
+		var size func() int
+		prob := 1.0
+		switch i % 4 {
+		case 0: // smooth
+			m := 1 + 15*rng.Float64()
+			size = func() int { return poisson(m) }
+		case 1: // erratic: a gamma-Poisson mixture
+			m := 2 + 8*rng.Float64()
+			size = func() int { return poisson(m * rng.ExpFloat64()) }
+		case 2: // intermittent
+			prob = 0.2 + 0.3*rng.Float64()
+			size = func() int { return 1 + poisson(1) }
+		default: // lumpy
+			prob = 0.2 + 0.3*rng.Float64()
+			size = func() int { return 1 + poisson(6*rng.ExpFloat64()) }
+		}
+		for w := range weeks {
+			if rng.Float64() < prob {
+				if q := size(); q > 0 {
+					fmt.Fprintf(wh, "%s,%s,%d\n", sku, dates[w], q)
+				}
+			}
+		}
+		lead := rng.IntN(c.maxLead + 1)
+		h := 0.1 + rng.Float64()
+		b := h * (5 + 20*rng.Float64())
+		k := ""
+		if i%2 == 0 {
+			k = fmt.Sprintf("%.2f", 5+50*rng.Float64())
+		}
+		mode := "backorder"
+		if c.lostEvery > 0 && i%c.lostEvery == c.lostEvery-1 {
+			mode = "lost"
+		}
+		cs, cS := "", ""
+		if i%3 == 0 {
+			cs, cS = "2", "12"
+		}
+		fmt.Fprintf(wi, "%s,%d,%.3f,%.3f,%s,%s,%s,%s\n", sku, lead, h, b, k, mode, cs, cS)
+	}
+	for _, o := range []struct {
+		w *bufio.Writer
+		f *os.File
+	}{{wi, fi}, {wh, fh}} {
+		if err := o.w.Flush(); err != nil {
+			tb.Fatal(err)
+		}
+		if err := o.f.Close(); err != nil {
+			tb.Fatal(err)
+		}
+	}
+	return itemsPath, histPath
+}
+
+// runFiles is what "ergostock batch" does, without the command line.
+func runFiles(tb testing.TB, itemsPath, histPath, outPath string, workers int, pl *Planner) (failed int) {
+	fi, err := os.Open(itemsPath)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	items, err := ReadItems(fi, itemsPath, nil)
+	fi.Close()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	fh, err := os.Open(histPath)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	h, err := history.Read(fh, histPath, history.Week)
+	fh.Close()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	pl.Fit, pl.Pattern = HistoryFit(h, nil)
+	err = WriteFileAtomic(outPath, func(w io.Writer) error {
+		bw := NewWriter(w)
+		if err := bw.WriteHeader(); err != nil {
+			return err
+		}
+		if err := Run(len(items), workers, func(i int) Row { return pl.Plan(items[i]) }, func(i int, r Row) error {
+			if r.Err != nil {
+				failed++
+			}
+			return bw.Write(&r)
+		}); err != nil {
+			return err
+		}
+		return bw.Flush()
+	})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return failed
+}
+
+// BenchmarkBatch plans a synthetic catalogue of 104 weekly periods per SKU,
+// all in backorder mode with lead times 0..4, from the files to the results
+// file on all cores. The target (issue 6) is under 60 s for 10,000 SKUs on
+// 2 cores:
+//
+//	go test -run '^$' -bench 'Batch/skus=10000' -benchtime 1x -benchmem ./policies/batch
+//
+// The fit-only variants replace the search and evaluation by a constant
+// answer, to tell the reading and fitting time from the optimisation's.
+func BenchmarkBatch(b *testing.B) {
+	for _, n := range []int{1000, 10000} {
+		benchCatalogue(b, fmt.Sprintf("skus=%d", n), catalogue{n: n, weeks: 104, seed: 20261202, maxLead: 4})
+	}
+}
+
+// BenchmarkBatchLost times lost-sales items, whose chain holds the whole
+// pipeline of outstanding orders and so grows like S^L/L! with the lead
+// time L (see package policies); lead times 0..2 here.
+//
+//	go test -run '^$' -bench 'BatchLost' -benchtime 1x -benchmem ./policies/batch
+func BenchmarkBatchLost(b *testing.B) {
+	benchCatalogue(b, "skus=100", catalogue{n: 100, weeks: 104, seed: 20261202, lostEvery: 1, maxLead: 2})
+}
+
+func benchCatalogue(b *testing.B, name string, c catalogue) {
+	dir := b.TempDir()
+	itemsPath, histPath := writeSynthetic(b, dir, c)
+	out := filepath.Join(dir, "results.csv")
+	for _, mode := range []string{"fit-only", "full"} {
+		b.Run(name+"/"+mode, func(b *testing.B) {
+			b.ReportAllocs()
+			failed := 0
+			for b.Loop() {
+				pl := &Planner{}
+				if mode == "fit-only" {
+					pl.Optimize = func(sys inventory.System, k policies.Kind, o policies.SearchOptions) (*policies.Optimum, error) {
+						return &policies.Optimum{Evaluation: policies.Evaluation{Policy: policies.Policy{Kind: k}}}, nil
+					}
+					pl.Evaluate = func(sys inventory.System, p policies.Policy, o policies.Options) (*policies.Evaluation, error) {
+						return &policies.Evaluation{Policy: p}, nil
+					}
+				}
+				failed = runFiles(b, itemsPath, histPath, out, runtime.GOMAXPROCS(0), pl)
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(c.n)/1e3, "µs/sku")
+			b.ReportMetric(float64(failed), "failed")
+		})
+	}
+}

@@ -1,0 +1,373 @@
+package batch
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"ergostock/inventory"
+	"ergostock/policies"
+)
+
+// Item is one row of the items file.
+type Item struct {
+	Index int    // 0-based position among the data rows of the file
+	File  string // the items file's name, for errors
+	Line  int    // line of the row in the file
+	SKU   string
+
+	// System holds the item's lead time, costs and mode; its Demand is set
+	// only when the row gives a demand column, and is otherwise fitted.
+	System inventory.System
+	// Kind is the policy type to search; "" means the default (s-S when
+	// the order cost is positive, else base-stock).
+	Kind        policies.Kind
+	MinFillRate float64          // 0 means no floor
+	Current     *policies.Policy // the policy in use, nil when none is given
+	Err         error            // why the row cannot be planned, or nil
+}
+
+// LineError is an error of one row of an input file, printed in the style
+// of encoding/csv's ParseError: "items.csv:12: holding_cost "-3": want a
+// finite cost >= 0".
+type LineError struct {
+	File string
+	Line int
+	Err  error
+}
+
+func (e *LineError) Error() string {
+	var fe *inventory.FieldError
+	if errors.As(e.Err, &fe) && fe == e.Err {
+		msg := fmt.Sprintf("%s:%d: %s %q: want %s", e.File, e.Line, fe.Field, fe.Value, fe.Want)
+		if fe.Err != nil {
+			msg += ": " + fe.Err.Error()
+		}
+		return msg
+	}
+	return fmt.Sprintf("%s:%d: %v", e.File, e.Line, e.Err)
+}
+func (e *LineError) Unwrap() error { return e.Err }
+
+// ErrMissingColumn is wrapped by the error ReadItems returns when the header
+// lacks a required column.
+var ErrMissingColumn = errors.New("missing column")
+
+// The columns of the items file.
+const (
+	colSKU            = "sku"
+	colLeadTime       = "lead_time"
+	colHolding        = "holding_cost"
+	colShortage       = "shortage_cost"
+	colOrderCost      = "order_cost"
+	colUnitCost       = "unit_cost"
+	colUnmet          = "unmet"
+	colPolicy         = "policy"
+	colMinFillRate    = "min_fill_rate"
+	colDemand         = "demand"
+	colCurReorder     = "current_reorder_point"
+	colCurOrderUpTo   = "current_order_up_to"
+	colCurMultiple    = "current_order_multiple"
+	requiredColumnsNo = 4
+)
+
+var itemColumns = []string{
+	colSKU, colLeadTime, colHolding, colShortage, // required, in this order
+	colOrderCost, colUnitCost, colUnmet, colPolicy, colMinFillRate, colDemand,
+	colCurReorder, colCurOrderUpTo, colCurMultiple,
+}
+
+// ReadItems reads the items file from r; name is the file name used in
+// errors. Only the items whose position keep accepts are returned (nil
+// keeps all), in file order; every row is still read, so that a SKU seen
+// before on a row outside the kept set is still a duplicate.
+//
+// The returned error is for the file as a whole: a missing header or
+// required column, a column named twice, a CSV syntax error or a read
+// error. Errors of single rows are in Item.Err, as *LineError values that
+// wrap an *inventory.FieldError where one column is at fault.
+func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, error) {
+	cr := csv.NewReader(r)
+	cr.FieldsPerRecord = -1
+	cr.ReuseRecord = true
+	header, err := cr.Read()
+	if err == io.EOF {
+		return nil, fmt.Errorf("%s: empty file, want a header with columns %s: %w",
+			name, strings.Join(itemColumns[:requiredColumnsNo], ", "), ErrMissingColumn)
+	}
+	if err != nil {
+		return nil, csvErr(name, err)
+	}
+	col := make(map[string]int, len(itemColumns))
+	for i, h := range header {
+		if i == 0 {
+			h = strings.TrimPrefix(h, "\ufeff")
+		}
+		h = strings.ToLower(strings.TrimSpace(h))
+		if _, dup := col[h]; dup && isItemColumn(h) {
+			return nil, fmt.Errorf("%s:1: column %q appears twice", name, h)
+		}
+		col[h] = i
+	}
+	for _, c := range itemColumns[:requiredColumnsNo] {
+		if _, ok := col[c]; !ok {
+			return nil, fmt.Errorf("%s:1: %w %q (the header names %s)", name, ErrMissingColumn, c, quoteList(header))
+		}
+	}
+	idx := make([]int, len(itemColumns))
+	for i, c := range itemColumns {
+		if j, ok := col[c]; ok {
+			idx[i] = j
+		} else {
+			idx[i] = -1
+		}
+	}
+
+	var items []Item
+	first := make(map[string]int) // sku -> line of its first row
+	for index := 0; ; index++ {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, csvErr(name, err)
+		}
+		line, _ := cr.FieldPos(0)
+		cell := func(c int) string {
+			if j := idx[c]; j >= 0 && j < len(rec) {
+				return strings.TrimSpace(rec[j])
+			}
+			return ""
+		}
+		sku := cell(0)
+		var dupOf int
+		if sku != "" {
+			if l, seen := first[sku]; seen {
+				dupOf = l
+			} else {
+				first[strings.Clone(sku)] = line
+			}
+		}
+		if keep != nil && !keep(index) {
+			continue
+		}
+		it := Item{Index: index, File: name, Line: line, SKU: strings.Clone(sku)}
+		switch {
+		case len(rec) != len(header):
+			it.Err = fmt.Errorf("%d fields, want %d as in the header", len(rec), len(header))
+		case sku == "":
+			it.Err = &inventory.FieldError{Field: colSKU, Want: "a non-empty SKU"}
+		case dupOf > 0:
+			it.Err = &inventory.FieldError{Field: colSKU, Value: sku, Want: fmt.Sprintf("a SKU given once (it is first given on line %d)", dupOf)}
+		default:
+			it.Err = parseItem(&it, cell)
+		}
+		if it.Err != nil {
+			it.Err = &LineError{File: name, Line: line, Err: it.Err}
+		}
+		items = append(items, it)
+	}
+	return items, nil
+}
+
+func isItemColumn(h string) bool {
+	for _, c := range itemColumns {
+		if c == h {
+			return true
+		}
+	}
+	return false
+}
+
+func quoteList(h []string) string {
+	q := make([]string, len(h))
+	for i, s := range h {
+		q[i] = strconv.Quote(strings.TrimSpace(s))
+	}
+	return strings.Join(q, ", ")
+}
+
+// csvErr names the file in an encoding/csv error.
+func csvErr(name string, err error) error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return fmt.Errorf("%s:%d:%d: %w", name, pe.Line, pe.Column, pe.Err)
+	}
+	return fmt.Errorf("%s: %w", name, err)
+}
+
+// parseItem fills it from the row's cells; cell(i) is the trimmed cell of
+// itemColumns[i], "" when absent.
+func parseItem(it *Item, cell func(int) string) error {
+	raw := make(map[string]string, len(itemColumns))
+	for i, c := range itemColumns {
+		raw[c] = cell(i)
+	}
+	sys := &it.System
+	// Numbers that do not parse become values that System.Validate refuses
+	// (NaN, -1), so that its messages are the one source of what is wanted;
+	// the error then shows the cell as written.
+	num := func(c string, optional bool) float64 {
+		s := raw[c]
+		if s == "" && optional {
+			return 0
+		}
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			return math.NaN()
+		}
+		return v
+	}
+	if s := raw[colLeadTime]; s != "" {
+		if l, err := strconv.Atoi(s); err == nil {
+			sys.LeadTime = l
+		} else {
+			sys.LeadTime = -1
+		}
+	} else {
+		sys.LeadTime = -1
+	}
+	sys.Holding = num(colHolding, false)
+	sys.Shortage = num(colShortage, false)
+	sys.OrderCost = num(colOrderCost, true)
+	sys.UnitCost = num(colUnitCost, true)
+	sys.Mode = inventory.Backorder
+	if s := raw[colUnmet]; s != "" {
+		m, err := inventory.ParseMode(strings.ToLower(s))
+		if err != nil {
+			return withCell(err, raw)
+		}
+		sys.Mode = m
+	}
+	if s := raw[colDemand]; s != "" {
+		d, err := inventory.Parse(s)
+		if err != nil {
+			return withCell(err, raw)
+		}
+		sys.Demand = d
+	}
+	check := *sys
+	if check.Demand == nil {
+		check.Demand = placeholderDemand{}
+	}
+	if err := check.Validate(); err != nil {
+		return withCell(err, raw)
+	}
+
+	if s := raw[colPolicy]; s != "" {
+		k, ok := parseKind(s)
+		if !ok {
+			return &inventory.FieldError{Field: colPolicy, Value: s, Want: "base-stock, s-S or s-nQ"}
+		}
+		it.Kind = k
+	}
+	if s := raw[colMinFillRate]; s != "" {
+		f, err := strconv.ParseFloat(s, 64)
+		if err != nil || !(f >= 0 && f < 1) {
+			return &inventory.FieldError{Field: colMinFillRate, Value: s, Want: "a fraction in [0, 1)"}
+		}
+		it.MinFillRate = f
+	}
+	cur, err := parseCurrent(raw, sys.Mode)
+	if err != nil {
+		return err
+	}
+	it.Current = cur
+	return nil
+}
+
+// withCell replaces the Value of a *inventory.FieldError about a column of
+// the row by the cell as written.
+func withCell(err error, raw map[string]string) error {
+	var fe *inventory.FieldError
+	if errors.As(err, &fe) {
+		if v, ok := raw[fe.Field]; ok {
+			c := *fe
+			c.Value = v
+			return &c
+		}
+	}
+	return err
+}
+
+// parseKind reads a policy type, ignoring letter case.
+func parseKind(s string) (policies.Kind, bool) {
+	for _, k := range []policies.Kind{policies.BaseStock, policies.SS, policies.SNQ} {
+		if strings.EqualFold(s, string(k)) {
+			return k, true
+		}
+	}
+	return "", false
+}
+
+// parseCurrent reads the policy in use from the current_* cells:
+// current_order_up_to alone is base-stock; with current_reorder_point it is
+// s-S; current_reorder_point with current_order_multiple is s-nQ.
+func parseCurrent(raw map[string]string, mode inventory.Mode) (*policies.Policy, error) {
+	var v [3]int
+	var has [3]bool
+	for i, c := range []string{colCurReorder, colCurOrderUpTo, colCurMultiple} {
+		s := raw[c]
+		if s == "" {
+			continue
+		}
+		n, err := strconv.Atoi(s)
+		if err != nil {
+			return nil, &inventory.FieldError{Field: c, Value: s, Want: "a whole number"}
+		}
+		v[i], has[i] = n, true
+	}
+	var p policies.Policy
+	switch {
+	case !has[0] && !has[1] && !has[2]:
+		return nil, nil
+	case has[1] && has[2]:
+		return nil, fmt.Errorf("%s and %s: give one of them, not both", colCurOrderUpTo, colCurMultiple)
+	case has[1] && !has[0]:
+		p = policies.Policy{Kind: policies.BaseStock, OrderUpTo: v[1]}
+	case has[1]:
+		p = policies.Policy{Kind: policies.SS, ReorderPoint: v[0], OrderUpTo: v[1]}
+	case has[2] && has[0]:
+		p = policies.Policy{Kind: policies.SNQ, ReorderPoint: v[0], OrderMultiple: v[2]}
+	case has[2]:
+		return nil, fmt.Errorf("%s needs %s", colCurMultiple, colCurReorder)
+	default:
+		return nil, fmt.Errorf("%s needs %s (s-S) or %s (s-nQ)", colCurReorder, colCurOrderUpTo, colCurMultiple)
+	}
+	if err := p.Validate(mode); err != nil {
+		return nil, fmt.Errorf("current policy %v: %w", p, err)
+	}
+	return &p, nil
+}
+
+// placeholderDemand stands in for a demand still to be fitted while the
+// other fields of a system are validated.
+type placeholderDemand struct{}
+
+func (placeholderDemand) PMF(k int) float64 {
+	if k == 1 {
+		return 1
+	}
+	return 0
+}
+func (placeholderDemand) CDF(k int) float64 {
+	if k >= 1 {
+		return 1
+	}
+	return 0
+}
+func (placeholderDemand) Tail(k int) float64 {
+	if k <= 1 {
+		return 1
+	}
+	return 0
+}
+func (placeholderDemand) Mean() float64     { return 1 }
+func (placeholderDemand) Variance() float64 { return 0 }
+func (placeholderDemand) Bound(float64) int { return 1 }
+func (placeholderDemand) String() string    { return "pmf:1=1" }

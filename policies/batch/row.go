@@ -1,0 +1,148 @@
+package batch
+
+import (
+	"encoding/csv"
+	"io"
+	"strconv"
+	"strings"
+
+	"ergostock/inventory"
+	"ergostock/policies"
+)
+
+// Row is the plan of one item: one line of the results file.
+type Row struct {
+	Item int    // 0-based position in the items file
+	SKU  string // as in the items file
+
+	// The demand model, when known: set from the item's demand column or
+	// from the fit of its history.
+	Demand         string // the model in the text grammar; "" when unknown
+	DemandMean     float64
+	DemandVariance float64
+	Pattern        string // of the history; "" without one
+
+	// The cheapest policy and what it delivers; nil when the item failed.
+	Policy  *policies.Policy
+	Figures *inventory.Figures
+	// The cost of the policy in use; nil without one or when the item failed.
+	CurrentTotalCost *float64
+
+	States    int     // states of the chosen policy's chain
+	Residual  float64 // of its stationary solve
+	Neglected float64 // mass left out by any truncation
+	Evaluated int     // policies evaluated by the search
+
+	Warnings []string
+	Err      error // why the item failed; nil when it did not
+}
+
+// Saving is the current policy's total cost minus the chosen one's, and
+// whether both are known.
+func (r *Row) Saving() (float64, bool) {
+	if r.CurrentTotalCost == nil || r.Figures == nil {
+		return 0, false
+	}
+	return *r.CurrentTotalCost - r.Figures.TotalCost, true
+}
+
+// Header returns the column names of the results file.
+func Header() []string {
+	h := []string{"sku", "demand", "demand_mean", "demand_variance", "pattern",
+		"policy", "reorder_point", "order_up_to", "order_multiple"}
+	for _, f := range (inventory.Figures{}).Fields() {
+		h = append(h, f.Name)
+	}
+	return append(h, "current_total_cost", "saving", "warnings", "error",
+		"states", "residual", "neglected", "policies_evaluated", "item")
+}
+
+// Writer writes the results file as CSV.
+type Writer struct {
+	w   *csv.Writer
+	rec []string
+}
+
+// NewWriter returns a Writer on w; call WriteHeader first and Flush last.
+func NewWriter(w io.Writer) *Writer {
+	return &Writer{w: csv.NewWriter(w)}
+}
+
+// WriteHeader writes the header line.
+func (w *Writer) WriteHeader() error { return w.w.Write(Header()) }
+
+// Write writes one row.
+func (w *Writer) Write(r *Row) error {
+	w.rec = r.appendRecord(w.rec[:0])
+	return w.w.Write(w.rec)
+}
+
+// Flush writes any buffered data and returns the first error met.
+func (w *Writer) Flush() error {
+	w.w.Flush()
+	return w.w.Error()
+}
+
+// formatFloat prints the shortest decimal that reads back to v.
+func formatFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// appendRecord appends the row's cells, in the order of Header.
+func (r *Row) appendRecord(rec []string) []string {
+	rec = append(rec, r.SKU, r.Demand)
+	if r.Demand != "" {
+		rec = append(rec, formatFloat(r.DemandMean), formatFloat(r.DemandVariance))
+	} else {
+		rec = append(rec, "", "")
+	}
+	rec = append(rec, r.Pattern)
+	ok := r.Err == nil && r.Policy != nil && r.Figures != nil
+	if ok {
+		p := r.Policy
+		s, S, Q := "", "", ""
+		switch p.Kind {
+		case policies.BaseStock:
+			S = strconv.Itoa(p.OrderUpTo)
+		case policies.SS:
+			s, S = strconv.Itoa(p.ReorderPoint), strconv.Itoa(p.OrderUpTo)
+		case policies.SNQ:
+			s, Q = strconv.Itoa(p.ReorderPoint), strconv.Itoa(p.OrderMultiple)
+		}
+		rec = append(rec, string(p.Kind), s, S, Q)
+		for _, f := range r.Figures.Fields() {
+			rec = append(rec, formatFloat(f.Value))
+		}
+	} else {
+		rec = append(rec, "", "", "", "")
+		for range (inventory.Figures{}).Fields() {
+			rec = append(rec, "")
+		}
+	}
+	cur, saving := "", ""
+	if ok && r.CurrentTotalCost != nil {
+		cur = formatFloat(*r.CurrentTotalCost)
+		if v, has := r.Saving(); has {
+			saving = formatFloat(v)
+		}
+	}
+	errText := ""
+	if r.Err != nil {
+		errText = oneLine(r.Err.Error())
+	}
+	rec = append(rec, cur, saving, oneLine(strings.Join(r.Warnings, "; ")), errText)
+	if ok {
+		rec = append(rec, strconv.Itoa(r.States), formatFloat(r.Residual),
+			formatFloat(r.Neglected), strconv.Itoa(r.Evaluated))
+	} else {
+		rec = append(rec, "", "", "", "")
+	}
+	return append(rec, strconv.Itoa(r.Item))
+}
+
+// oneLine folds a message onto one line, so that every row of the results
+// file is one line of text and line tools can split and merge it.
+func oneLine(s string) string {
+	if !strings.ContainsAny(s, "\r\n") {
+		return s
+	}
+	return strings.NewReplacer("\r\n", " ", "\n", " ", "\r", " ").Replace(s)
+}
