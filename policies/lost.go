@@ -212,7 +212,8 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 		if a == 0 {
 			target(0, 1)
 		} else if lump := dtab.over[a-1]; lump > 0 {
-			target(0, lump)
+			// A tail within round-off of 1 can come out a hair above it.
+			target(0, min(lump, 1))
 		}
 		if len(c.tuples)/w > opt.MaxStates {
 			return nil, &SizeError{Chain: "lost-sales", Bound: float64(len(c.tuples) / w), Limit: opt.MaxStates, What: "states"}
