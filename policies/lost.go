@@ -18,9 +18,16 @@ type SizeError struct {
 	Bound float64 // upper bound on the count, e.g. C(top+L+1, L+1) states
 	Limit int
 	What  string // "states", "transitions" or "inventory positions"
+	// Counted is set when Bound is not an a-priori bound but the count
+	// reached while enumerating the reachable states, when it passed Limit.
+	Counted bool
 }
 
 func (e *SizeError) Error() string {
+	if e.Counted {
+		return fmt.Sprintf("%s chain has more than %d reachable %s (the a-priori bound is %.0f; raise --max-states, or lower the order-up-to level or the lead time)",
+			e.Chain, e.Limit, e.What, e.Bound)
+	}
 	return fmt.Sprintf("%s chain of up to %.0f %s exceeds the limit of %d (raise --max-states, or lower the order-up-to level or the lead time)",
 		e.Chain, e.Bound, e.What, e.Limit)
 }
@@ -29,6 +36,10 @@ func (e *SizeError) Error() string {
 // lost-sales chain may hold: memory stays proportional to states times
 // transitions, and this caps the product.
 const transitionsPerState = 32
+
+// indexSlotsPerState caps the state index (one int32 slot per on-hand
+// level of every pipeline seen) at this many slots per allowed state.
+const indexSlotsPerState = 16
 
 // lostDenseStates is the largest lost-sales chain left to the solver's
 // automatic choice (which may pick the dense, subtraction-free GTH method,
@@ -140,22 +151,26 @@ func (ix *stateIndex) group(o []int32) int {
 // transitions: from a state with a on hand after the arrival, demand d =
 // 0..a-1 (exact probabilities) leads to a - d on hand, and the lump
 // P(D >= a) from the closed tail to 0 on hand. Nothing is truncated.
+//
+// Memory stays within the limit whichever way: when the a-priori bound
+// C(top+L+1, L+1) on the states (and the bound it implies on transitions)
+// is within it, the chain is built directly; otherwise the reachable chain,
+// usually far smaller than the bound (an s-S policy with large orders keeps
+// at most one or two orders in the pipeline), is enumerated with running
+// counts of states, transitions and index slots, and refused with a
+// *SizeError as soon as one passes its limit.
 func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, error) {
 	bound := lostBound(top, L)
-	if bound > float64(opt.MaxStates) {
-		return nil, &SizeError{Chain: "lost-sales", Bound: bound, Limit: opt.MaxStates, What: "states"}
-	}
 	support := 0
 	for _, v := range dtab.pmf {
 		if v > 0 {
 			support++
 		}
 	}
-	if tr := bound * float64(min(support, top)+1); tr > float64(transitionsPerState)*float64(opt.MaxStates) {
-		return nil, &SizeError{Chain: "lost-sales", Bound: tr, Limit: transitionsPerState * opt.MaxStates, What: "transitions"}
-	}
+	maxTransitions := transitionsPerState * opt.MaxStates
+	maxSlots := indexSlotsPerState * opt.MaxStates
 	w := L + 1
-	hint := int(min(lostBound(top, L), 1<<20))
+	hint := int(min(bound, float64(opt.MaxStates), 1<<20))
 	c := &lostChain{L: L, top: top, tuples: make([]int32, 0, w*hint)}
 	ix := newStateIndex(top, L, hint/max(top, 1)+1)
 	start := make([]int32, w)
@@ -216,7 +231,13 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 			target(0, min(lump, 1))
 		}
 		if len(c.tuples)/w > opt.MaxStates {
-			return nil, &SizeError{Chain: "lost-sales", Bound: float64(len(c.tuples) / w), Limit: opt.MaxStates, What: "states"}
+			return nil, &SizeError{Chain: "lost-sales", Bound: bound, Limit: opt.MaxStates, What: "states", Counted: true}
+		}
+		if len(col)+len(row) > maxTransitions {
+			return nil, &SizeError{Chain: "lost-sales", Bound: bound * float64(min(support, top)+1), Limit: maxTransitions, What: "transitions", Counted: true}
+		}
+		if len(ix.slots) > maxSlots {
+			return nil, &SizeError{Chain: "lost-sales", Bound: bound, Limit: maxSlots, What: "index slots", Counted: true}
 		}
 		slices.SortFunc(row, func(x, y entry) int { return int(x.j) - int(y.j) })
 		for _, e := range row {
@@ -239,9 +260,11 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 func solveLost(dist inventory.Distribution, p Policy, L int, opt Options) (*lostChain, lossTable, error) {
 	_, top := p.Levels()
 	top = max(top, 0)
-	// Refuse before the demand table (O(top)) or the chain is allocated.
-	if bound := lostBound(top, L); bound > float64(opt.MaxStates) {
-		return nil, lossTable{}, fmt.Errorf("%v: %w", p, &SizeError{Chain: "lost-sales", Bound: bound, Limit: opt.MaxStates, What: "states"})
+	// Refuse before the demand table (O(top)) or the chain is allocated:
+	// the states at the top level alone number top+1 on-hand levels times
+	// at least one pipeline. Otherwise buildLost counts as it goes.
+	if top >= opt.MaxStates {
+		return nil, lossTable{}, fmt.Errorf("%v: %w", p, &SizeError{Chain: "lost-sales", Bound: lostBound(top, L), Limit: opt.MaxStates, What: "states"})
 	}
 	dtab := newLossTable(dist, 0, top)
 	c, err := buildLost(dtab, p, top, L, opt)
