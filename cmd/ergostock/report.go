@@ -1,10 +1,338 @@
 package main
 
-import "github.com/urfave/cli/v2"
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"runtime"
+	"strconv"
+	"strings"
 
-// reportCommand is a placeholder until the command is built.
+	"github.com/urfave/cli/v2"
+
+	"ergostock/inventory/history"
+	"ergostock/policies"
+	"ergostock/policies/batch"
+	"ergostock/policies/report"
+	"ergostock/policies/sim"
+)
+
+const reportDescription = `Writes one self-contained HTML page (--out): charts drawn inline as SVG,
+inline CSS, nothing loaded from the network, readable without JavaScript and
+printable on A4.
+
+One SKU: give the system flags as for evaluate. With the policy flags the
+page evaluates that policy (the current one) and also shows the cheapest
+policy of its type (or of --policy); without them it shows the cheapest
+policy of --policy (default s-S). --history FILE --sku ID adds the demand
+history and the fitted distribution over its histogram; without --demand the
+fitted model is used. --simulate adds the exact-versus-simulated table.
+
+A batch: --results FILE (written by ergostock batch) gives the table of
+items, the saving by demand pattern, and the warnings and errors; with
+--items FILE (the batch's items file) also the exchange curve, which
+re-optimises every item under common fill-rate targets (--targets); with
+--history also the map of demand patterns.
+
+Exit status: 0 when the page was written; 1 when an input cannot be used
+(nothing is written); 2 for a usage error.`
+
+// reportCommand writes the HTML report for one SKU or for a batch.
 func reportCommand() *cli.Command {
-	return &cli.Command{Name: "report", Usage: "not yet available", Action: func(*cli.Context) error {
-		return usageErr("report: not yet available")
-	}}
+	flags := systemFlags()
+	// The system flags are required only for a one-SKU page, and demand
+	// may come from the history instead: checked in the action.
+	for _, f := range flags {
+		switch f := f.(type) {
+		case *cli.StringFlag:
+			f.Required = false
+		case *cli.Float64Flag:
+			f.Required = false
+		}
+	}
+	flags = append(flags, policyFlags()...)
+	flags = append(flags,
+		&cli.StringFlag{Name: "policy", Usage: "policy type to recommend: base-stock, s-S or s-nQ (default: the type of the policy flags, else s-S)"},
+		&cli.Float64Flag{Name: "min-fill-rate", Usage: "recommend the cheapest policy with fill rate at least F, for F in (0, 1)"},
+		&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity)"},
+		&cli.StringFlag{Name: "sku", Usage: "the SKU of --history to show (one-SKU page)"},
+		&cli.StringFlag{Name: "period", Usage: "review period the history is summed into: day, week (ISO, Monday first) or month", Value: "week"},
+		&cli.BoolFlag{Name: "simulate", Usage: "add the exact-versus-simulated table (one-SKU page)"},
+		&cli.IntFlag{Name: "periods", Usage: "with --simulate: periods per replication, warm-up included", Value: 50_000},
+		&cli.IntFlag{Name: "replications", Usage: "with --simulate: independent replications (>= 2)", Value: 10},
+		&cli.IntFlag{Name: "seed", Usage: "with --simulate: seed of the random streams (>= 0)", Value: 1},
+		&cli.StringFlag{Name: "results", Usage: "results file of ergostock batch (batch page)"},
+		&cli.StringFlag{Name: "items", Usage: "items file of the batch, for the exchange curve (batch page)"},
+		&cli.StringFlag{Name: "targets", Usage: "common fill-rate targets of the exchange curve, comma-separated", Value: "0.9,0.95,0.98,0.99,0.995,0.999"},
+		&cli.IntFlag{Name: "workers", Usage: "searches run at once for the exchange curve (default: all cores)", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
+		&cli.StringFlag{Name: "out", Usage: "HTML file to write", Required: true},
+	)
+	return &cli.Command{
+		Name:  "report",
+		Usage: "a self-contained HTML page with charts for one SKU or for a batch's results",
+		UsageText: "ergostock report --out FILE --demand SPEC --holding-cost h --shortage-cost b [system flags] [policy flags | --policy TYPE] [--history FILE --sku ID] [--simulate]\n" +
+			"ergostock report --out FILE --results FILE [--items FILE] [--history FILE]",
+		Description: reportDescription,
+		Flags:       flags,
+		Action:      reportAction,
+		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
+			return usageErr("report: %v (see ergostock report --help)", err)
+		},
+	}
+}
+
+func reportAction(c *cli.Context) error {
+	if c.NArg() > 0 {
+		return usageErr("report: unexpected argument %q (every input is a flag)", c.Args().First())
+	}
+	var page interface{ WriteHTML(io.Writer) error }
+	var err error
+	if c.IsSet("results") {
+		page, err = reportBatch(c)
+	} else {
+		page, err = reportSKU(c)
+	}
+	if err != nil {
+		return err
+	}
+	// Render in memory first, so that nothing is written on error.
+	var buf bytes.Buffer
+	if err := page.WriteHTML(&buf); err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	out := c.String("out")
+	for _, in := range []string{"results", "items", "history"} {
+		if p := c.String(in); p != "" && sameFile(p, out) {
+			return usageErr("--out %s: it is the --%s file; choose another file for the page", out, in)
+		}
+	}
+	if err := batch.WriteFileAtomic(out, func(w io.Writer) error {
+		_, err := w.Write(buf.Bytes())
+		return err
+	}); err != nil {
+		return fmt.Errorf("--out %s: %w", out, err)
+	}
+	fmt.Fprintf(c.App.ErrWriter, "ergostock: report written to %s\n", out)
+	return nil
+}
+
+// reportSKU gathers the one-SKU page.
+func reportSKU(c *cli.Context) (*report.SKUPage, error) {
+	for _, f := range []string{"items", "targets"} {
+		if c.IsSet(f) {
+			return nil, usageErr("--%s belongs to a batch page: give --results too, or leave it out", f)
+		}
+	}
+	in := report.SKUInput{Version: version, DemandSource: "--demand"}
+	if c.IsSet("history") != c.IsSet("sku") {
+		return nil, usageErr("--history and --sku go together: give both to show a SKU's demand history")
+	}
+	if c.IsSet("history") {
+		h, err := reportHistory(c)
+		if err != nil {
+			return nil, err
+		}
+		in.History, in.SKU = h, h.SKU
+		if !c.IsSet("demand") {
+			if h.Fitted == nil {
+				return nil, fmt.Errorf("%s: SKU %q: no demand model could be fitted; give --demand", h.File, h.SKU)
+			}
+			if err := c.Set("demand", h.Fitted.String()); err != nil {
+				return nil, err
+			}
+			in.DemandSource = "fitted to " + h.File
+		}
+	}
+	for _, f := range []string{"demand", "holding-cost", "shortage-cost"} {
+		if !c.IsSet(f) {
+			return nil, usageErr("--%s is required for a one-SKU page (or give --results for a batch page)", f)
+		}
+	}
+	sys, err := systemFromFlags(c)
+	if err != nil {
+		return nil, err
+	}
+	in.System, in.Options = sys, evalOptions(c)
+	if c.IsSet("reorder-point") || c.IsSet("order-up-to") || c.IsSet("order-multiple") {
+		p, err := policyFromFlags(c, sys.Mode)
+		if err != nil {
+			return nil, err
+		}
+		in.Current = &p
+	}
+	if c.IsSet("policy") {
+		kind := policies.Kind(c.String("policy"))
+		switch kind {
+		case policies.BaseStock, policies.SS, policies.SNQ:
+		default:
+			return nil, usageErr("--policy %s: want base-stock, s-S or s-nQ", c.String("policy"))
+		}
+		in.Kind = kind
+	}
+	if c.IsSet("min-fill-rate") {
+		v := c.Float64("min-fill-rate")
+		if !(v > 0 && v < 1) {
+			return nil, usageErr("--min-fill-rate %v: want a fraction strictly between 0 and 1", v)
+		}
+		in.MinFillRate = v
+	}
+	if c.Bool("simulate") {
+		seed := c.Int("seed")
+		if seed < 0 {
+			return nil, usageErr("--seed %d: want an integer >= 0", seed)
+		}
+		opt := sim.Options{Periods: c.Int("periods"), Replications: c.Int("replications"), Seed: uint64(seed)}
+		opt.Warmup = sim.DefaultWarmup(opt.Periods)
+		if opt.Periods < 2 {
+			return nil, usageErr("--periods %d: want at least 2 periods per replication", opt.Periods)
+		}
+		if opt.Replications < 2 {
+			return nil, usageErr("--replications %d: want at least 2 replications (an interval needs two)", opt.Replications)
+		}
+		in.Simulate = func(p policies.Policy) (*report.Simulated, error) {
+			r, err := sim.Run(sys, p, opt)
+			if err != nil {
+				return nil, err
+			}
+			return &report.Simulated{Mean: r.Mean, HalfWidth: r.HalfWidth, Level: r.Level,
+				Periods: r.Periods, Warmup: r.Warmup, Replications: r.Replications, Seed: r.Seed}, nil
+		}
+	}
+	pg, err := report.BuildSKU(in)
+	if err != nil {
+		var se *policies.SizeError
+		if errors.As(err, &se) {
+			return nil, usageErr("--max-states %d: %v", c.Int("max-states"), err)
+		}
+		return nil, flagErr(err)
+	}
+	return pg, nil
+}
+
+// reportHistory reads the history and fits the SKU's demand.
+func reportHistory(c *cli.Context) (*report.History, error) {
+	period, err := history.ParsePeriod(c.String("period"))
+	if err != nil {
+		return nil, usageErr("--%v", err)
+	}
+	path, sku := c.String("history"), c.String("sku")
+	h, err := reportReadHistory(path, period)
+	if err != nil {
+		return nil, err
+	}
+	var k *history.SKU
+	for _, s := range h.SKUs {
+		if s.SKU == sku {
+			k = s
+			break
+		}
+	}
+	if k == nil {
+		return nil, fmt.Errorf("%s: no SKU %q in the history (%d SKUs, e.g. %s): want a SKU of the file's sku column", path, sku, len(h.SKUs), reportExamples(h))
+	}
+	if len(k.Demand) == 0 {
+		if len(k.Errors) > 0 {
+			return nil, fmt.Errorf("SKU %q: no usable rows, first %w", sku, k.Errors[0])
+		}
+		return nil, fmt.Errorf("%s: SKU %q has no usable rows", path, sku)
+	}
+	sum, fitErr := k.Fit()
+	out := &report.History{
+		File: path, SKU: sku, Period: h.Period.String(), Demand: k.Demand,
+		Mean: sum.Mean, Variance: sum.Variance, ADI: sum.ADI, CV2: sum.CV2,
+		Pattern: string(sum.Pattern), Warnings: sum.Warnings, Fitted: sum.Demand, Model: sum.Model(),
+	}
+	if fitErr != nil {
+		out.Fitted = nil
+		out.Warnings = append(out.Warnings, "no model fitted: "+fitErr.Error())
+	}
+	out.Labels = make([]string, len(k.Demand))
+	for i := range k.Demand {
+		out.Labels[i] = h.Label(k.Start + i)
+	}
+	return out, nil
+}
+
+func reportExamples(h *history.History) string {
+	var names []string
+	for i, s := range h.SKUs {
+		if i == 3 {
+			names = append(names, "...")
+			break
+		}
+		names = append(names, strconv.Quote(s.SKU))
+	}
+	if len(names) == 0 {
+		return "none"
+	}
+	return strings.Join(names, ", ")
+}
+
+func reportReadHistory(path string, p history.Period) (*history.History, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("--history: %w", err)
+	}
+	defer f.Close()
+	return history.Read(f, path, p)
+}
+
+// reportBatch gathers the batch page.
+func reportBatch(c *cli.Context) (*report.BatchPage, error) {
+	for _, f := range []string{"demand", "lead-time", "holding-cost", "shortage-cost", "order-cost", "unit-cost", "unmet",
+		"reorder-point", "order-up-to", "order-multiple", "policy", "min-fill-rate", "sku", "simulate"} {
+		if c.IsSet(f) {
+			return nil, usageErr("--%s belongs to a one-SKU page; a batch page (--results) takes --items, --history, --targets and --workers", f)
+		}
+	}
+	if c.Int("workers") < 1 {
+		return nil, usageErr("--workers %d: want a number of workers >= 1", c.Int("workers"))
+	}
+	var targets []float64
+	for _, s := range strings.Split(c.String("targets"), ",") {
+		v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+		if err != nil || !(v > 0 && v < 1) || math.IsNaN(v) {
+			return nil, usageErr("--targets %s: want fill rates strictly between 0 and 1, comma-separated, e.g. 0.9,0.95,0.99", c.String("targets"))
+		}
+		targets = append(targets, v)
+	}
+	path := c.String("results")
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("--results: %w", err)
+	}
+	rows, err := report.ReadResults(f, path)
+	f.Close()
+	if err != nil {
+		return nil, err
+	}
+	in := report.BatchInput{ResultsFile: path, Rows: rows, Targets: targets, Workers: c.Int("workers"), Version: version}
+	if p := c.String("items"); p != "" {
+		f, err := os.Open(p)
+		if err != nil {
+			return nil, fmt.Errorf("--items: %w", err)
+		}
+		items, err := batch.ReadItems(f, p, nil)
+		f.Close()
+		if err != nil {
+			return nil, err
+		}
+		in.Items, in.ItemsFile = items, p
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: re-optimising %d items at %d fill-rate targets for the exchange curve\n", len(items), len(targets))
+	}
+	if p := c.String("history"); p != "" {
+		period, err := history.ParsePeriod(c.String("period"))
+		if err != nil {
+			return nil, usageErr("--%v", err)
+		}
+		h, err := reportReadHistory(p, period)
+		if err != nil {
+			return nil, err
+		}
+		in.History = h
+	}
+	return report.BuildBatch(in)
 }

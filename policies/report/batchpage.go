@@ -1,0 +1,212 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"strconv"
+
+	"ergostock/inventory/history"
+	"ergostock/policies"
+)
+
+type itemRow struct {
+	SKU, Pattern, Policy, Levels      string
+	Mean, Fill, Cost, Current, Saving cell
+	Warnings                          int
+	Failed                            bool
+}
+
+// cell is a table cell with its sort key.
+type cell struct {
+	Text string
+	Key  string // data-v; "" sorts last
+}
+
+type skuMessage struct {
+	SKU, Text string
+}
+
+type batchView struct {
+	Title, Version string
+	Sortable       bool
+	SubTitle       string
+	Glance         []string
+	Totals         []kv
+	Charts         []Chart
+	Items          []itemRow
+	Errors         []skuMessage
+	Warnings       []skuMessage
+	LeftOut        []string
+	Notes          []string
+}
+
+var batchTemplate = mustTemplate("batch", `{{template "head" .}}
+<h1>{{.Title}}</h1>
+<p class="sub">{{.SubTitle}}</p>
+<div class="glance">
+{{range .Glance}}<p>{{.}}</p>
+{{end}}</div>
+<table class="kv"><tbody>
+{{range .Totals}}<tr><th>{{.Key}}</th><td>{{.Value}}</td></tr>
+{{end}}</tbody></table>
+<h2 id="charts">Charts</h2>
+{{range .Charts}}{{template "figure" .}}{{end}}
+{{if .LeftOut}}<p>Left out of the exchange curve:</p>
+<ul>{{range .LeftOut}}<li>{{.}}</li>{{end}}</ul>{{end}}
+{{if .Notes}}<ul>{{range .Notes}}<li>{{.}}</li>{{end}}</ul>{{end}}
+<h2 id="items" class="pagebreak">Items</h2>
+<p>One row per item, in the order of the results file{{if .Sortable}}; click a column head to sort (optional script){{end}}. Costs are per period; the saving is the current policy's total cost minus the recommended one's.</p>
+<table class="items sortable">
+<thead><tr><th>SKU</th><th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
+<tbody>
+{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
+{{end}}</tbody></table>
+<h2 id="errors">Errors</h2>
+{{if .Errors}}<p>These items could not be planned; their rows in the results file carry no figures.</p>
+<ul>{{range .Errors}}<li><strong>{{.SKU}}</strong>: {{.Text}}</li>{{end}}</ul>{{else}}<p>No item failed.</p>{{end}}
+<h2 id="warnings">Warnings</h2>
+{{if .Warnings}}<p>These items were planned, but their inputs deserve a look.</p>
+<ul>{{range .Warnings}}<li><strong>{{.SKU}}</strong>: {{.Text}}</li>{{end}}</ul>{{else}}<p>No warnings.</p>{{end}}
+{{template "cautions" .}}
+{{template "foot" .}}`)
+
+func (pg *BatchPage) render() {
+	add := func(c Chart, err error) {
+		if err != nil {
+			c.SVG, c.Note = "", err.Error()
+		}
+		pg.Charts = append(pg.Charts, c)
+	}
+	if ex := pg.Exchange; ex != nil {
+		c := Chart{ID: "exchange", Title: "Exchange curve: inventory against service"}
+		var err error
+		if len(ex.Points) > 0 {
+			c.SVG, err = exchangeChart(ex.Points, ex.Batch, ex.Axis, c.Title)
+		} else {
+			err = fmt.Errorf("no item could be optimised under the targets")
+		}
+		what := "inventory investment, the sum over items of unit cost × mean on hand"
+		if !ex.UnitCost {
+			what = "holding cost per period, the sum over items of h × mean on hand (unit costs are missing for some items, so investment at cost cannot be summed)"
+		}
+		c.Caption = fmt.Sprintf("Each blue point re-optimises all %d items for the cheapest policy meeting one common fill-rate target (the label), and plots the demand-weighted aggregate fill rate against %s (Silver, Pyke & Thomas, Inventory and Production Management in Supply Chains, 4th ed., 2017). The orange triangle is the batch as planned. Points to the upper left of the curve waste stock; the curve shows what each extra point of service costs in stock.", ex.Items, what)
+		add(c, err)
+	}
+	{
+		c := Chart{ID: "saving-by-pattern", Title: "Saving by demand pattern"}
+		n := 0
+		for _, p := range pg.Patterns {
+			n += p.Items
+		}
+		svg, err := savingChart(pg.Patterns, c.Title)
+		if len(pg.Patterns) == 0 {
+			err = fmt.Errorf("no item has a current policy to compare with")
+		}
+		c.SVG = svg
+		c.Caption = fmt.Sprintf("Total saving per period from moving the %d items that have a current policy to the recommended one, by demand pattern (green: saving, red: the recommendation costs more, e.g. to meet a fill-rate floor).", n)
+		add(c, err)
+	}
+	if pg.In.History != nil {
+		c := Chart{ID: "pattern-map", Title: "Demand patterns of the history"}
+		svg, err := patternChart(pg.Scatter, history.ADICutoff, history.CV2Cutoff, c.Title)
+		c.SVG = svg
+		c.Caption = fmt.Sprintf("Each SKU of %s by the average interval between periods with demand (ADI) and the squared coefficient of variation of its non-zero demands (CV²). The dashed lines are the cut-offs ADI = %v and CV² = %v of Syntetos, Boylan & Croston (2005), Journal of the Operational Research Society 56(5).", pg.In.History.File, history.ADICutoff, history.CV2Cutoff)
+		add(c, err)
+	}
+}
+
+// WriteHTML writes the page.
+func (pg *BatchPage) WriteHTML(w io.Writer) error {
+	return execute(batchTemplate, w, pg.view())
+}
+
+func (pg *BatchPage) view() batchView {
+	in := pg.In
+	v := batchView{Title: "Replenishment report: batch", Version: in.Version, Sortable: true, Charts: pg.Charts, Notes: pg.Notes}
+	v.SubTitle = "From " + in.ResultsFile
+	if in.ItemsFile != "" {
+		v.SubTitle += " with the items of " + in.ItemsFile
+	}
+	if in.History != nil {
+		v.SubTitle += " and the history of " + in.History.File
+	}
+	v.SubTitle += ". Costs are per review period."
+	var done, failed, withCur int
+	var cost, curCost, saving, demand, served float64
+	for _, r := range in.Rows {
+		row := itemRow{SKU: r.SKU, Pattern: r.Pattern, Warnings: len(r.Warnings)}
+		if r.Demand != "" {
+			row.Mean = cell{strconv.FormatFloat(r.DemandMean, 'g', 4, 64), fkey(r.DemandMean)}
+		}
+		if r.Err != "" || r.Figures == nil {
+			failed++
+			row.Failed = true
+			row.Policy = "failed"
+			v.Errors = append(v.Errors, skuMessage{r.SKU, r.Err})
+		} else {
+			done++
+			f := r.Figures
+			row.Policy = string(r.Policy.Kind)
+			row.Levels = levels(*r.Policy)
+			row.Fill = cell{pct(f.FillRate), fkey(f.FillRate)}
+			row.Cost = cell{money(f.TotalCost), fkey(f.TotalCost)}
+			cost += f.TotalCost
+			demand += r.DemandMean
+			served += r.DemandMean * f.FillRate
+			if r.CurrentCost != nil {
+				withCur++
+				curCost += *r.CurrentCost
+				row.Current = cell{money(*r.CurrentCost), fkey(*r.CurrentCost)}
+			}
+			if r.Saving != nil {
+				saving += *r.Saving
+				row.Saving = cell{money(*r.Saving), fkey(*r.Saving)}
+			}
+		}
+		for _, w := range r.Warnings {
+			v.Warnings = append(v.Warnings, skuMessage{r.SKU, w})
+		}
+		v.Items = append(v.Items, row)
+	}
+	v.Glance = append(v.Glance, fmt.Sprintf("%d items: %d planned, %d failed.", len(in.Rows), done, failed))
+	if withCur > 0 {
+		share := ""
+		if curCost > 0 {
+			share = " (" + pct(saving/curCost) + " of their current cost)"
+		}
+		v.Glance = append(v.Glance, fmt.Sprintf("Moving the %d items with a current policy to the recommendations saves %s per period%s.", withCur, money(saving), share))
+	}
+	v.Totals = []kv{
+		{"total cost of the recommended policies", money(cost) + " per period"},
+	}
+	if withCur > 0 {
+		v.Totals = append(v.Totals, kv{"current cost of the items with a current policy", money(curCost) + " per period"})
+	}
+	if demand > 0 {
+		v.Totals = append(v.Totals, kv{"aggregate fill rate of the recommendations (demand-weighted)", pct(served / demand)})
+	}
+	if ex := pg.Exchange; ex != nil {
+		v.LeftOut = ex.LeftOut
+		if len(v.LeftOut) > 25 {
+			v.LeftOut = append(v.LeftOut[:25:25], fmt.Sprintf("and %d more", len(ex.LeftOut)-25))
+		}
+		v.Totals = append(v.Totals, kv{"exchange curve", fmt.Sprintf("%d items re-optimised at %d targets (%d searches)", ex.Items, len(in.Targets), ex.Optimized)})
+	} else {
+		v.Notes = append(v.Notes, "The exchange curve needs the items file (--items), to re-optimise every item under common fill-rate targets.")
+	}
+	return v
+}
+
+func levels(p policies.Policy) string {
+	switch p.Kind {
+	case policies.BaseStock:
+		return fmt.Sprintf("S=%d", p.OrderUpTo)
+	case policies.SS:
+		return fmt.Sprintf("s=%d, S=%d", p.ReorderPoint, p.OrderUpTo)
+	case policies.SNQ:
+		return fmt.Sprintf("s=%d, Q=%d", p.ReorderPoint, p.OrderMultiple)
+	}
+	return ""
+}
+
+func fkey(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
