@@ -1,13 +1,11 @@
 package main
 
 import (
-	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"runtime"
 	"strconv"
 	"strings"
@@ -15,9 +13,11 @@ import (
 	"sync/atomic"
 	"text/tabwriter"
 
+	"github.com/gocarina/gocsv"
 	"github.com/urfave/cli/v2"
 
 	"ergostock/inventory/history"
+	"ergostock/policies/batch"
 )
 
 // fitCommand fits a demand model to each SKU of a history file.
@@ -315,64 +315,54 @@ func fitWriteJSON(w io.Writer, res []fitResult) error {
 	return enc.Encode(out)
 }
 
-// fitCSVHeader names the columns of fit --out.
-var fitCSVHeader = []string{"sku", "first_period", "periods", "total", "mean", "variance", "zero_fraction", "adi", "cv2",
-	"pattern", "trend_slope", "trend_p", "model", "demand", "log_likelihood", "aic", "aicc", "warnings", "error"}
-
-func fitWriteCSV(w io.Writer, res []fitResult) error {
-	cw := csv.NewWriter(w)
-	if err := cw.Write(fitCSVHeader); err != nil {
-		return err
-	}
-	for _, r := range res {
-		s := r.Summary
-		ll, aic, aicc := "", "", ""
-		if s.Chosen >= 0 {
-			c := s.Candidates[s.Chosen]
-			ll, aic, aicc = fitNum(c.LogLikelihood), fitNum(c.AIC), fitNum(c.AICc)
-		}
-		rec := []string{r.SKU, r.First, strconv.Itoa(s.Periods), strconv.Itoa(s.Total), fitNum(s.Mean), fitNum(s.Variance),
-			fitNum(s.ZeroFraction), fitNum(s.ADI), fitNum(s.CV2), string(s.Pattern), fitNum(s.Trend.Slope), fitNum(s.Trend.P),
-			s.Model(), r.demand(), ll, aic, aicc, strings.Join(s.Warnings, "; "), r.errText()}
-		if err := cw.Write(rec); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
+// fitCSVRow is one row of fit --out; its tags name the columns.
+type fitCSVRow struct {
+	SKU           string `csv:"sku"`
+	FirstPeriod   string `csv:"first_period"`
+	Periods       int    `csv:"periods"`
+	Total         int    `csv:"total"`
+	Mean          string `csv:"mean"`
+	Variance      string `csv:"variance"`
+	ZeroFraction  string `csv:"zero_fraction"`
+	ADI           string `csv:"adi"`
+	CV2           string `csv:"cv2"`
+	Pattern       string `csv:"pattern"`
+	TrendSlope    string `csv:"trend_slope"`
+	TrendP        string `csv:"trend_p"`
+	Model         string `csv:"model"`
+	Demand        string `csv:"demand"`
+	LogLikelihood string `csv:"log_likelihood"`
+	AIC           string `csv:"aic"`
+	AICc          string `csv:"aicc"`
+	Warnings      string `csv:"warnings"`
+	Error         string `csv:"error"`
 }
 
-// fitWriteAtomic writes a file through a temporary file in the same
-// directory, renamed over path only once everything is written and synced,
-// so a failure leaves any existing file untouched.
-func fitWriteAtomic(path string, write func(io.Writer) error) (err error) {
-	dir, base := filepath.Split(path)
-	if dir == "" {
-		dir = "."
-	}
-	f, err := os.CreateTemp(dir, "."+base+".tmp-*")
-	if err != nil {
-		return fmt.Errorf("--out %s: %w", path, err)
-	}
-	defer func() {
-		if err != nil {
-			f.Close()
-			os.Remove(f.Name())
+// fitWriteCSV writes one row per SKU with gocsv, which takes the header from
+// the struct tags of fitCSVRow. Numbers are preformatted by fitNum so that
+// they read back to the same float64.
+func fitWriteCSV(w io.Writer, res []fitResult) error {
+	rows := make([]fitCSVRow, 0, len(res))
+	for _, r := range res {
+		s := r.Summary
+		row := fitCSVRow{SKU: r.SKU, FirstPeriod: r.First, Periods: s.Periods, Total: s.Total,
+			Mean: fitNum(s.Mean), Variance: fitNum(s.Variance), ZeroFraction: fitNum(s.ZeroFraction),
+			ADI: fitNum(s.ADI), CV2: fitNum(s.CV2), Pattern: string(s.Pattern),
+			TrendSlope: fitNum(s.Trend.Slope), TrendP: fitNum(s.Trend.P), Model: s.Model(), Demand: r.demand(),
+			Warnings: strings.Join(s.Warnings, "; "), Error: r.errText()}
+		if s.Chosen >= 0 {
+			c := s.Candidates[s.Chosen]
+			row.LogLikelihood, row.AIC, row.AICc = fitNum(c.LogLikelihood), fitNum(c.AIC), fitNum(c.AICc)
 		}
-	}()
-	if err = write(f); err != nil {
-		return fmt.Errorf("--out %s: %w", path, err)
+		rows = append(rows, row)
 	}
-	if err = f.Chmod(0o644); err != nil {
-		return fmt.Errorf("--out %s: %w", path, err)
-	}
-	if err = f.Sync(); err != nil {
-		return fmt.Errorf("--out %s: %w", path, err)
-	}
-	if err = f.Close(); err != nil {
-		return fmt.Errorf("--out %s: %w", path, err)
-	}
-	if err = os.Rename(f.Name(), path); err != nil {
+	return gocsv.Marshal(rows, w)
+}
+
+// fitWriteAtomic writes the --out file through the batch package's atomic
+// writer, so a failure leaves any existing file untouched.
+func fitWriteAtomic(path string, write func(io.Writer) error) error {
+	if err := batch.WriteFileAtomic(path, write); err != nil {
 		return fmt.Errorf("--out %s: %w", path, err)
 	}
 	return nil

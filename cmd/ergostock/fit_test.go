@@ -137,7 +137,7 @@ func TestFitOut(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(recs) != 4 || strings.Join(recs[0], ",") != strings.Join(fitCSVHeader, ",") || recs[1][0] != "WIPE-CAB-100" || recs[1][1] != "2026-01" {
+	if len(recs) != 4 || strings.Join(recs[0], ",") != fitCSVColumns || recs[1][0] != "WIPE-CAB-100" || recs[1][1] != "2026-01" {
 		t.Errorf("csv: %v", recs)
 	}
 	// Nothing else is left in the directory (no temporary file).
@@ -153,6 +153,9 @@ func TestFitOut(t *testing.T) {
 		t.Errorf("failed run: exit %d, output changed: %v", code, !bytes.Equal(before, after))
 	}
 }
+
+// fitCSVColumns is the header fit --out must write.
+const fitCSVColumns = "sku,first_period,periods,total,mean,variance,zero_fraction,adi,cv2,pattern,trend_slope,trend_p,model,demand,log_likelihood,aic,aicc,warnings,error"
 
 func TestFitErrors(t *testing.T) {
 	dir := t.TempDir()
