@@ -173,5 +173,5 @@ func ExampleParse() {
 	// Output:
 	// negbin:mean=4,var=12
 	// P(D=0) = 0.111111, P(D>=10) = 0.075147
-	// demand "negbin:mean=4,var=3": var > mean (negbin is over-dispersed; for var = mean use poisson:mean=M)
+	// demand "negbin:mean=4,var=3": want var > mean (negbin is over-dispersed; for var = mean use poisson:mean=M)
 }

@@ -14,9 +14,9 @@ type FieldError struct {
 
 func (e *FieldError) Error() string {
 	if e.Err != nil {
-		return fmt.Sprintf("%s %q: %s: %v", e.Field, e.Value, e.Want, e.Err)
+		return fmt.Sprintf("%s %q: want %s: %v", e.Field, e.Value, e.Want, e.Err)
 	}
-	return fmt.Sprintf("%s %q: %s", e.Field, e.Value, e.Want)
+	return fmt.Sprintf("%s %q: want %s", e.Field, e.Value, e.Want)
 }
 
 func (e *FieldError) Unwrap() error { return e.Err }

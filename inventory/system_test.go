@@ -61,7 +61,7 @@ func TestParseMode(t *testing.T) {
 func TestFieldError(t *testing.T) {
 	base := errors.New("boom")
 	e := &FieldError{Field: "lead_time", Value: "x", Want: "a whole number", Err: base}
-	if e.Error() != `lead_time "x": a whole number: boom` || !errors.Is(e, base) {
+	if e.Error() != `lead_time "x": want a whole number: boom` || !errors.Is(e, base) {
 		t.Errorf("Error() = %q", e.Error())
 	}
 }
