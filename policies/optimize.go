@@ -65,9 +65,9 @@ type Optimum struct {
 //     stockout probability falls with S.
 //   - s-S: the algorithm of Zheng and Federgruen (1991), "Finding optimal
 //     (s,S) policies is about as simple as evaluating a single policy".
-//     Under a floor: for each width S-s the cost is convex and the service
-//     monotone in s, so the cheapest feasible s is found by walks; widths
-//     stop at a proven lower bound on the cost of every wider policy.
+//     Under a floor: a sweep over S; for each S the cost is unimodal and
+//     the service monotone in s, so the cheapest feasible s is
+//     max(s_u, s_f); S stops at a proven bound (see ssConstrained).
 //   - s-nQ: the position after review is uniform on the Q levels above s,
 //     so for each Q the cost is convex in s; Q stops where the mean of the
 //     Q smallest one-period costs, a lower bound for every s, reaches the
@@ -235,9 +235,9 @@ func (mo *boModel) optimizeSS(fl floors) (Policy, Search, error) {
 	}
 	return Policy{Kind: SS, ReorderPoint: c.s, OrderUpTo: c.S}, Search{
 		Evaluated: r.computed + c.computed,
-		Method:    "Zheng-Federgruen (1991), then for each width S-s the cheapest reorder point meeting the floor",
-		Bounds:    map[string][2]int{"order_up_to_minus_reorder_point": {1, c.nmax}},
-		Guarantee: "global optimum under the floor (exact): for each width the cost is convex and the service monotone in s; widths beyond the bound provably cost more",
+		Method:    "Zheng-Federgruen (1991), then a sweep over the order-up-to level S with, for each S, the cheapest reorder point meeting the floor",
+		Bounds:    map[string][2]int{"order_up_to": {c.SLo, c.SHi}, "reorder_point": {c.sLo, c.sHi}},
+		Guarantee: "global optimum under the floor (exact): for each S the cost is unimodal and the service monotone in s; levels S outside the sweep provably cost more",
 	}, nil
 }
 
