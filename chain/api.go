@@ -58,6 +58,12 @@ type Options struct {
 	// MaxIter caps the iterations of the iterative methods. Zero means
 	// DefaultMaxIter.
 	MaxIter int
+	// Init, when not nil, is the vector the iterative methods (power,
+	// gauss-seidel) start from instead of the uniform one: one entry per
+	// state, finite and >= 0 with a positive sum (it is normalised). A
+	// vector near the answer, such as the distribution of a similar chain,
+	// saves iterations; the answer still meets Tol. Other methods ignore it.
+	Init []float64
 }
 
 // Diagnostics accompany every stationary distribution.

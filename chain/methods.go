@@ -180,17 +180,15 @@ func eigen(m Matrix) ([]float64, error) {
 	return pi, nil
 }
 
-// power iterates x <- x P from the uniform vector (Stewart 1994, sec. 3.1),
-// normalising each step, until ||x P - x||_1 <= tol. On a periodic chain
-// the iteration does not converge, so the lazy chain (I + P)/2 is iterated
-// instead: it has the same stationary distribution and is aperiodic.
-func power(c *CSR, lazy bool, tol float64, maxIter int) ([]float64, int, error) {
+// power iterates x <- x P from init (the uniform vector when init is nil;
+// Stewart 1994, sec. 3.1), normalising each step, until ||x P - x||_1 <= tol.
+// On a periodic chain the iteration does not converge, so the lazy chain
+// (I + P)/2 is iterated instead: it has the same stationary distribution
+// and is aperiodic.
+func power(c *CSR, lazy bool, tol float64, maxIter int, init []float64) ([]float64, int, error) {
 	n := c.n
-	x := make([]float64, n)
+	x := startVector(n, init)
 	y := make([]float64, n)
-	for i := range x {
-		x[i] = 1 / float64(n)
-	}
 	r := math.Inf(1)
 	var stall stagnation
 	for it := 1; it <= maxIter; it++ {
@@ -216,19 +214,32 @@ func power(c *CSR, lazy bool, tol float64, maxIter int) ([]float64, int, error) 
 	return nil, maxIter, fmt.Errorf("power: %w after %d iterations: residual %.3g, want <= %g (raise the iteration cap or the tolerance, or use gth)", ErrNotConverged, maxIter, r, tol)
 }
 
+// startVector returns a normalised copy of init (already checked by Solve:
+// length n, finite, non-negative, positive sum), or the uniform vector
+// when init is nil.
+func startVector(n int, init []float64) []float64 {
+	x := make([]float64, n)
+	if init == nil {
+		for i := range x {
+			x[i] = 1 / float64(n)
+		}
+		return x
+	}
+	copy(x, init)
+	normalise(x)
+	return x
+}
+
 // transpose returns the off-diagonal part of c by columns: for column j,
-// the rows i != j and values P(i,j) at positions ptr[j] <= k < ptr[j+1];
-// and the diagonal P(j,j). Built in O(n + nnz).
-func transpose(c *CSR) (ptr []int, row []int32, val, diag []float64) {
+// the rows i != j and values P(i,j) at positions ptr[j] <= k < ptr[j+1].
+// Built in O(n + nnz).
+func transpose(c *CSR) (ptr []int, row []int32, val []float64) {
 	n := c.n
 	ptr = make([]int, n+1)
-	diag = make([]float64, n)
 	for i := 0; i < n; i++ {
 		for k := c.rowPtr[i]; k < c.rowPtr[i+1]; k++ {
 			if j := int(c.col[k]); j != i {
 				ptr[j+1]++
-			} else {
-				diag[i] += c.val[k]
 			}
 		}
 	}
@@ -248,7 +259,7 @@ func transpose(c *CSR) (ptr []int, row []int32, val, diag []float64) {
 			}
 		}
 	}
-	return ptr, row, val, diag
+	return ptr, row, val
 }
 
 // gaussSeidel solves pi (I - P) = 0 by forward Gauss-Seidel sweeps
@@ -256,63 +267,98 @@ func transpose(c *CSR) (ptr []int, row []int32, val, diag []float64) {
 //
 //	pi_j <- sum_{i!=j} pi_i P(i,j) / sum_{k!=j} P(j,k),   j = 0, ..., n-1,
 //
-// using the newest values, on the transpose built once; the vector is
-// normalised after each sweep and the residual ||pi P - pi||_1 checked.
-// On nearly completely decomposable chains convergence can be very slow;
-// the error then reports the residual reached.
-func gaussSeidel(c *CSR, tol float64, maxIter int) ([]float64, int, error) {
+// using the newest values, from init (nil: the uniform vector); the vector
+// is normalised after each sweep and the residual ||pi P - pi||_1 checked.
+//
+// The sweep runs on the rows, in the "push" form: in(j) = sum_{i!=j} pi_i
+// P(i,j) is kept for every j, and when pi_i is updated the change times
+// row i is added to the in(j) of its targets, so in(j) holds the newest
+// values when state j's turn comes: the same iterates as the column form,
+// without building the transpose (which cost as much as several sweeps).
+// After a sweep in() belongs to the new vector, so the residual is checked
+// every sweep in O(n); a residual within the tolerance is confirmed on
+// inflows recomputed from scratch (additions of non-negative terms), which
+// also happens every 16 sweeps, so the round-off of the updates does not
+// accumulate. On nearly completely decomposable chains convergence can be
+// very slow; the error then reports the residual reached.
+func gaussSeidel(c *CSR, tol float64, maxIter int, init []float64) ([]float64, int, error) {
 	n := c.n
-	cp, cr, cv, diag := transpose(c)
-	diagOff := make([]float64, n) // sum_{k!=j} P(j,k)
+	rp, col, val := c.rowPtr, c.col, c.val
+	diag := make([]float64, n) // P(j,j)
+	off := make([]float64, n)  // sum_{k!=j} P(j,k)
 	for i := 0; i < n; i++ {
-		for k := c.rowPtr[i]; k < c.rowPtr[i+1]; k++ {
-			if int(c.col[k]) != i {
-				diagOff[i] += c.val[k]
+		for k := rp[i]; k < rp[i+1]; k++ {
+			if int(col[k]) != i {
+				off[i] += val[k]
+			} else {
+				diag[i] += val[k]
 			}
 		}
 	}
-	x := make([]float64, n)
-	for i := range x {
-		x[i] = 1 / float64(n)
+	x := startVector(n, init)
+	in := make([]float64, n)
+	// inflow sets in(j) = sum_{i!=j} x_i P(i,j).
+	inflow := func() {
+		clear(in)
+		for i := 0; i < n; i++ {
+			xi := x[i]
+			if xi == 0 {
+				continue
+			}
+			for k := rp[i]; k < rp[i+1]; k++ {
+				if j := int(col[k]); j != i {
+					in[j] += xi * val[k]
+				}
+			}
+		}
 	}
-	prev := make([]float64, n)
-	copy(prev, x)
+	inflow()
 	r := math.Inf(1)
 	var stall stagnation
 	for it := 1; it <= maxIter; it++ {
-		for j := 0; j < n; j++ {
-			var s float64
-			for k := cp[j]; k < cp[j+1]; k++ {
-				s += x[cr[k]] * cv[k]
+		for i := 0; i < n; i++ {
+			xi := max(in[i], 0) / off[i]
+			if d := xi - x[i]; d != 0 {
+				x[i] = xi
+				for k := rp[i]; k < rp[i+1]; k++ {
+					if j := int(col[k]); j != i {
+						in[j] += d * val[k]
+					}
+				}
 			}
-			x[j] = s / diagOff[j]
 		}
-		normalise(x)
-		// The true residual costs another pass over the matrix; take it only
-		// once the sweep's own change suggests convergence, or every 8th
-		// sweep.
-		if delta := change(x, prev); delta > 100*tol && it%8 != 0 && it != maxIter {
-			copy(prev, x)
-			continue
+		s := sum(x)
+		for i := range x {
+			x[i] /= s
+			in[i] /= s
 		}
-		copy(prev, x)
-		// Residual: (xP)_j - x_j from the columns.
-		r = 0
-		for j := 0; j < n; j++ {
-			s := diag[j] * x[j]
-			for k := cp[j]; k < cp[j+1]; k++ {
-				s += x[cr[k]] * cv[k]
+		// in() now holds the inflows of the new vector, so the residual
+		// costs O(n); it is confirmed on inflows recomputed from scratch
+		// (O(nnz)) before it is accepted, and these are refreshed every 16
+		// sweeps as well.
+		r = residualFrom(in, diag, x)
+		if r <= tol || it%16 == 0 || it == maxIter {
+			inflow()
+			r = residualFrom(in, diag, x)
+			if r <= tol {
+				return x, it, nil
 			}
-			r += math.Abs(s - x[j])
-		}
-		if r <= tol {
-			return x, it, nil
 		}
 		if stall.stuck(r) {
 			return nil, it, fmt.Errorf("gauss-seidel: %w: residual stagnated at %.3g after %d sweeps, want <= %g (round-off floor: raise the tolerance)", ErrNotConverged, stall.best, it, tol)
 		}
 	}
 	return nil, maxIter, fmt.Errorf("gauss-seidel: %w after %d sweeps: residual %.3g, want <= %g (the chain may be nearly decomposable or slowly mixing: raise the iteration cap or the tolerance, or use gth on up to %d states)", ErrNotConverged, maxIter, r, tol, MaxGTHStates)
+}
+
+// residualFrom returns sum_j |in(j) + P(j,j) x_j - x_j|, the residual
+// ||x P - x||_1 given the inflows in(j) = sum_{i!=j} x_i P(i,j).
+func residualFrom(in, diag, x []float64) float64 {
+	var r float64
+	for j := range x {
+		r += math.Abs(in[j] + diag[j]*x[j] - x[j])
+	}
+	return r
 }
 
 // stagnationSweeps is how many iterations without a new best residual end
@@ -333,13 +379,4 @@ func (s *stagnation) stuck(r float64) bool {
 	}
 	s.since++
 	return s.since >= stagnationSweeps
-}
-
-// change returns ||x - y||_1.
-func change(x, y []float64) float64 {
-	var d float64
-	for i := range x {
-		d += math.Abs(x[i] - y[i])
-	}
-	return d
 }

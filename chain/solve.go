@@ -3,6 +3,7 @@ package chain
 import (
 	"fmt"
 	"math"
+	"slices"
 )
 
 // Size limits of the dense methods (their storage is n*n float64 and their
@@ -26,6 +27,13 @@ const (
 // Kemeny & Snell, Finite Markov Chains, 1960, chs. 2-5); otherwise Solve returns a *ReducibleError. Transient states get
 // probability 0: the method runs on the closed class alone and its answer
 // is embedded. Diagnostics are computed on the whole chain.
+//
+// The classes are found by Classify (Tarjan's algorithm plus a period
+// search), except for Gauss-Seidel on a *CSR: there Solve first tries
+// whether every state can reach state 0 (rootedClass), which for a chain
+// built breadth first from state 0 costs a few sequential passes and
+// proves that the closed class is unique; only if not does it classify in
+// full. The answer is the same either way.
 func Solve(m Matrix, opt Options) (Result, error) {
 	labels := labelsOf(m)
 	m = unwrap(m)
@@ -51,20 +59,46 @@ func Solve(m Matrix, opt Options) (Result, error) {
 		return Result{}, err
 	}
 	n := m.Len()
-	st := Classify(m)
-	if len(st.Closed) != 1 {
-		cl := make([][]int, len(st.Closed))
-		for k, c := range st.Closed {
-			cl[k] = st.Classes[c]
+	if opt.Init != nil {
+		if err := checkInit(opt.Init, n); err != nil {
+			return Result{}, err
 		}
-		return Result{}, &ReducibleError{Closed: cl, Labels: labels}
 	}
-	members := st.Classes[st.Closed[0]]
+	var (
+		members   []int // the closed class, in order
+		per       int   // its period
+		transient int   // states outside it
+	)
+	if c, ok := m.(*CSR); ok && opt.Method == MethodGaussSeidel {
+		if mem, p, ok := rootedClass(c); ok {
+			members, per, transient = mem, p, n-len(mem)
+		}
+	}
+	if members == nil {
+		st := Classify(m)
+		if len(st.Closed) != 1 {
+			cl := make([][]int, len(st.Closed))
+			for k, c := range st.Closed {
+				cl[k] = st.Classes[c]
+			}
+			return Result{}, &ReducibleError{Closed: cl, Labels: labels}
+		}
+		members, per, transient = st.Classes[st.Closed[0]], st.Period[0], len(st.Transient)
+	}
 	sub := m
 	if len(members) < n {
 		sub = restrict(m, members)
+		if opt.Init != nil {
+			init := make([]float64, len(members))
+			for k, s := range members {
+				init[k] = opt.Init[s]
+			}
+			if sum(init) == 0 {
+				init = nil // the start put all its mass on transient states
+			}
+			opt.Init = init
+		}
 	}
-	per := st.Period[0]
 	name := func(k int) string {
 		s := members[k]
 		if labels != nil && s < len(labels) {
@@ -85,7 +119,7 @@ func Solve(m Matrix, opt Options) (Result, error) {
 	}
 	d := Check(m, r.Pi)
 	d.Method, d.Iterations, d.Lazy = r.Diagnostics.Method, r.Diagnostics.Iterations, r.Diagnostics.Lazy
-	d.Transient = len(st.Transient)
+	d.Transient = transient
 	d.Period = per
 	r.Diagnostics = d
 	return r, nil
@@ -184,9 +218,9 @@ func solveIrreducible(m Matrix, per int, opt Options, name func(int) string) (Re
 		pi, err = eigen(m)
 	case MethodPower:
 		lazy = per > 1
-		pi, it, err = power(ToCSR(m), lazy, opt.Tol, opt.MaxIter)
+		pi, it, err = power(ToCSR(m), lazy, opt.Tol, opt.MaxIter, opt.Init)
 	case MethodGaussSeidel:
-		pi, it, err = gaussSeidel(ToCSR(m), opt.Tol, opt.MaxIter)
+		pi, it, err = gaussSeidel(ToCSR(m), opt.Tol, opt.MaxIter, opt.Init)
 	default:
 		return Result{}, &MethodError{Name: string(meth)}
 	}
@@ -239,4 +273,151 @@ func isDoublyStochastic(m Matrix) bool {
 		}
 	}
 	return true
+}
+
+// checkInit checks a starting vector of Options.Init.
+func checkInit(init []float64, n int) error {
+	if len(init) != n {
+		return &ShapeError{Msg: fmt.Sprintf("starting vector of %d entries for a chain of %d states: want %d", len(init), n, n)}
+	}
+	var s float64
+	for i, v := range init {
+		if !(v >= 0) || math.IsInf(v, 0) {
+			return fmt.Errorf("starting vector, state %d: %v: want a finite number >= 0", i, v)
+		}
+		s += v
+	}
+	if !(s > 0) || math.IsInf(s, 0) {
+		return fmt.Errorf("starting vector sums to %v: want a finite sum > 0", s)
+	}
+	return nil
+}
+
+// rootedClass finds the closed class of c without the full decomposition
+// into classes when state 0 can be reached from every state: then every
+// closed class contains state 0, so there is exactly one, and it is the set
+// of states reachable from 0 (all other states are transient). reachesRoot
+// proves the premise, a breadth-first search from 0 finds the class, and
+// its period is 1 when a member has a self-loop, else the gcd of
+// level(u)+1-level(v) over its edges u -> v with the breadth-first levels
+// from 0 (as Classify computes it). Only transitions with p > 0 count. ok
+// is false when some state cannot reach 0; the caller then classifies in
+// full.
+func rootedClass(c *CSR) (members []int, per int, ok bool) {
+	n := c.n
+	zeros := slices.Contains(c.val, 0)
+	if !reachesRoot(c, zeros) {
+		return nil, 0, false
+	}
+	level := make([]int32, n)
+	for i := range level {
+		level[i] = -1
+	}
+	queue := make([]int32, 1, n)
+	level[0] = 0
+	for h := 0; h < len(queue); h++ {
+		u := queue[h]
+		for k := c.rowPtr[u]; k < c.rowPtr[u+1]; k++ {
+			if v := c.col[k]; level[v] < 0 && c.val[k] > 0 {
+				level[v] = level[u] + 1
+				queue = append(queue, v)
+			}
+		}
+	}
+	members = make([]int, 0, len(queue))
+	for i, l := range level {
+		if l >= 0 {
+			members = append(members, i)
+		}
+	}
+	for _, i := range members {
+		for k := c.rowPtr[i]; k < c.rowPtr[i+1]; k++ {
+			if int(c.col[k]) == i && c.val[k] > 0 {
+				return members, 1, true
+			}
+		}
+	}
+	d := 0
+	for _, u := range members {
+		for k := c.rowPtr[u]; k < c.rowPtr[u+1]; k++ {
+			if c.val[k] > 0 {
+				d = gcd(d, abs(int(level[u])+1-int(level[c.col[k]])))
+			}
+		}
+	}
+	if d == 0 {
+		d = 1 // defensive: a closed class always has a cycle
+	}
+	return members, d, true
+}
+
+// rootSweeps is how many sweeps over the rows reachesRoot makes before it
+// finishes with a breadth-first search over the columns.
+const rootSweeps = 6
+
+// reachesRoot reports whether state 0 can be reached from every state of c
+// (zeros: whether c stores explicit zeros, which are not transitions). A
+// state reaches 0 iff it is 0 or one of its successors does: sweeps over
+// the rows, alternately forwards and backwards, mark such states using the
+// marks already made. These are sequential passes over the storage, and
+// few are needed when the states are numbered in breadth-first order from
+// 0, as a chain built from a start state usually is (4 or 5 for the
+// lost-sales chains of package policies). A sweep that marks nothing more
+// proves that the unmarked states cannot reach 0. After rootSweeps sweeps a
+// breadth-first search backwards over the columns, from every marked state,
+// finishes the job in O(n + nnz).
+func reachesRoot(c *CSR, zeros bool) bool {
+	n := c.n
+	seen := make([]bool, n)
+	seen[0] = true
+	count := 1
+	mark := func(i int) bool {
+		for k := c.rowPtr[i]; k < c.rowPtr[i+1]; k++ {
+			if seen[c.col[k]] && (!zeros || c.val[k] > 0) {
+				seen[i] = true
+				count++
+				return true
+			}
+		}
+		return false
+	}
+	for sweep := 0; sweep < rootSweeps && count < n; sweep++ {
+		changed := false
+		if sweep%2 == 0 {
+			for i := 1; i < n; i++ {
+				if !seen[i] && mark(i) {
+					changed = true
+				}
+			}
+		} else {
+			for i := n - 1; i >= 1; i-- {
+				if !seen[i] && mark(i) {
+					changed = true
+				}
+			}
+		}
+		if !changed {
+			return false
+		}
+	}
+	if count == n {
+		return true
+	}
+	ptr, row, val := transpose(c)
+	queue := make([]int32, 0, n)
+	for i, s := range seen {
+		if s {
+			queue = append(queue, int32(i))
+		}
+	}
+	for h := 0; h < len(queue); h++ {
+		v := queue[h]
+		for k := ptr[v]; k < ptr[v+1]; k++ {
+			if u := row[k]; !seen[u] && val[k] > 0 {
+				seen[u] = true
+				queue = append(queue, u)
+			}
+		}
+	}
+	return len(queue) == n
 }
