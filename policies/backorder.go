@@ -247,14 +247,18 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	f.OrderingCost = sys.OrderCost * f.OrderFrequency
 	f.PurchaseCost = sys.UnitCost * perPeriod
 	f.TotalCost = f.HoldingCost + f.ShortageCost + f.OrderingCost + f.PurchaseCost
-	return &Evaluation{
+	e := &Evaluation{
 		Policy:      p,
 		Figures:     f,
 		States:      c.m.Len(),
 		Diagnostics: c.diag,
 		Neglected:   max(c.negl, inventory.Neglected(dist), neglL, neglL1, tL.neglected, tL1.neglected, dtab.neglected),
 		FlowBalance: math.Abs(ordered.value() - mean),
-	}, nil
+	}
+	if opt.Levels {
+		e.Levels = backorderLevels(c, xl1)
+	}
+	return e, nil
 }
 
 // solvePosition builds and solves the inventory-position chain of p; it

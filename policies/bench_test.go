@@ -36,3 +36,64 @@ func BenchmarkEvaluateLost(b *testing.B) {
 		b.ReportMetric(float64(e.Diagnostics.Iterations), "sweeps")
 	}
 }
+
+// lostOptCase is a lost-sales system of the demo scale: Poisson demand of
+// mean 8.4 per period, lead time 3, h = 0.02, b = 6.9, K = 62, c = 4.5.
+func lostOptCase(b testing.TB) inventory.System {
+	return inventory.System{Demand: poisson(b, 8.4), LeadTime: 3, Holding: 0.02, Shortage: 6.9, OrderCost: 62, UnitCost: 4.5, Mode: inventory.Lost}
+}
+
+// BenchmarkOptimizeLostBaseStock: the base-stock search in lost mode on
+// lostOptCase (about a dozen chains of up to 250,000 states).
+func BenchmarkOptimizeLostBaseStock(b *testing.B) {
+	benchOptimizeLost(b, BaseStock)
+}
+
+// BenchmarkOptimizeLostSS: the s-S compass search in lost mode on
+// lostOptCase.
+func BenchmarkOptimizeLostSS(b *testing.B) {
+	benchOptimizeLost(b, SS)
+}
+
+func benchOptimizeLost(b *testing.B, k Kind) {
+	sys := lostOptCase(b)
+	b.ReportAllocs()
+	for b.Loop() {
+		o, err := Optimize(sys, k, SearchOptions{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.ReportMetric(float64(o.Search.Evaluated), "evaluated")
+		b.ReportMetric(float64(o.States), "states")
+	}
+}
+
+// BenchmarkEvaluateSSLevels: BenchmarkEvaluateSS with Options.Levels (the
+// net-inventory distribution: a convolution over 2,000 positions and the
+// ~500 values of lead-time demand between its 1e-30 quantiles).
+func BenchmarkEvaluateSSLevels(b *testing.B) {
+	sys := inventory.System{Demand: poisson(b, 400), LeadTime: 3, Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
+	p := Policy{Kind: SS, ReorderPoint: 1500, OrderUpTo: 3500}
+	b.ReportAllocs()
+	for b.Loop() {
+		e, err := Evaluate(sys, p, Options{Levels: true})
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.ReportMetric(float64(len(e.Levels.P)), "levels")
+	}
+}
+
+// BenchmarkEvaluateLostLevels: BenchmarkEvaluateLost with Options.Levels.
+func BenchmarkEvaluateLostLevels(b *testing.B) {
+	sys := inventory.System{Demand: poisson(b, 5), LeadTime: 4, Holding: 1, Shortage: 20, Mode: inventory.Lost}
+	p := Policy{Kind: BaseStock, OrderUpTo: 30}
+	b.ReportAllocs()
+	for b.Loop() {
+		e, err := Evaluate(sys, p, Options{Levels: true})
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.ReportMetric(float64(len(e.Levels.P)), "levels")
+	}
+}

@@ -24,6 +24,10 @@ type Options struct {
 	// inventory-position chain of s-S and base-stock; by default those
 	// below 1e-20 join the restart at top (see Evaluation.Neglected).
 	Exhaustive bool
+	// Levels asks for Evaluation.Levels, the stationary distribution of the
+	// stock level at the end of a period (off by default: batch runs do not
+	// pay for it).
+	Levels bool
 }
 
 // Evaluation is what a policy delivers, with the chain it came from.
@@ -46,6 +50,10 @@ type Evaluation struct {
 	// E[min(D, on-hand after the arrival)] (lost mode): a check of the
 	// long-run flow balance, zero up to round-off.
 	FlowBalance float64
+	// Levels is the stationary distribution of net inventory (backorder
+	// mode) or on-hand (lost mode) at the end of a period; nil unless
+	// Options.Levels is set.
+	Levels *LevelDistribution
 }
 
 // Evaluate computes every figure of policy p on system sys exactly from the

@@ -2,11 +2,13 @@ package policies
 
 import (
 	"errors"
+	"math"
 	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
 
+	"ergostock/chain"
 	"ergostock/inventory"
 )
 
@@ -193,22 +195,28 @@ func TestLostOneLeadBrute(t *testing.T) {
 	} {
 		d := pmf(t, c.p...)
 		pol := c.pol
-		e, err := Evaluate(lostSystem(d, 1, 1, 1, 0, 0), pol, Options{})
-		if err != nil {
-			t.Fatalf("%v: %v", pol, err)
-		}
 		on, lost, out, freq, qty := bruteLost(t, c.p, pol)
-		f := e.Figures
-		for _, v := range []struct {
-			name      string
-			got, want float64
-		}{
-			{"mean_on_hand", f.MeanOnHand, on}, {"mean_lost_sales", f.MeanLostSales, lost},
-			{"stockout_probability", f.StockoutProbability, out}, {"order_frequency", f.OrderFrequency, freq},
-			{"mean_order_quantity", f.MeanOrderQuantity, qty},
-		} {
-			if !close(v.got, v.want, 1e-10) {
-				t.Errorf("%v L=1: %s = %.15g, want %.15g (brute force)", pol, v.name, v.got, v.want)
+		var e *Evaluation
+		// The automatic solver (GTH on these small chains), and Gauss-Seidel
+		// (chain.Solve's rooted-class path, the no-loss start of base-stock).
+		for _, m := range []chain.Method{"", chain.MethodGaussSeidel} {
+			var err error
+			e, err = Evaluate(lostSystem(d, 1, 1, 1, 0, 0), pol, Options{Chain: chain.Options{Method: m}})
+			if err != nil {
+				t.Fatalf("%v: %v", pol, err)
+			}
+			f := e.Figures
+			for _, v := range []struct {
+				name      string
+				got, want float64
+			}{
+				{"mean_on_hand", f.MeanOnHand, on}, {"mean_lost_sales", f.MeanLostSales, lost},
+				{"stockout_probability", f.StockoutProbability, out}, {"order_frequency", f.OrderFrequency, freq},
+				{"mean_order_quantity", f.MeanOrderQuantity, qty},
+			} {
+				if !close(v.got, v.want, 1e-10) {
+					t.Errorf("%v L=1 %s: %s = %.15g, want %.15g (brute force)", pol, e.Diagnostics.Method, v.name, v.got, v.want)
+				}
 			}
 		}
 		if e.FlowBalance > 1e-12 {
@@ -309,5 +317,88 @@ func TestLostTailNearOne(t *testing.T) {
 	}
 	if e.Diagnostics.Balance > 1e-12 {
 		t.Errorf("balance %g, want <= 1e-12", e.Diagnostics.Balance)
+	}
+}
+
+// TestLostUnevenChain: Poisson demand of mean 400 against s-nQ(3, 7): every
+// period ends with nothing on hand (P(D < 10) is about 1e-155), so each
+// review orders 7, a = 7 and E[lost] = E[(D - 7)^+] = 393 up to 1e-150,
+// fill rate 7/400 (derived by hand). Dense GTH underflowed to NaN on this
+// chain; the solve falls back to Gauss-Seidel.
+func TestLostUnevenChain(t *testing.T) {
+	sys := inventory.System{Demand: poisson(t, 400), Holding: 1, Shortage: 9, OrderCost: 5, UnitCost: 1, Mode: inventory.Lost}
+	e, err := Evaluate(sys, Policy{Kind: SNQ, ReorderPoint: 3, OrderMultiple: 7}, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := e.Figures
+	if math.Abs(f.MeanLostSales-393) > 1e-12 || math.Abs(f.FillRate-7.0/400) > 1e-15 || f.OrderFrequency != 1 || math.IsNaN(e.Diagnostics.Residual) || e.Diagnostics.Residual > tight {
+		t.Errorf("figures %+v, diagnostics %+v", f, e.Diagnostics)
+	}
+}
+
+// TestLostStartVectors: the Gauss-Seidel sweeps of a base-stock
+// lost-sales solve start from the law the state would have if nothing were
+// lost (baseStockStart) instead of the uniform vector. The figures equal
+// those from the uniform start to the solver's tolerance, in fewer sweeps.
+func TestLostStartVectors(t *testing.T) {
+	var uniform, started int
+	for _, c := range []struct {
+		m    float64
+		L, S int
+	}{{6, 2, 24}, {6, 2, 15}, {2, 3, 12}, {8.4, 1, 60}} {
+		sys := inventory.System{Demand: poisson(t, c.m), LeadTime: c.L, Holding: 1, Shortage: 19, OrderCost: 10, Mode: inventory.Lost}
+		p := Policy{Kind: BaseStock, OrderUpTo: c.S}
+		gs := chain.Options{Method: chain.MethodGaussSeidel}
+		e, err := Evaluate(sys, p, Options{Chain: gs})
+		if err != nil {
+			t.Fatal(err)
+		}
+		// The uniform start, through chain.Options.Init.
+		gs.Init = make([]float64, e.States)
+		for i := range gs.Init {
+			gs.Init[i] = 1
+		}
+		u, err := Evaluate(sys, p, Options{Chain: gs})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Logf("%+v: %d states, sweeps from the uniform start %d, from the no-loss law %d", c, e.States, u.Diagnostics.Iterations, e.Diagnostics.Iterations)
+		uniform += u.Diagnostics.Iterations
+		started += e.Diagnostics.Iterations
+		for _, fd := range [][2]float64{
+			{u.Figures.TotalCost, e.Figures.TotalCost}, {u.Figures.FillRate, e.Figures.FillRate},
+			{u.Figures.MeanOnHand, e.Figures.MeanOnHand}, {u.Figures.StockoutProbability, e.Figures.StockoutProbability},
+		} {
+			if math.Abs(fd[0]-fd[1]) > 1e-11*(1+math.Abs(fd[0])) {
+				t.Errorf("%+v: uniform start %.15g, no-loss start %.15g", c, fd[0], fd[1])
+			}
+		}
+		if e.Diagnostics.Residual > tight {
+			t.Errorf("%+v: residual %g", c, e.Diagnostics.Residual)
+		}
+	}
+	if started >= uniform {
+		t.Errorf("%d sweeps in all, %d from the uniform start", started, uniform)
+	}
+}
+
+// TestLostReachableCount: demand of 0 or 1 unit (P(D = 1) = 0.15),
+// base-stock S = 21, L = 3. Each order replaces the last period's sale, 0
+// or 1, so the pipeline holds three values in {0, 1} and on-hand at review
+// is 21 - (o_1 + o_2 + o_3) - (last sale): 2^4 = 16 reachable states
+// (derived by hand). On-hand never reaches 0, so no state with an empty
+// shelf may be built: the lump P(D >= a) is 0 for a >= 2.
+func TestLostReachableCount(t *testing.T) {
+	sys := inventory.System{Demand: pmf(t, 0.85, 0.15), LeadTime: 3, Holding: 1, Shortage: 9, Mode: inventory.Lost}
+	for _, m := range []chain.Method{"", chain.MethodGaussSeidel} {
+		e, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: 21}, Options{Chain: chain.Options{Method: m}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		// Nothing is ever lost: on-hand stays >= 21 - 4 = 17 > 1.
+		if e.States != 16 || e.Diagnostics.Transient != 0 || e.Figures.MeanLostSales != 0 || math.Abs(e.Figures.FillRate-1) > 1e-13 {
+			t.Errorf("%s: %d states (%d transient), lost %g, fill %g: want 16, 0, 0, 1", m, e.States, e.Diagnostics.Transient, e.Figures.MeanLostSales, e.Figures.FillRate)
+		}
 	}
 }
