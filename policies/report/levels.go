@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"ergostock/chain"
 	"ergostock/inventory"
 	"ergostock/policies"
 )
@@ -31,78 +30,20 @@ func (l levelLaw) mean() float64 {
 	return m
 }
 
-// errNoLevels reports a case whose level distribution this package cannot
-// compute from the public API (lost sales with a positive lead time).
-var errNoLevels = fmt.Errorf("the on-hand distribution of a lost-sales chain with a positive lead time is not available")
-
 // stockLevels returns the stationary law of net inventory at the end of a
 // period (backorder mode) or of on-hand stock at the end of a period (lost
-// mode, zero lead time only).
-//
-// Backorder mode: net inventory is NI = Y - X_(L+1) with Y the inventory
-// position just after review, independent of the demand X_(L+1) over the
-// lead time and the period (SPEC section 1; Zipkin, Foundations of
-// Inventory Management, 2000, §6.2). The law of Y is
-//   - base-stock S: Y = S;
-//   - s-S: P(Y = S-j) = m(j) / sum_{i<S-s} m(i), j = 0..S-s-1, with m the
-//     renewal mass of demand, m(0) = 1/(1-p0), m(j) = sum_{k=1..j} p_k
-//     m(j-k) / (1-p0) (Veinott & Wagner 1965, Management Science 11(5);
-//     Zheng & Federgruen 1991, Operations Research 39(4));
-//   - s-nQ: uniform on the positions reachable from s+Q (see snqClass),
-//     the stationary law of the doubly stochastic chain of inventory
-//     position (Hadley & Whitin, Analysis of Inventory Systems, 1963;
-//     Zipkin 2000, §6.3).
-//
-// Lost mode with L = 0: the chain of on-hand y just after review on
-// s+1..top, y -> (y-D)^+ then an order if that is <= s, is solved with
-// package chain; on-hand at the end of the period is (y-D)^+.
+// mode), as the exact evaluation computes it from the policy's chain (see
+// policies.LevelDistribution for the formulas). Neglected is the mass left
+// out at the two ends together.
 func stockLevels(sys inventory.System, p policies.Policy) (levelLaw, error) {
-	s, top := p.Levels()
-	if sys.Mode == inventory.Lost {
-		if sys.LeadTime > 0 {
-			return levelLaw{}, errNoLevels
-		}
-		return lostLevels(sys.Demand, p, s, top)
+	e, err := policies.Evaluate(sys, p, policies.Options{Levels: true})
+	if err != nil {
+		return levelLaw{}, err
 	}
-	var y []float64 // P(Y = s+1+i)
-	n := top - s
-	switch p.Kind {
-	case policies.BaseStock:
-		y = make([]float64, n)
-		y[n-1] = 1
-	case policies.SS:
-		m := renewalMass(sys.Demand, n)
-		y = make([]float64, n)
-		tot := 0.0
-		for j := range n {
-			tot += m[j]
-		}
-		for j := range n {
-			y[n-1-j] = m[j] / tot
-		}
-	case policies.SNQ:
-		y = make([]float64, n)
-		c := snqClass(sys.Demand, s, n)
-		for _, v := range c {
-			y[v-s-1] = 1 / float64(len(c))
-		}
-	default:
-		return levelLaw{}, fmt.Errorf("policy type %q: want base-stock, s-S or s-nQ", p.Kind)
+	if e.Levels == nil {
+		return levelLaw{}, fmt.Errorf("policy %v: the evaluation returned no level distribution", p)
 	}
-	x, negl := periodsDemand(sys.Demand, sys.LeadTime+1)
-	// NI = Y - X ranges over s+1-(len(x)-1) .. top.
-	lo := s + 1 - (len(x) - 1)
-	out := make([]float64, top-lo+1)
-	for i, py := range y {
-		if py == 0 {
-			continue
-		}
-		yv := s + 1 + i
-		for k, px := range x {
-			out[yv-k-lo] += py * px
-		}
-	}
-	return levelLaw{Lo: lo, P: out, Neglected: negl}, nil
+	return levelLaw{Lo: e.Levels.Min, P: e.Levels.P, Neglected: e.Levels.Below + e.Levels.Above}, nil
 }
 
 // renewalMass returns m(0..n-1), the expected number of periods, counted
@@ -149,52 +90,6 @@ func periodsDemand(d inventory.Distribution, n int) ([]float64, float64) {
 		x = y
 	}
 	return x, math.Min(1, float64(n)*negl)
-}
-
-// lostLevels solves the lost-sales chain with zero lead time (see
-// stockLevels) and returns the law of on-hand at the end of a period.
-func lostLevels(d inventory.Distribution, p policies.Policy, s, top int) (levelLaw, error) {
-	if top < 0 {
-		return levelLaw{}, fmt.Errorf("policy %v: order-up-to level below 0", p)
-	}
-	lo := max(s+1, 0)
-	n := top - lo + 1
-	b := chain.NewBuilder(n)
-	next := func(x int) int {
-		if x > s {
-			return x
-		}
-		return x + p.Order(x)
-	}
-	for i := range n {
-		y := lo + i
-		// Demand d < y leaves y-d on hand; d >= y leaves 0.
-		for k := range y {
-			if pk := d.PMF(k); pk > 0 {
-				b.Add(i, next(y-k)-lo, pk)
-			}
-		}
-		if t := d.Tail(y); t > 0 {
-			b.Add(i, next(0)-lo, t)
-		}
-	}
-	m, err := b.Build()
-	if err != nil {
-		return levelLaw{}, fmt.Errorf("on-hand chain of %v: %w", p, err)
-	}
-	res, err := chain.Solve(m, chain.Options{})
-	if err != nil {
-		return levelLaw{}, fmt.Errorf("on-hand chain of %v: %w", p, err)
-	}
-	out := make([]float64, top+1)
-	for i, py := range res.Pi {
-		y := lo + i
-		for k := range y {
-			out[y-k] += py * d.PMF(k)
-		}
-		out[0] += py * d.Tail(y)
-	}
-	return levelLaw{Lo: 0, P: out}, nil
 }
 
 // snqClass returns the inventory positions after review that an s-nQ

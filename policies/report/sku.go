@@ -1,7 +1,6 @@
 package report
 
 import (
-	"errors"
 	"fmt"
 	"html/template"
 	"math"
@@ -176,11 +175,7 @@ func (pg *SKUPage) gatherLevels() {
 	for _, p := range ps {
 		l, err := stockLevels(sys, p)
 		if err != nil {
-			if errors.Is(err, errNoLevels) {
-				pg.Notes = append(pg.Notes, "The on-hand distribution chart needs the stationary law of the lost-sales chain with a positive lead time, which the exact evaluation does not yet expose; it is left out.")
-			} else {
-				pg.Notes = append(pg.Notes, fmt.Sprintf("level distribution of %v: %v", p, err))
-			}
+			pg.Notes = append(pg.Notes, fmt.Sprintf("level distribution of %v: %v", p, err))
 			return
 		}
 		laws = append(laws, l)
