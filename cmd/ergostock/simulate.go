@@ -83,27 +83,6 @@ func simulateAction(c *cli.Context) error {
 	return simWriteTable(out, sys, p, res, exact)
 }
 
-// simPolicy is the JSON form of a policy: its type and the levels that apply.
-type simPolicy struct {
-	Type          policies.Kind `json:"type"`
-	ReorderPoint  *int          `json:"reorder_point,omitempty"`
-	OrderUpTo     *int          `json:"order_up_to,omitempty"`
-	OrderMultiple *int          `json:"order_multiple,omitempty"`
-}
-
-func simPolicyJSON(p policies.Policy) simPolicy {
-	j := simPolicy{Type: p.Kind}
-	switch p.Kind {
-	case policies.BaseStock:
-		j.OrderUpTo = &p.OrderUpTo
-	case policies.SS:
-		j.ReorderPoint, j.OrderUpTo = &p.ReorderPoint, &p.OrderUpTo
-	case policies.SNQ:
-		j.ReorderPoint, j.OrderMultiple = &p.ReorderPoint, &p.OrderMultiple
-	}
-	return j
-}
-
 // simSettings records how the simulation ran; it holds nothing that depends
 // on the number of workers.
 type simSettings struct {
@@ -140,7 +119,7 @@ func simWriteJSON(w io.Writer, sys inventory.System, p policies.Policy, res *sim
 	for i, f := range res.Mean.Fields() {
 		fmt.Fprintf(&b, `%q:{"mean":%s,"ci95":%s},`, f.Name, simNumber(f.Value), simNumber(hw[i].Value))
 	}
-	pol, err := json.Marshal(simPolicyJSON(p))
+	pol, err := json.Marshal(newPolicyObject(p))
 	if err != nil {
 		return err
 	}
