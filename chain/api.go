@@ -26,11 +26,15 @@ const (
 	MethodForward Method = "forward"
 	// MethodUniform answers 1/n for an irreducible doubly stochastic chain.
 	MethodUniform Method = "uniform"
+	// MethodIAD is iterative aggregation/disaggregation (Koury, McAllister
+	// & Stewart 1984) on a nearly completely decomposable chain, with the
+	// blocks found by ncdPartition; it refuses a chain without such blocks.
+	MethodIAD Method = "iad"
 )
 
 // Methods lists every method name in a stable order.
 var Methods = []Method{MethodAuto, MethodPower, MethodEigen, MethodDirect,
-	MethodGTH, MethodGaussSeidel, MethodForward, MethodUniform}
+	MethodGTH, MethodGaussSeidel, MethodForward, MethodUniform, MethodIAD}
 
 // ParseMethod returns the Method named s, or an error naming the choices.
 func ParseMethod(s string) (Method, error) {
@@ -53,13 +57,13 @@ const (
 type Options struct {
 	Method Method
 	// Tol is the target of the residual ||pi P - pi||_1 for the iterative
-	// methods (power, gauss-seidel). Zero means DefaultTol.
+	// methods (power, gauss-seidel, iad). Zero means DefaultTol.
 	Tol float64
 	// MaxIter caps the iterations of the iterative methods. Zero means
 	// DefaultMaxIter.
 	MaxIter int
 	// Init, when not nil, is the vector the iterative methods (power,
-	// gauss-seidel) start from instead of the uniform one: one entry per
+	// gauss-seidel, iad) start from instead of the uniform one: one entry per
 	// state, finite and >= 0 with a positive sum (it is normalised). A
 	// vector near the answer, such as the distribution of a similar chain,
 	// saves iterations; the answer still meets Tol. Other methods ignore it.

@@ -34,12 +34,20 @@
 //   - eigen: left eigenvector of eigenvalue 1 (gonum mat.Eigen).
 //   - power: x <- x P; on a periodic chain the lazy chain (I + P)/2.
 //   - gauss-seidel: sweeps on pi (I - P) = 0 using the transpose.
+//   - iad: iterative aggregation/disaggregation (Koury, McAllister &
+//     Stewart, SIAM J. Algebraic Discrete Methods 5(2), 1984) on a nearly
+//     completely decomposable chain: aggregate, solve the block chain by
+//     GTH, disaggregate, one block Gauss-Seidel sweep with exact GTH block
+//     solves. The blocks are the strongly connected components left after
+//     dropping the entries below a gap of magnitude (ncdPartition).
 //
 // Power and Gauss-Seidel follow Stewart, Introduction to the Numerical
 // Solution of Markov Chains (Princeton, 1994), ch. 3; they stop when the
 // residual ||pi P - pi||_1 reaches Options.Tol and report failure with the
 // residual reached. Auto picks forward, then uniform, then GTH (dense up to
-// AutoDenseStates, banded when the band is narrow), then Gauss-Seidel.
+// AutoDenseStates, banded when the band is narrow), then IAD when the
+// chain has nearly decomposable blocks (at most AutoCoupling of a row's
+// mass leaving its block), then Gauss-Seidel.
 //
 // # Checks
 //

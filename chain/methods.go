@@ -345,7 +345,7 @@ func gaussSeidel(c *CSR, tol float64, maxIter int, init []float64) ([]float64, i
 			}
 		}
 		if stall.stuck(r) {
-			return nil, it, fmt.Errorf("gauss-seidel: %w: residual stagnated at %.3g after %d sweeps, want <= %g (round-off floor: raise the tolerance)", ErrNotConverged, stall.best, it, tol)
+			return nil, it, fmt.Errorf("gauss-seidel: %w: residual stagnated at %.3g after %d sweeps, want <= %g (the round-off floor, or a nearly decomposable chain: raise the tolerance or try --method iad)", ErrNotConverged, stall.best, it, tol)
 		}
 	}
 	return nil, maxIter, fmt.Errorf("gauss-seidel: %w after %d sweeps: residual %.3g, want <= %g (the chain may be nearly decomposable or slowly mixing: raise the iteration cap or the tolerance, or use gth on up to %d states)", ErrNotConverged, maxIter, r, tol, MaxGTHStates)

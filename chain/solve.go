@@ -14,7 +14,8 @@ const (
 	MaxGTHStates    = 4000
 	// AutoDenseStates is the largest closed class that MethodAuto solves
 	// with dense GTH; larger ones go to banded GTH when the bandwidth w
-	// allows (n*w^2 <= 4e9), else to Gauss-Seidel.
+	// allows (n*w^2 <= 4e9), else to IAD when ncdPartition finds nearly
+	// decomposable blocks, else to Gauss-Seidel.
 	AutoDenseStates = 2000
 	// DoublyStochasticTol is the largest |column sum - 1| accepted by the
 	// uniform method.
@@ -155,6 +156,7 @@ func restrict(m Matrix, members []int) *CSR {
 func solveIrreducible(m Matrix, per int, opt Options, name func(int) string) (Result, error) {
 	n := m.Len()
 	meth := opt.Method
+	var part *partition // the NCD blocks when auto found them
 	if n == 1 {
 		if meth == MethodAuto {
 			meth = MethodGTH // nothing to eliminate: pi = (1)
@@ -173,6 +175,9 @@ func solveIrreducible(m Matrix, per int, opt Options, name func(int) string) (Re
 			meth = MethodGTH
 		default:
 			meth = MethodGaussSeidel
+			if p, ok := ncdPartition(ToCSR(m)); ok {
+				meth, part = MethodIAD, &p
+			}
 		}
 	}
 	var (
@@ -221,6 +226,16 @@ func solveIrreducible(m Matrix, per int, opt Options, name func(int) string) (Re
 		pi, it, err = power(ToCSR(m), lazy, opt.Tol, opt.MaxIter, opt.Init)
 	case MethodGaussSeidel:
 		pi, it, err = gaussSeidel(ToCSR(m), opt.Tol, opt.MaxIter, opt.Init)
+	case MethodIAD:
+		c := ToCSR(m)
+		if part == nil {
+			p, ok := ncdPartition(c)
+			if !ok {
+				return Result{}, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("no nearly decomposable blocks found: want a gap of at least %d binary orders of magnitude among the entries below 2^-10, 2 to min(n/2, %d) strongly connected blocks above it, and at most %g of each row's mass leaving its block", ncdGap, MaxIADBlocks, AutoCoupling)}
+			}
+			part = &p
+		}
+		pi, it, err = iad(c, *part, opt.Tol, opt.MaxIter, opt.Init)
 	default:
 		return Result{}, &MethodError{Name: string(meth)}
 	}

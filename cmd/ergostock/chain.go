@@ -31,7 +31,7 @@ func chainCommand() *cli.Command {
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "matrix", Usage: "transition matrix `FILE` (dense CSV or from,to,probability list; - for stdin); required"},
 			&cli.StringFlag{Name: "method", Usage: "solver: " + strings.Join(methods, ", "), Value: string(chain.MethodAuto)},
-			&cli.Float64Flag{Name: "tol", Usage: "target residual ||pi P - pi||_1 of the iterative methods (power, gauss-seidel)", Value: chain.DefaultTol},
+			&cli.Float64Flag{Name: "tol", Usage: "target residual ||pi P - pi||_1 of the iterative methods (power, gauss-seidel, iad)", Value: chain.DefaultTol},
 			&cli.IntFlag{Name: "max-iter", Usage: "iteration cap of the iterative methods", Value: chain.DefaultMaxIter},
 			&cli.BoolFlag{Name: "json", Usage: "print one JSON object instead of a table"},
 		},
