@@ -56,3 +56,23 @@ func FromFields(v []float64) Figures {
 	}
 	return f
 }
+
+// Price fills in the cost figures of f from its physical figures and the
+// system's cost rates, with ordered the expected units ordered per period:
+//
+//	holding  = h * mean on hand
+//	shortage = b * mean backorders (backorder mode) or b * mean lost sales (lost mode)
+//	ordering = K * order frequency
+//	purchase = c * ordered
+//	total    = holding + shortage + ordering + purchase
+func (f *Figures) Price(sys System, ordered float64) {
+	f.HoldingCost = sys.Holding * f.MeanOnHand
+	if sys.Mode == Lost {
+		f.ShortageCost = sys.Shortage * f.MeanLostSales
+	} else {
+		f.ShortageCost = sys.Shortage * f.MeanBackorders
+	}
+	f.OrderingCost = sys.OrderCost * f.OrderFrequency
+	f.PurchaseCost = sys.UnitCost * ordered
+	f.TotalCost = f.HoldingCost + f.ShortageCost + f.OrderingCost + f.PurchaseCost
+}

@@ -242,11 +242,7 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	if f.OrderFrequency > 0 {
 		f.MeanOrderQuantity = perPeriod / f.OrderFrequency
 	}
-	f.HoldingCost = sys.Holding * f.MeanOnHand
-	f.ShortageCost = sys.Shortage * f.MeanBackorders
-	f.OrderingCost = sys.OrderCost * f.OrderFrequency
-	f.PurchaseCost = sys.UnitCost * perPeriod
-	f.TotalCost = f.HoldingCost + f.ShortageCost + f.OrderingCost + f.PurchaseCost
+	f.Price(sys, perPeriod)
 	e := &Evaluation{
 		Policy:      p,
 		Figures:     f,

@@ -470,11 +470,7 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 	if f.OrderFrequency > 0 {
 		f.MeanOrderQuantity = perPeriod / freq.value()
 	}
-	f.HoldingCost = sys.Holding * f.MeanOnHand
-	f.ShortageCost = sys.Shortage * f.MeanLostSales
-	f.OrderingCost = sys.OrderCost * f.OrderFrequency
-	f.PurchaseCost = sys.UnitCost * perPeriod
-	f.TotalCost = f.HoldingCost + f.ShortageCost + f.OrderingCost + f.PurchaseCost
+	f.Price(sys, perPeriod)
 	e := &Evaluation{
 		Policy:      p,
 		Figures:     f,
