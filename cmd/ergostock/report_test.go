@@ -97,6 +97,35 @@ func TestReportBatchFixture(t *testing.T) {
 	}
 }
 
+// The batch page for the whole demo: the README's main job, then the page
+// with the exchange curve (three targets to keep the test short). Skipped
+// with -short.
+func TestReportBatchDemo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plans the whole demo catalogue")
+	}
+	dir := t.TempDir()
+	results := filepath.Join(dir, "results.csv")
+	var out, errb bytes.Buffer
+	code := run([]string{"ergostock", "batch", "--items", "../../data/items.csv", "--history", "../../data/history.csv",
+		"--period", "week", "--out", results}, nil, &out, &errb)
+	if code != 0 && code != 3 {
+		t.Fatalf("batch: exit %d: %s", code, errb.String())
+	}
+	page := filepath.Join(dir, "batch.html")
+	code, _, stderr := runReport("--results", results, "--items", "../../data/items.csv", "--history", "../../data/history.csv",
+		"--targets", "0.9,0.98,0.995", "--out", page)
+	if code != 0 {
+		t.Fatalf("report: exit %d: %s", code, stderr)
+	}
+	html := checkReportPage(t, page, "exchange", "saving-by-pattern", "pattern-map")
+	for _, s := range []string{"WIPE-CAB-100", "BRAKE-PAD-T4-FRONT", "T5-LED-DEST-DISPLAY-FRONT", `class="items sortable"`} {
+		if !strings.Contains(html, s) {
+			t.Errorf("demo batch page lacks %q", s)
+		}
+	}
+}
+
 // Bad input: a one-line error naming the file or flag and what was
 // expected, exit 1 (2 for flag misuse), and no page written; an existing
 // page is left as it was.
