@@ -55,8 +55,8 @@
 // has no such level), every figure of inventory.Figures in the order of
 // Figures.Fields, current_total_cost, saving (current_total_cost minus
 // total_cost, empty without a current policy), warnings (joined with "; "),
-// error, and then states and residual (of the stationary solve of the
-// chosen policy's chain), neglected (the probability mass left out by any
+// error, and then states, residual and balance (the diagnostics of the
+// stationary solve of the chosen policy's chain), neglected (the probability mass left out by any
 // truncation), policies_evaluated (by the search) and item (the 0-based
 // position in the items file, to restore input order after merging shards).
 //

@@ -122,6 +122,7 @@ func (p *Planner) Plan(it Item) (row Row) {
 	row.Policy, row.Figures = &pol, &fig
 	row.States = best.States
 	row.Residual = best.Diagnostics.Residual
+	row.Balance = best.Diagnostics.Balance
 	row.Neglected = best.Neglected
 	row.Evaluated = best.Search.Evaluated
 	if cur != nil {

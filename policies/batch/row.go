@@ -29,7 +29,8 @@ type Row struct {
 	CurrentTotalCost *float64
 
 	States    int     // states of the chosen policy's chain
-	Residual  float64 // of its stationary solve
+	Residual  float64 // of its stationary solve, ||pi P - pi||_1
+	Balance   float64 // of its stationary solve, max |flow out - flow in| over states
 	Neglected float64 // mass left out by any truncation
 	Evaluated int     // policies evaluated by the search
 
@@ -54,7 +55,7 @@ func Header() []string {
 		h = append(h, f.Name)
 	}
 	return append(h, "current_total_cost", "saving", "warnings", "error",
-		"states", "residual", "neglected", "policies_evaluated", "item")
+		"states", "residual", "balance", "neglected", "policies_evaluated", "item")
 }
 
 // Writer writes the results file as CSV.
@@ -130,10 +131,10 @@ func (r *Row) appendRecord(rec []string) []string {
 	}
 	rec = append(rec, cur, saving, oneLine(strings.Join(r.Warnings, "; ")), errText)
 	if ok {
-		rec = append(rec, strconv.Itoa(r.States), formatFloat(r.Residual),
+		rec = append(rec, strconv.Itoa(r.States), formatFloat(r.Residual), formatFloat(r.Balance),
 			formatFloat(r.Neglected), strconv.Itoa(r.Evaluated))
 	} else {
-		rec = append(rec, "", "", "", "")
+		rec = append(rec, "", "", "", "", "")
 	}
 	return append(rec, strconv.Itoa(r.Item))
 }
