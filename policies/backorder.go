@@ -29,8 +29,9 @@ type positionChain struct {
 func (c *positionChain) ip(i int) int { return c.top - i*c.stride }
 
 // negligibleTransition is the probability below which a transition of the
-// inventory-position chain is not stored unless Options.Exhaustive is set:
-// its mass moves to the restart at top, the row stays stochastic, and the
+// inventory-position chain (or of the lost-sales chain, see buildLost) is
+// not stored unless Options.Exhaustive is set: its mass moves to the
+// restart at top (lost sales: to the lump to on-hand 0), the row stays stochastic, and the
 // largest mass so moved in any row is reported in Evaluation.Neglected.
 // For Poisson demand of mean 400 this keeps about 430 of the 1,390 demand
 // values whose probability is a positive float64, and moves at most

@@ -20,9 +20,11 @@ type Options struct {
 	// exceeds 32 times it.
 	MaxStates int
 	Chain     chain.Options // solver choice for the chain
-	// Exhaustive stores every transition of positive probability in the
-	// inventory-position chain of s-S and base-stock; by default those
-	// below 1e-20 join the restart at top (see Evaluation.Neglected).
+	// Exhaustive stores every transition of positive probability; by
+	// default those below 1e-20 are folded: in the inventory-position chain
+	// of s-S and base-stock they join the restart at top, in the lost-sales
+	// chain the lump to on-hand 0 (see Evaluation.Neglected). Per-state
+	// expectations are never folded.
 	Exhaustive bool
 	// Levels asks for Evaluation.Levels, the stationary distribution of the
 	// stock level at the end of a period (off by default: batch runs do not
@@ -39,8 +41,9 @@ type Evaluation struct {
 	// Neglected is the largest probability mass that any one truncation
 	// left out or placed approximately (each is bounded separately): the
 	// tail beyond a truncated convolution (lead-time demand of families
-	// without a closed form for sums), the transitions below 1e-20 moved to
-	// the restart (largest per row; s-S and base-stock in backorder mode),
+	// without a closed form for sums), the transitions below 1e-20 folded
+	// (largest per row: into the restart of the s-S and base-stock chain in
+	// backorder mode, into the lump to on-hand 0 in lost mode),
 	// the residues of demand beyond P(D > K) <= 1e-30 for s-nQ, and the
 	// remainders of the loss-function sums (below 1e-300 at the low end).
 	Neglected float64

@@ -61,6 +61,10 @@ type lostChain struct {
 	m      *chain.CSR
 	pi     []float64
 	diag   chain.Diagnostics
+	// negl is the largest probability mass folded into another transition
+	// of the same row (transitions below negligibleTransition; 0 with
+	// Options.Exhaustive).
+	negl float64
 }
 
 // ip returns the inventory position at review (before ordering) of state i.
@@ -192,10 +196,22 @@ func (ix *stateIndex) group(o []int32) int {
 // buildLost enumerates the reachable states breadth first, then writes the
 // transitions: from a state with a on hand after the arrival, demand d =
 // 0..a-1 (exact probabilities) leads to a - d on hand, and the lump
-// P(D >= a) from the closed tail to 0 on hand. Nothing is truncated. The
-// start state is state 0 and the numbering is breadth-first, which the
+// P(D >= a) from the closed tail to 0 on hand. No demand tail is cut. The
+// root, (top, 0, ..., 0) unless that state cannot be re-entered (see
+// rootSteps), is state 0 and the numbering is breadth-first, which the
 // Gauss-Seidel sweeps and chain.Solve's structural check rely on for speed
 // (not for correctness).
+//
+// The 1e-20 rule of the inventory-position chain applies here too: unless
+// opt.Exhaustive is set, a demand d < a with 0 < P(D = d) <
+// negligibleTransition is not stored; its mass joins the lump to 0 on hand
+// (or, in a row whose lump P(D >= a) is 0 in float64, the stored entry of
+// the largest demand), so rows stay stochastic, their pattern is a subset
+// of the exhaustive one, and no state is created by the folding. States
+// reachable only through folded transitions are not built. The largest
+// mass folded in a row is returned in the chain's negl. Only the matrix is
+// folded: the figures take their per-state expectations from the demand
+// table (see evaluateLost).
 //
 // Memory stays within the limit whichever way: when the a-priori bound
 // C(top+L+1, L+1) on the states (and the bound it implies on transitions)
@@ -223,11 +239,7 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 	}
 	c := &lostChain{L: L, top: top, tuples: make([]int32, 0, w*hint)}
 	ix := newStateIndex(top, L, hint/max(top, 1)+1)
-	start := make([]int32, w)
-	start[0] = int32(top)
 	ix.slots = slices.Grow(ix.slots, hint)
-	ix.slots[ix.group(start[1:])+top] = 0
-	c.tuples = append(c.tuples, start...)
 
 	// A row is fixed by a (on hand after the arrival) and the group g of
 	// the next pipeline: demand d < a with P(D = d) > 0 leads to on-hand
@@ -235,11 +247,21 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 	// (and counts each row's transitions, npos[a] + 1); the second writes
 	// the rows into arrays of the exact size.
 	pmf := dtab.pmf
-	npos := make([]int, top+2) // npos[a] = #{d < a : P(D = d) > 0}
+	floor := negligibleTransition
+	if opt.Exhaustive {
+		floor = 0
+	}
+	// keep reports whether the transition of demand d is stored.
+	keep := func(d int) bool { return d < len(pmf) && pmf[d] > 0 && pmf[d] >= floor }
+	npos := make([]int, top+2)       // npos[a] = #{d < a : keep(d)}
+	folded := make([]float64, top+2) // folded[a] = sum of P(D = d), d < a, 0 < P(D = d) < floor
 	for a := 1; a <= top+1; a++ {
-		npos[a] = npos[a-1]
-		if a-1 < len(pmf) && pmf[a-1] > 0 {
+		npos[a], folded[a] = npos[a-1], folded[a-1]
+		switch d := a - 1; {
+		case keep(d):
 			npos[a]++
+		case d < len(pmf) && pmf[d] > 0:
+			folded[a] += pmf[d]
 		}
 	}
 	rowLen := func(a int) int {
@@ -248,25 +270,57 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 		}
 		return npos[a]
 	}
-	groups := make([]int, 0, hint) // g per state
-	nnz := 0
 	cur := make([]int32, w)
 	next := make([]int32, w)
-	for i := 0; i < len(c.tuples)/w; i++ {
-		copy(cur, c.tuples[i*w:(i+1)*w])
+	// step sets next[1:] to the pipeline after the review of state cur
+	// and returns a and the order q.
+	step := func() (a, q int) {
 		var ip int
 		for _, v := range cur {
 			ip += int(v)
 		}
-		q := p.Order(ip)
-		var a int
+		q = p.Order(ip)
 		if L == 0 {
-			a = int(cur[0]) + q
-		} else {
-			a = int(cur[0]) + int(cur[1])
-			copy(next[1:], cur[2:])
-			next[L] = int32(q)
+			return int(cur[0]) + q, q
 		}
+		copy(next[1:], cur[2:])
+		next[L] = int32(q)
+		return int(cur[0]) + int(cur[1]), q
+	}
+	// The start state (top, 0, ..., 0) is re-entered only by demand 0
+	// from a = top. When that transition is not stored (P(D = 0) below
+	// the floor: gamma, normal or Poisson demand with a large mean) the
+	// start would be transient, and so would every state reached only
+	// through it; chain.Solve would then need its full structural pass.
+	// Then the chain is rooted instead at the state reached from the start
+	// by rootSteps(L) periods of the most probable demand (the lump when
+	// it is likelier), which lies in the recurrent class in every case
+	// seen; if it did not, chain.Solve finds the class all the same.
+	cur[0] = int32(top)
+	if !keep(0) {
+		for range rootSteps(L) {
+			a, _ := step()
+			best, x := 0.0, 0
+			for d := 0; d < a && d < len(pmf); d++ {
+				if keep(d) && pmf[d] > best {
+					best, x = pmf[d], a-d
+				}
+			}
+			if a > 0 && dtab.over[a-1]+folded[a] > best {
+				x = 0
+			}
+			next[0] = int32(x)
+			copy(cur, next)
+		}
+	}
+	ix.slots[ix.group(cur[1:])+int(cur[0])] = 0
+	c.tuples = append(c.tuples, cur...)
+
+	groups := make([]int, 0, hint) // g per state
+	nnz := 0
+	for i := 0; i < len(c.tuples)/w; i++ {
+		copy(cur, c.tuples[i*w:(i+1)*w])
+		a, q := step()
 		c.avail = append(c.avail, int32(a))
 		c.order = append(c.order, int32(q))
 		g := ix.group(next[1:])
@@ -278,7 +332,7 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 		for d := 0; d <= a; d++ {
 			x := a - d
 			switch {
-			case x > 0 && (d >= len(pmf) || pmf[d] == 0):
+			case x > 0 && !keep(d):
 				continue
 			case x == 0 && a > 0 && !(dtab.over[a-1] > 0):
 				continue // demand never empties the shelf from a
@@ -309,21 +363,29 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 		a, g := int(c.avail[i]), groups[i]
 		// In the order of the first pass, so that a row whose targets were
 		// numbered by it comes out sorted.
-		k := rowPtr[i]
+		k, last := rowPtr[i], -1
 		for d := 0; d < a && d < len(pmf); d++ {
-			if pmf[d] > 0 {
+			if keep(d) {
 				col[k], val[k] = ix.slots[g+a-d], pmf[d]
+				last = k
 				k++
 			}
 		}
-		if a == 0 {
+		fold := folded[a]
+		switch {
+		case a == 0:
 			col[k], val[k] = ix.slots[g], 1
 			k++
-		} else if lump := dtab.over[a-1]; lump > 0 {
+		case dtab.over[a-1] > 0:
 			// A tail within round-off of 1 can come out a hair above it.
-			col[k], val[k] = ix.slots[g], min(lump, 1)
+			col[k], val[k] = ix.slots[g], min(dtab.over[a-1]+fold, 1)
 			k++
+		case fold > 0 && last >= 0:
+			// No lump: P(D >= a) = 0, so the stored entries carry almost all
+			// of the row (some P(D = d) >= 1/a) and last exists.
+			val[last] += fold
 		}
+		c.negl = max(c.negl, fold)
 		rowPtr[i+1] = k
 		buf = sortRow(col[rowPtr[i]:k], val[rowPtr[i]:k], buf)
 	}
@@ -334,6 +396,11 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 	c.m = m
 	return c, nil
 }
+
+// rootSteps is the number of periods of the most probable demand that
+// lead from (top, 0, ..., 0) to the root of a lost-sales chain whose start
+// state cannot be re-entered: enough to refill the pipeline twice.
+func rootSteps(L int) int { return 2*(L+1) + 8 }
 
 // sortRow sorts the transitions of a row by target state (targets are
 // distinct). Rows mostly come out of the enumeration sorted; short ones
@@ -476,7 +543,7 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 		Figures:     f,
 		States:      c.m.Len(),
 		Diagnostics: c.diag,
-		Neglected:   max(dtab.neglected, inventory.Neglected(dist)),
+		Neglected:   max(c.negl, dtab.neglected, inventory.Neglected(dist)),
 		FlowBalance: math.Abs(perPeriod - served.value()),
 	}
 	if opt.Levels {
