@@ -165,17 +165,27 @@ func isNumber(f []byte) bool {
 	return err == nil
 }
 
+// firstLine starts reading name and reads its first non-blank line; an
+// input without one is ErrEmpty.
+func firstLine(r io.Reader, name string) (*lineReader, error) {
+	lr := newLineReader(r, name)
+	ok, err := lr.next()
+	if err != nil {
+		return nil, err
+	}
+	if !ok {
+		return nil, &ReadError{File: name, Err: ErrEmpty}
+	}
+	return lr, nil
+}
+
 // Read reads a transition matrix in either format: a from,to,probability
 // list, recognised by that header (case-insensitive), or otherwise a dense
 // CSV matrix (see ReadDense and ReadList). name is used in error messages.
 func Read(r io.Reader, name string) (Labeled, error) {
-	lr := newLineReader(r, name)
-	ok, err := lr.next()
+	lr, err := firstLine(r, name)
 	if err != nil {
 		return Labeled{}, err
-	}
-	if !ok {
-		return Labeled{}, &ReadError{File: name, Err: ErrEmpty}
 	}
 	if isListHeader(lr.fields) {
 		return readList(lr)
@@ -189,13 +199,9 @@ func Read(r io.Reader, name string) (Labeled, error) {
 // row must have n cells, there must be n rows, entries must be finite and
 // in [0,1], and each row must sum to 1 within RowSumTol.
 func ReadDense(r io.Reader, name string) (Labeled, error) {
-	lr := newLineReader(r, name)
-	ok, err := lr.next()
+	lr, err := firstLine(r, name)
 	if err != nil {
 		return Labeled{}, err
-	}
-	if !ok {
-		return Labeled{}, &ReadError{File: name, Err: ErrEmpty}
 	}
 	return readDense(lr)
 }
@@ -206,13 +212,9 @@ func ReadDense(r io.Reader, name string) (Labeled, error) {
 // as from), a pair may appear once, entries must be finite and in [0,1],
 // and each row must sum to 1 within RowSumTol.
 func ReadList(r io.Reader, name string) (Labeled, error) {
-	lr := newLineReader(r, name)
-	ok, err := lr.next()
+	lr, err := firstLine(r, name)
 	if err != nil {
 		return Labeled{}, err
-	}
-	if !ok {
-		return Labeled{}, &ReadError{File: name, Err: ErrEmpty}
 	}
 	if !isListHeader(lr.fields) {
 		return Labeled{}, lr.errf(lr.line, 0, "header %q: want from,to,probability", joinFields(lr.fields))
