@@ -8,7 +8,6 @@ import (
 	"os"
 	"strconv"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
@@ -126,7 +125,7 @@ func runChain(c *cli.Context) error {
 		return writeJSON(c.App.Writer, out)
 	}
 	w := c.App.Writer
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	tw := newTable(w)
 	fmt.Fprintln(tw, "state\tprobability")
 	for i, p := range res.Pi {
 		fmt.Fprintf(tw, "%s\t%s\n", m.Label(i), strconv.FormatFloat(p, 'g', 15, 64))

@@ -1,13 +1,10 @@
 package main
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
 	"io"
 	"strconv"
-	"strings"
-	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
@@ -147,8 +144,7 @@ func evaluationJSON(sys inventory.System, e *policies.Evaluation) evaluationObje
 // writeEvaluation prints the aligned table: the policy and system, every
 // figure with its unit, and the chain's size and diagnostics.
 func writeEvaluation(w io.Writer, sys inventory.System, e *policies.Evaluation) error {
-	var buf bytes.Buffer
-	tw := tabwriter.NewWriter(&buf, 0, 0, 2, ' ', 0)
+	tw := newTable(w)
 	fmt.Fprintf(tw, "policy\t%v\t\n", e.Policy)
 	fmt.Fprintf(tw, "demand\t%s\tper period\n", sys.Demand)
 	fmt.Fprintf(tw, "lead time\t%d\tperiods\n", sys.LeadTime)
@@ -169,19 +165,7 @@ func writeEvaluation(w io.Writer, sys inventory.System, e *policies.Evaluation) 
 	fmt.Fprintf(tw, "balance\t%s\tmax |flow out - flow in| over states\n", num(d.Balance))
 	fmt.Fprintf(tw, "neglected mass\t%s\tprobability\n", num(e.Neglected))
 	fmt.Fprintf(tw, "flow balance\t%s\t|units ordered - units served| per period\n", num(e.FlowBalance))
-	if err := tw.Flush(); err != nil {
-		return err
-	}
-	// Drop the padding that empty cells leave at the ends of lines.
-	for _, line := range strings.SplitAfter(buf.String(), "\n") {
-		if line == "" {
-			continue
-		}
-		if _, err := io.WriteString(w, strings.TrimRight(line, " \n")+"\n"); err != nil {
-			return err
-		}
-	}
-	return nil
+	return tw.Flush()
 }
 
 // num prints a figure with 6 significant digits.

@@ -11,7 +11,6 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
-	"text/tabwriter"
 
 	"github.com/gocarina/gocsv"
 	"github.com/urfave/cli/v2"
@@ -221,7 +220,7 @@ func fitBrief(spec string) string {
 }
 
 func fitWriteTable(w io.Writer, res []fitResult) error {
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	tw := newTable(w)
 	fmt.Fprintln(tw, "sku\tperiods\tmean\tvariance\tpattern\tdemand\twarnings")
 	for _, r := range res {
 		s := r.Summary

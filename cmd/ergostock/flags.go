@@ -1,11 +1,13 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
 	"strings"
+	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
@@ -116,4 +118,36 @@ func writeJSON(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(v)
+}
+
+// table is an aligned text table (text/tabwriter, two spaces between
+// columns) whose lines lose the padding that empty trailing cells leave.
+type table struct {
+	*tabwriter.Writer
+	buf bytes.Buffer
+	out io.Writer
+}
+
+func newTable(w io.Writer) *table {
+	t := &table{out: w}
+	t.Writer = tabwriter.NewWriter(&t.buf, 0, 0, 2, ' ', 0)
+	return t
+}
+
+// Flush aligns the rows written so far and writes them, trimmed, to the
+// table's writer.
+func (t *table) Flush() error {
+	if err := t.Writer.Flush(); err != nil {
+		return err
+	}
+	for _, line := range strings.SplitAfter(t.buf.String(), "\n") {
+		if line == "" {
+			continue
+		}
+		if _, err := io.WriteString(t.out, strings.TrimRight(line, " \n")+"\n"); err != nil {
+			return err
+		}
+	}
+	t.buf.Reset()
+	return nil
 }

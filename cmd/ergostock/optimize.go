@@ -6,7 +6,6 @@ import (
 	"io"
 	"math"
 	"sort"
-	"text/tabwriter"
 
 	"github.com/urfave/cli/v2"
 
@@ -95,7 +94,7 @@ func writeOptimum(w io.Writer, sys inventory.System, o *policies.Optimum) error 
 		return err
 	}
 	fmt.Fprintln(w)
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	tw := newTable(w)
 	fmt.Fprintf(tw, "search\t%s\n", o.Search.Method)
 	fmt.Fprintf(tw, "policies evaluated\t%d\n", o.Search.Evaluated)
 	keys := make([]string, 0, len(o.Search.Bounds))
