@@ -134,11 +134,11 @@ func makeNegBin(m, v, r, p, q float64) NegBin {
 	}
 	tails := []float64{t0}
 	var s sum
-	s.add(t0)
+	s.Add(t0)
 	for j := k0 - 1; j >= 1 && len(tails) <= maxNegBinCache; j-- {
-		s.add(d.PMF(j))
-		tails = append(tails, s.value())
-		if s.value() > 0.5 {
+		s.Add(d.PMF(j))
+		tails = append(tails, s.Value())
+		if s.Value() > 0.5 {
 			break
 		}
 	}
@@ -286,10 +286,10 @@ func NewNormal(mu, sd float64) (Normal, error) {
 			if p < 1e-300 || p*float64(2*j) < 1e-30*sd {
 				break
 			}
-			s1.add(p)
-			s2.add(float64(2*j-1) * p)
+			s1.Add(p)
+			s2.Add(float64(2*j-1) * p)
 		}
-		l1, l2 = s1.value(), s2.value()
+		l1, l2 = s1.Value(), s2.Value()
 	}
 	d.mean = mu + l1
 	d.vari = sd*sd + 1.0/12 - l2 - 2*mu*l1 - l1*l1
@@ -449,12 +449,12 @@ func NewGamma(mu, sd float64) (Gamma, error) {
 // loses at most log10(1+a) digits (here a < 200).
 func (d Gamma) wideMoments(lo, K int) (mean, variance float64) {
 	var m1, m2 sum
-	m1.add(float64(lo))
-	m2.add(float64(lo) * float64(lo))
+	m1.Add(float64(lo))
+	m2.Add(float64(lo) * float64(lo))
 	for k := lo + 1; k <= K; k++ {
 		t := d.Tail(k)
-		m1.add(t)
-		m2.add(float64(2*k-1) * t)
+		m1.Add(t)
+		m2.Add(float64(2*k-1) * t)
 	}
 	a, th, x := d.shape, d.scale, float64(K)
 	z := x / th
@@ -465,15 +465,15 @@ func (d Gamma) wideMoments(lo, K int) (mean, variance float64) {
 	f1 := f * u
 	f2 := f * (u*u - (a-1)/(x*x))
 	// sum S(mid) = integral + S'(K)/24 - 7 S'''(K)/5760, S' = -f, S''' = -f''.
-	m1.add(th * (a*t - (z-a)*q))
-	m1.add(-f / 24)
-	m1.add(7 * f2 / 5760)
+	m1.Add(th * (a*t - (z-a)*q))
+	m1.Add(-f / 24)
+	m1.Add(7 * f2 / 5760)
 	// h = 2x S: h' = 2S - 2x f, h''' = -6 f' - 2x f''.
-	m2.add(th * th * ((a*(a+1)-z*z)*q + a*(a+1)*t + a*z*t))
-	m2.add((2*q - 2*x*f) / 24)
-	m2.add(-7 * (-6*f1 - 2*x*f2) / 5760)
-	mean = m1.value()
-	return mean, m2.value() - mean*mean
+	m2.Add(th * th * ((a*(a+1)-z*z)*q + a*(a+1)*t + a*z*t))
+	m2.Add((2*q - 2*x*f) / 24)
+	m2.Add(-7 * (-6*f1 - 2*x*f2) / 5760)
+	mean = m1.Value()
+	return mean, m2.Value() - mean*mean
 }
 
 // Mu returns the mean of the underlying continuous gamma distribution.
@@ -542,17 +542,17 @@ func (d Gamma) String() string { return "gamma:mean=" + ftoa(d.mu) + ",sd=" + ft
 // moment sum (k-mean)^2 P(D=k), both with compensated summation.
 func moments(d Distribution, lo, hi int) (mean, variance float64) {
 	var s sum
-	s.add(float64(lo))
+	s.Add(float64(lo))
 	for k := lo + 1; k <= hi; k++ {
-		s.add(d.Tail(k))
+		s.Add(d.Tail(k))
 	}
-	mean = s.value()
+	mean = s.Value()
 	var v sum
 	for k := lo; k <= hi; k++ {
 		x := float64(k) - mean
-		v.add(x * x * d.PMF(k))
+		v.Add(x * x * d.PMF(k))
 	}
-	return mean, v.value()
+	return mean, v.Value()
 }
 
 // bound returns the smallest k >= 0 with P(D > k) = Tail(k+1) <= eps, by
@@ -586,11 +586,14 @@ func clamp01(x float64) float64 {
 	return x
 }
 
-// sum is Neumaier's compensated summation (A. Neumaier, "Rundungsfehleranalyse
-// einiger Verfahren zur Summation endlicher Summen", ZAMM 54, 1974).
-type sum struct{ s, c float64 }
+// CompensatedSum is Neumaier's compensated summation (A. Neumaier,
+// "Rundungsfehleranalyse einiger Verfahren zur Summation endlicher Summen",
+// ZAMM 54, 1974): the running sum of many terms of mixed size, accurate to
+// about one rounding whatever their number. The zero value is the empty sum.
+type CompensatedSum struct{ s, c float64 }
 
-func (a *sum) add(x float64) {
+// Add adds x to the sum.
+func (a *CompensatedSum) Add(x float64) {
 	t := a.s + x
 	if math.Abs(a.s) >= math.Abs(x) {
 		a.c += (a.s - t) + x
@@ -600,4 +603,8 @@ func (a *sum) add(x float64) {
 	a.s = t
 }
 
-func (a *sum) value() float64 { return a.s + a.c }
+// Value returns the sum.
+func (a *CompensatedSum) Value() float64 { return a.s + a.c }
+
+// sum is the package's short name for CompensatedSum.
+type sum = CompensatedSum

@@ -137,9 +137,9 @@ func TestNegBin(t *testing.T) {
 			if want := lgammaNegBin(k, r, p); !near(pk, want, 1e-10, 1e-300) {
 				t.Errorf("negbin %v: PMF(%d) = %v, lgamma formula %v", c, k, pk, want)
 			}
-			s.add(pk)
-			m1.add(float64(k) * pk)
-			m2.add(float64(k) * float64(k) * pk)
+			s.Add(pk)
+			m1.Add(float64(k) * pk)
+			m2.Add(float64(k) * float64(k) * pk)
 			if k >= 1 {
 				// Reference: gonum mathext.RegIncBeta, P(D >= k) = I_q(k, r)
 				// (Johnson, Kemp and Kotz 2005, eq. 5.31).
@@ -152,12 +152,12 @@ func TestNegBin(t *testing.T) {
 			}
 		}
 		// The mean and variance of the parametrisation are M and V.
-		if !near(s.value(), 1, 0, 1e-13) {
-			t.Errorf("negbin %v: pmf sums to %v", c, s.value())
+		if !near(s.Value(), 1, 0, 1e-13) {
+			t.Errorf("negbin %v: pmf sums to %v", c, s.Value())
 		}
-		mean := m1.value()
-		if !near(mean, c.m, 1e-12, 0) || !near(m2.value()-mean*mean, c.v, 1e-10, 0) {
-			t.Errorf("negbin %v: summed mean %v variance %v", c, mean, m2.value()-mean*mean)
+		mean := m1.Value()
+		if !near(mean, c.m, 1e-12, 0) || !near(m2.Value()-mean*mean, c.v, 1e-10, 0) {
+			t.Errorf("negbin %v: summed mean %v variance %v", c, mean, m2.Value()-mean*mean)
 		}
 	}
 }
@@ -169,9 +169,9 @@ func TestNegBinFarTail(t *testing.T) {
 	for _, k := range []int{100, 200, 400} {
 		var s sum
 		for j := k; j < k+3000; j++ {
-			s.add(lgammaNegBin(j, r, p))
+			s.Add(lgammaNegBin(j, r, p))
 		}
-		if got, want := d.Tail(k), s.value(); !near(got, want, 1e-10, 0) {
+		if got, want := d.Tail(k), s.Value(); !near(got, want, 1e-10, 0) {
 			t.Errorf("negbin Tail(%d) = %v, summed %v", k, got, want)
 		}
 	}
@@ -224,11 +224,11 @@ func TestDiscretisedAgainstGonum(t *testing.T) {
 					t.Errorf("%s: Tail(%d) = %v, gonum survival %v", c.spec, k, got, want)
 				}
 			}
-			m1.add(x * want)
+			m1.Add(x * want)
 		}
 		// The discretised mean, summed independently from gonum's CDF.
-		if got := d.Mean(); !near(got, m1.value(), 1e-12, 0) {
-			t.Errorf("%s: Mean = %v, summed from gonum %v", c.spec, got, m1.value())
+		if got := d.Mean(); !near(got, m1.Value(), 1e-12, 0) {
+			t.Errorf("%s: Mean = %v, summed from gonum %v", c.spec, got, m1.Value())
 		}
 	}
 }
@@ -296,19 +296,19 @@ func TestFamiliesConsistent(t *testing.T) {
 			if pk < 0 || pk > 1 {
 				t.Errorf("%s: PMF(%d) = %v", spec, k, pk)
 			}
-			s.add(pk)
-			m1.add(float64(k) * pk)
-			m2.add(float64(k) * float64(k) * pk)
+			s.Add(pk)
+			m1.Add(float64(k) * pk)
+			m2.Add(float64(k) * float64(k) * pk)
 			if got := d.CDF(k) + d.Tail(k+1); !near(got, 1, 0, 1e-14) {
 				t.Errorf("%s: CDF(%d)+Tail(%d) = %v", spec, k, k+1, got)
 			}
 		}
-		if !near(s.value(), 1, 0, 1e-13) {
-			t.Errorf("%s: pmf sums to %v", spec, s.value())
+		if !near(s.Value(), 1, 0, 1e-13) {
+			t.Errorf("%s: pmf sums to %v", spec, s.Value())
 		}
-		mean := m1.value()
-		if !near(mean, d.Mean(), 1e-12, 1e-15) || !near(m2.value()-mean*mean, d.Variance(), 1e-9, 1e-12) {
-			t.Errorf("%s: summed mean %v var %v, methods %v %v", spec, mean, m2.value()-mean*mean, d.Mean(), d.Variance())
+		mean := m1.Value()
+		if !near(mean, d.Mean(), 1e-12, 1e-15) || !near(m2.Value()-mean*mean, d.Variance(), 1e-9, 1e-12) {
+			t.Errorf("%s: summed mean %v var %v, methods %v %v", spec, mean, m2.Value()-mean*mean, d.Mean(), d.Variance())
 		}
 		for _, eps := range []float64{0.5, 1e-3, 1e-9, 1e-12} {
 			b := d.Bound(eps)
@@ -332,10 +332,10 @@ func TestNewPMF(t *testing.T) {
 	}
 	var s sum
 	for k := 0; k < d.Len(); k++ {
-		s.add(d.PMF(k))
+		s.Add(d.PMF(k))
 	}
-	if !near(s.value(), 1, 0, 2e-16) {
-		t.Errorf("renormalised pmf sums to %v", s.value())
+	if !near(s.Value(), 1, 0, 2e-16) {
+		t.Errorf("renormalised pmf sums to %v", s.Value())
 	}
 	if d.String() != "pmf:0=0.25,2=0.5,3=0.2500000004" {
 		t.Errorf("String = %q", d.String())

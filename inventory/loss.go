@@ -59,14 +59,14 @@ func NewLossTable(d Distribution, lo, hi int) (LossTable, error) {
 	// Under by the running sum of F(k), k = 0..y-1.
 	var u sum
 	for k := 0; k < lo; k++ {
-		u.add(d.CDF(k))
+		u.Add(d.CDF(k))
 	}
 	for i := range t.under {
 		if lo+i > 0 {
-			t.under[i] = u.value()
+			t.under[i] = u.Value()
 		}
 		if lo+i >= 0 {
-			u.add(t.cdf[i])
+			u.Add(t.cdf[i])
 		}
 	}
 	// Over: by the identity at or below the mean, by tail sums above it.
@@ -78,10 +78,10 @@ func NewLossTable(d Distribution, lo, hi int) (LossTable, error) {
 	if hi > split {
 		neg := Neglected(d)
 		s := tailSum(d, hi, neg)
-		t.over[hi-lo] = s.value()
+		t.over[hi-lo] = s.Value()
 		for y := hi - 1; y >= lo && y > split; y-- {
-			s.add(math.Max(0, t.tail[y+1-lo]-neg))
-			t.over[y-lo] = s.value()
+			s.Add(math.Max(0, t.tail[y+1-lo]-neg))
+			t.over[y-lo] = s.Value()
 		}
 	}
 	return t, nil
@@ -93,13 +93,13 @@ func tailSum(d Distribution, y int, neg float64) sum {
 	prev := math.Inf(1)
 	for k := y; k < y+maxTable; k++ {
 		term := math.Max(0, d.Tail(k+1)-neg)
-		s.add(term)
+		s.Add(term)
 		if term == 0 {
 			break
 		}
-		if term <= 1e-17*s.value() {
+		if term <= 1e-17*s.Value() {
 			r := term / prev
-			if r < 1 && term*r/(1-r) <= 1e-17*s.value() {
+			if r < 1 && term*r/(1-r) <= 1e-17*s.Value() {
 				break
 			}
 		}

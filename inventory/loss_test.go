@@ -12,12 +12,12 @@ func bruteLoss(pmf []float64, y int) (over, under float64) {
 	var o, u sum
 	for k, p := range pmf {
 		if k > y {
-			o.add(float64(k-y) * p)
+			o.Add(float64(k-y) * p)
 		} else {
-			u.add(float64(y-k) * p)
+			u.Add(float64(y-k) * p)
 		}
 	}
-	return o.value(), u.value()
+	return o.Value(), u.Value()
 }
 
 func TestLossTableBruteForce(t *testing.T) {

@@ -72,10 +72,10 @@ func TestSum(t *testing.T) {
 		// The table's own mass plus the neglected mass is 1.
 		var tot sum
 		for k := 0; k <= s.Bound(0)+1; k++ {
-			tot.add(s.PMF(k))
+			tot.Add(s.PMF(k))
 		}
-		if !near(tot.value()+Neglected(s), 1, 0, 1e-14) {
-			t.Errorf("Sum(%s, %d): mass %v + neglected %v", c.spec, c.n, tot.value(), Neglected(s))
+		if !near(tot.Value()+Neglected(s), 1, 0, 1e-14) {
+			t.Errorf("Sum(%s, %d): mass %v + neglected %v", c.spec, c.n, tot.Value(), Neglected(s))
 		}
 		up, err := SumUpTo(d, c.n, K)
 		if err != nil {

@@ -70,9 +70,9 @@ func NewPMF(p []float64) (Table, error) {
 	w := append([]float64(nil), p[:n]...)
 	var s sum
 	for _, x := range w {
-		s.add(x)
+		s.Add(x)
 	}
-	total := s.value()
+	total := s.Value()
 	if !(math.Abs(total-1) <= 1e-9) {
 		return Table{}, &FieldError{Field: "demand", Value: pmfSpec(p),
 			Want: "pmf probabilities that sum to 1 within 1e-9, not to " + ftoa(total)}
@@ -108,13 +108,13 @@ func newTable(w []float64, norm, neglected float64) *table {
 	t := &table{w: w, norm: norm, neglected: neglected, cum: make([]float64, n), suf: make([]float64, n+1)}
 	var s sum
 	for k, x := range w {
-		s.add(x)
-		t.cum[k] = s.value()
+		s.Add(x)
+		t.cum[k] = s.Value()
 	}
 	s = sum{}
 	for k := n - 1; k >= 0; k-- {
-		s.add(w[k])
-		t.suf[k] = s.value()
+		s.Add(w[k])
+		t.suf[k] = s.Value()
 	}
 	return t
 }
@@ -123,15 +123,15 @@ func newTable(w []float64, norm, neglected float64) *table {
 func (t *table) tableMoments() (mean, variance float64) {
 	var m sum
 	for k, x := range t.w {
-		m.add(float64(k) * x)
+		m.Add(float64(k) * x)
 	}
-	mean = m.value() / t.norm
+	mean = m.Value() / t.norm
 	var v sum
 	for k, x := range t.w {
 		y := float64(k) - mean
-		v.add(y * y * x)
+		v.Add(y * y * x)
 	}
-	return mean, v.value() / t.norm
+	return mean, v.Value() / t.norm
 }
 
 // Len returns the length of the table: P(D = k) = 0 for k >= Len().

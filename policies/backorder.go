@@ -217,27 +217,27 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	tL := newLossTable(xl, lo, top)
 	tL1 := newLossTable(xl1, lo, top)
 
-	var onHand, back, stockout, served, freq, ordered kahan
+	var onHand, back, stockout, served, freq, ordered inventory.CompensatedSum
 	for i, w := range c.pi {
 		if w == 0 {
 			continue
 		}
 		y := c.ip(i)
 		k := y - lo
-		onHand.add(w * tL1.below[k])
-		back.add(w * tL1.above[k])
-		stockout.add(w * tL1.over[k])
-		served.add(w * max(tL.below[k]-tL1.below[k], 0))
+		onHand.Add(w * tL1.below[k])
+		back.Add(w * tL1.above[k])
+		stockout.Add(w * tL1.over[k])
+		served.Add(w * max(tL.below[k]-tL1.below[k], 0))
 		a := y - s
-		freq.add(w * dtab.over[a-1])
-		ordered.add(w * orderedFrom(dist, dtab, p, a, n))
+		freq.Add(w * dtab.over[a-1])
+		ordered.Add(w * orderedFrom(dist, dtab, p, a, n))
 	}
 	f := inventory.Figures{
-		FillRate:            clamp01(served.value() / mean),
-		StockoutProbability: clamp01(stockout.value()),
-		MeanOnHand:          onHand.value(),
-		MeanBackorders:      back.value(),
-		OrderFrequency:      clamp01(freq.value()),
+		FillRate:            clamp01(served.Value() / mean),
+		StockoutProbability: clamp01(stockout.Value()),
+		MeanOnHand:          onHand.Value(),
+		MeanBackorders:      back.Value(),
+		OrderFrequency:      clamp01(freq.Value()),
 	}
 	perPeriod := mean // long-run flow balance: all demand is eventually ordered
 	if f.OrderFrequency > 0 {
@@ -250,7 +250,7 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		States:      c.m.Len(),
 		Diagnostics: c.diag,
 		Neglected:   max(c.negl, inventory.Neglected(dist), neglL, neglL1, tL.neglected, tL1.neglected, dtab.neglected),
-		FlowBalance: math.Abs(ordered.value() - mean),
+		FlowBalance: math.Abs(ordered.Value() - mean),
 	}
 	if opt.Levels {
 		e.Levels = backorderLevels(c, xl1)
@@ -325,16 +325,16 @@ func orderedFrom(dist inventory.Distribution, dtab lossTable, p Policy, a, n int
 	if p.Kind != SNQ {
 		return float64(n)*dtab.over[a-1] + dtab.above[a]
 	}
-	var s kahan
+	var s inventory.CompensatedSum
 	neg := inventory.Neglected(dist)
 	for k := a; k < a+n*tailSumCap; k += n {
 		t := max(dist.Tail(k)-neg, 0)
-		if t == 0 || (t < 1e-18*s.value() && k > a) {
+		if t == 0 || (t < 1e-18*s.Value() && k > a) {
 			break
 		}
-		s.add(t)
+		s.Add(t)
 	}
-	return float64(n) * s.value()
+	return float64(n) * s.Value()
 }
 
 // solve runs the stationary solver and keeps the diagnostics.
@@ -362,21 +362,6 @@ func (c *positionChain) solveForward() error {
 	c.diag.Method = chain.MethodForward
 	return nil
 }
-
-// kahan is a compensated running sum.
-type kahan struct{ s, c float64 }
-
-func (k *kahan) add(x float64) {
-	t := k.s + x
-	if math.Abs(k.s) >= math.Abs(x) {
-		k.c += (k.s - t) + x
-	} else {
-		k.c += (x - t) + k.s
-	}
-	k.s = t
-}
-
-func (k *kahan) value() float64 { return k.s + k.c }
 
 func clamp01(x float64) float64 {
 	switch {

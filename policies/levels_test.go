@@ -12,22 +12,22 @@ import (
 // levelMoments returns sum P(k) k^+, sum P(k) k^-, P(level < 0) and the
 // total mass (listed entries plus both tails) of d.
 func levelMoments(d *LevelDistribution) (pos, neg, short, total float64) {
-	var kp, kn, ks, kt kahan
+	var kp, kn, ks, kt inventory.CompensatedSum
 	for i, v := range d.P {
 		k := d.Min + i
-		kp.add(v * float64(max(k, 0)))
-		kn.add(v * float64(max(-k, 0)))
+		kp.Add(v * float64(max(k, 0)))
+		kn.Add(v * float64(max(-k, 0)))
 		if k < 0 {
-			ks.add(v)
+			ks.Add(v)
 		}
-		kt.add(v)
+		kt.Add(v)
 	}
 	if d.Min <= 0 {
-		ks.add(d.Below)
+		ks.Add(d.Below)
 	}
-	kt.add(d.Below)
-	kt.add(d.Above)
-	return kp.value(), kn.value(), ks.value(), kt.value()
+	kt.Add(d.Below)
+	kt.Add(d.Above)
+	return kp.Value(), kn.Value(), ks.Value(), kt.Value()
 }
 
 // TestLevelsAgreeWithFigures: on every family, mode, lead time and policy

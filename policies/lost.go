@@ -509,33 +509,33 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 	if err != nil {
 		return nil, err
 	}
-	var onHand, lost, served, stockout, freq, ordered kahan
+	var onHand, lost, served, stockout, freq, ordered inventory.CompensatedSum
 	for i, w := range c.pi {
 		if w == 0 {
 			continue
 		}
 		a := int(c.avail[i])
-		onHand.add(w * dtab.below[a])
-		served.add(w * max(float64(a)-dtab.below[a], 0)) // E[min(D, a)] = a - E[(a-D)^+]
-		lost.add(w * dtab.above[a])
-		stockout.add(w * dtab.over[a])
+		onHand.Add(w * dtab.below[a])
+		served.Add(w * max(float64(a)-dtab.below[a], 0)) // E[min(D, a)] = a - E[(a-D)^+]
+		lost.Add(w * dtab.above[a])
+		stockout.Add(w * dtab.over[a])
 		if q := c.order[i]; q > 0 {
-			freq.add(w)
-			ordered.add(w * float64(q))
+			freq.Add(w)
+			ordered.Add(w * float64(q))
 		}
 	}
 	f := inventory.Figures{
-		MeanOnHand:          onHand.value(),
-		MeanLostSales:       lost.value(),
-		StockoutProbability: clamp01(stockout.value()),
-		OrderFrequency:      clamp01(freq.value()),
+		MeanOnHand:          onHand.Value(),
+		MeanLostSales:       lost.Value(),
+		StockoutProbability: clamp01(stockout.Value()),
+		OrderFrequency:      clamp01(freq.Value()),
 	}
 	// 1 - E[lost]/E[D], computed as E[served]/E[D] (the same by
 	// min(D, a) + (D - a)^+ = D), which is exactly 0 when nothing is stocked.
-	f.FillRate = clamp01(served.value() / mean)
-	perPeriod := ordered.value()
+	f.FillRate = clamp01(served.Value() / mean)
+	perPeriod := ordered.Value()
 	if f.OrderFrequency > 0 {
-		f.MeanOrderQuantity = perPeriod / freq.value()
+		f.MeanOrderQuantity = perPeriod / freq.Value()
 	}
 	f.Price(sys, perPeriod)
 	e := &Evaluation{
@@ -544,7 +544,7 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 		States:      c.m.Len(),
 		Diagnostics: c.diag,
 		Neglected:   max(c.negl, dtab.neglected, inventory.Neglected(dist)),
-		FlowBalance: math.Abs(perPeriod - served.value()),
+		FlowBalance: math.Abs(perPeriod - served.Value()),
 	}
 	if opt.Levels {
 		e.Levels = lostLevels(c, dtab)
