@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"strconv"
@@ -48,11 +47,7 @@ func evaluateCommand() *cli.Command {
 			}
 			e, err := policies.Evaluate(sys, p, evalOptions(c))
 			if err != nil {
-				var se *policies.SizeError
-				if errors.As(err, &se) {
-					return usageErr("--max-states %d: %v", c.Int("max-states"), err)
-				}
-				return flagErr(err)
+				return engineErr(c, err)
 			}
 			if c.Bool("json") {
 				return writeJSON(c.App.Writer, evaluationJSON(sys, e))

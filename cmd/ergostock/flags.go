@@ -51,6 +51,17 @@ func flagErr(err error) error {
 	return err
 }
 
+// engineErr reports an error of Evaluate or Optimize: a chain over the
+// state limit is a usage error naming --max-states, an unusable input
+// names its flag (see flagErr), anything else passes through.
+func engineErr(c *cli.Context, err error) error {
+	var se *policies.SizeError
+	if errors.As(err, &se) {
+		return usageErr("--max-states %d: %v", c.Int("max-states"), err)
+	}
+	return flagErr(err)
+}
+
 // systemFromFlags builds and validates the system from the shared flags.
 func systemFromFlags(c *cli.Context) (inventory.System, error) {
 	var sys inventory.System

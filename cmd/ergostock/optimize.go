@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -62,11 +61,7 @@ func optimizeCommand() *cli.Command {
 			}
 			o, err := policies.Optimize(sys, kind, opt)
 			if err != nil {
-				var se *policies.SizeError
-				if errors.As(err, &se) {
-					return usageErr("--max-states %d: %v", c.Int("max-states"), err)
-				}
-				return flagErr(err)
+				return engineErr(c, err)
 			}
 			if c.Bool("json") {
 				return writeJSON(c.App.Writer, optimumJSON(sys, o))

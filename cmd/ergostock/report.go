@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -203,11 +202,7 @@ func reportSKU(c *cli.Context) (*report.SKUPage, error) {
 	}
 	pg, err := report.BuildSKU(in)
 	if err != nil {
-		var se *policies.SizeError
-		if errors.As(err, &se) {
-			return nil, usageErr("--max-states %d: %v", c.Int("max-states"), err)
-		}
-		return nil, flagErr(err)
+		return nil, engineErr(c, err)
 	}
 	return pg, nil
 }
