@@ -117,22 +117,31 @@ func gammaFraction(a, x float64) float64 {
 	for i := 1; i < iterLimit; i++ {
 		an := -float64(i) * (float64(i) - a)
 		b += 2
-		d = an*d + b
-		if math.Abs(d) < lentzTiny {
-			d = lentzTiny
-		}
-		c = b + an/c
-		if math.Abs(c) < lentzTiny {
-			c = lentzTiny
-		}
-		d = 1 / d
-		del := d * c
+		var del float64
+		c, d, del = lentz(an, b, c, d)
 		h *= del
 		if math.Abs(del-1) < 1e-16 {
 			break
 		}
 	}
 	return h
+}
+
+// lentz is one step of the modified Lentz method for the continued fraction
+// b0 + a1/(b1 + a2/(b2 + ...)) (Lentz 1976; Thompson & Barnett 1986): from
+// the running c and d and the next partial numerator a and denominator b it
+// returns the new c and d and the factor del that multiplies the value.
+func lentz(a, b, c, d float64) (c2, d2, del float64) {
+	d = b + a*d
+	if math.Abs(d) < lentzTiny {
+		d = lentzTiny
+	}
+	c = b + a/c
+	if math.Abs(c) < lentzTiny {
+		c = lentzTiny
+	}
+	d = 1 / d
+	return c, d, d * c
 }
 
 // gammaPQ returns the regularised incomplete gamma functions P(a, x) and
@@ -177,27 +186,11 @@ func betaFraction(a, b, x float64) float64 {
 		fm := float64(m)
 		m2 := 2 * fm
 		aa := fm * (b - fm) * x / ((qam + m2) * (a + m2))
-		d = 1 + aa*d
-		if math.Abs(d) < lentzTiny {
-			d = lentzTiny
-		}
-		c = 1 + aa/c
-		if math.Abs(c) < lentzTiny {
-			c = lentzTiny
-		}
-		d = 1 / d
-		h *= d * c
+		var del float64
+		c, d, del = lentz(aa, 1, c, d)
+		h *= del
 		aa = -(a + fm) * (qab + fm) * x / ((a + m2) * (qap + m2))
-		d = 1 + aa*d
-		if math.Abs(d) < lentzTiny {
-			d = lentzTiny
-		}
-		c = 1 + aa/c
-		if math.Abs(c) < lentzTiny {
-			c = lentzTiny
-		}
-		d = 1 / d
-		del := d * c
+		c, d, del = lentz(aa, 1, c, d)
 		h *= del
 		if math.Abs(del-1) < 1e-16 {
 			break
