@@ -2,6 +2,7 @@ package policies
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -308,23 +309,7 @@ func TestFloorsSS(t *testing.T) {
 		} else if i%3 == 2 {
 			fl.maxStockout = 0.05
 		}
-		o, err := Optimize(sys, SS, SearchOptions{MinFillRate: fl.minFill, MaxStockout: fl.maxStockout})
-		if err != nil {
-			t.Fatalf("case %d %s: %v", i, name, err)
-		}
-		f := o.Figures
-		if !fl.meets(f.FillRate, f.StockoutProbability) {
-			t.Errorf("case %d: %v fill %g stockout %g misses %v", i, o.Policy, f.FillRate, f.StockoutProbability, fl)
-		}
-		w := o.Policy.OrderUpTo - o.Policy.ReorderPoint
-		lo, hi := o.Policy.ReorderPoint-3*w-10, o.Policy.OrderUpTo+3*w+10
-		ref := newRefModel(t, sys.Demand, sys.LeadTime, sys.Holding, sys.Shortage, sys.OrderCost)
-		s, S, c := ref.grid(lo, hi, fl)
-		c += sys.UnitCost * sys.Demand.Mean()
-		if !relClose(c, f.TotalCost, 1e-9) {
-			t.Errorf("case %d %s L=%d %v: brute force s=%d S=%d cost %.12g; optimize %v cost %.12g (%s)",
-				i, name, sys.LeadTime, fl, s, S, c, o.Policy, f.TotalCost, o.Search.Method)
-		}
+		checkFloorAgainstGrid(t, fmt.Sprintf("case %d %s", i, name), sys, fl)
 	}
 }
 
