@@ -1,5 +1,7 @@
 package chain
 
+import "context"
+
 // Matrix is a square row-stochastic matrix in some storage.
 // Row calls fn for every stored entry (j, p) of row i, in increasing j.
 // Stored entries may include explicit zeros; structural code treats only
@@ -68,6 +70,10 @@ type Options struct {
 	// vector near the answer, such as the distribution of a similar chain,
 	// saves iterations; the answer still meets Tol. Other methods ignore it.
 	Init []float64
+	// Context, when not nil, bounds the solve: the iterative methods check
+	// it between sweeps and return its error (wrapped) once it is done, so
+	// a caller's deadline or cancellation stops a long solve.
+	Context context.Context
 }
 
 // Diagnostics accompany every stationary distribution.

@@ -1,6 +1,7 @@
 package policies
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -30,6 +31,11 @@ type Options struct {
 	// stock level at the end of a period (off by default: batch runs do not
 	// pay for it).
 	Levels bool
+	// Context, when not nil, bounds the work: chain construction, the
+	// stationary solve (it is passed on to Chain.Context when that is nil)
+	// and the searches check it and return its error, wrapped, once it is
+	// done. A batch gives each item a deadline through it.
+	Context context.Context
 }
 
 // Evaluation is what a policy delivers, with the chain it came from.
@@ -103,6 +109,9 @@ func Evaluate(sys inventory.System, p Policy, opt Options) (*Evaluation, error) 
 	}
 	// States are indexed by int32.
 	opt.MaxStates = min(opt.MaxStates, math.MaxInt32)
+	if opt.Chain.Context == nil {
+		opt.Chain.Context = opt.Context
+	}
 	if sys.Mode == inventory.Lost {
 		return evaluateLost(sys, p, opt)
 	}
