@@ -134,7 +134,7 @@ func TestChainBadInput(t *testing.T) {
 		{"bad tol", "", []string{"--matrix", "x", "--tol", "-1"}, 2, "--tol -1: want a finite number > 0"},
 		{"bad max-iter", "", []string{"--matrix", "x", "--max-iter", "0"}, 2, "--max-iter 0: want an integer >= 1"},
 		{"no matrix", "", nil, 2, "--matrix: want a file name"},
-		{"tol not a number", "", []string{"--matrix", "x", "--tol", "abc"}, 2, `chain: invalid value "abc" for flag -tol`},
+		{"tol not a number", "", []string{"--matrix", "x", "--tol", "abc"}, 2, `chain: --tol "abc": want a number`},
 		{"stray argument", "", []string{"--matrix", "x", "extra"}, 2, `unexpected argument "extra"`},
 	} {
 		code, out, errs := chainRun(tc.stdin, tc.args...)

@@ -52,7 +52,7 @@ func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
 			reportCommand(),
 		},
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
-			return usageErr("%v (see --help)", err)
+			return usageErr("%s (see --help)", flagMessage(nil, err))
 		},
 		ExitErrHandler: func(*cli.Context, error) {}, // main reports errors itself
 	}
@@ -68,10 +68,9 @@ func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
 // whole help text and exit 1) and a stray argument.
 func oneLineUsage(cmd *cli.Command) {
 	name := cmd.Name
-	if cmd.OnUsageError == nil {
-		cmd.OnUsageError = func(_ *cli.Context, err error, _ bool) error {
-			return usageErr("%s: %v (see --help)", name, err)
-		}
+	// One wording for every command, whatever the command itself set.
+	cmd.OnUsageError = func(_ *cli.Context, err error, _ bool) error {
+		return usageErr("%s: %s (see ergostock %s --help)", name, flagMessage(cmd, err), name)
 	}
 	required := unrequire(cmd.Flags)
 	action := cmd.Action
@@ -97,6 +96,14 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	if len(args) > 1 && !strings.HasPrefix(args[1], "-") && args[1] != "help" && app.Command(args[1]) == nil {
 		fmt.Fprintf(stderr, "ergostock: unknown command %q: want one of %s (see --help)\n", args[1], commandNames(app))
 		return 2
+	}
+	if len(args) > 1 {
+		if cmd := app.Command(args[1]); cmd != nil {
+			if err := checkNumbers(cmd, args[2:]); err != nil {
+				fmt.Fprintf(stderr, "ergostock: %s: %v\n", cmd.Name, err)
+				return 2
+			}
+		}
 	}
 	err := app.Run(args)
 	if err == nil {
