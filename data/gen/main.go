@@ -7,9 +7,12 @@
 //
 //	go run ./data/gen
 //
-// It writes data/history.csv and data/items.csv. The output is a pure
-// function of the fixed seed below, so running it again reproduces the
-// checked-in files byte for byte.
+// It writes data/history.csv and data/items.csv, a catalogue in which every
+// item can be planned, and data/messy/, a small example of items that
+// cannot (a part listed before any issue, one whose history holds a
+// malformed row, one never issued) beside two that can. The output is a
+// pure function of the fixed seed below, so running it again reproduces
+// the checked-in files byte for byte.
 package main
 
 import (
@@ -188,12 +191,43 @@ func main() {
 	flag.Parse()
 	rng := rand.New(rand.NewPCG(seed1, seed2))
 	parts := makeParts(rng)
-	if err := writeHistory(filepath.Join(*dir, "history.csv"), parts); err != nil {
+	// The clean catalogue leaves out the broken parts' faults; the messy
+	// example keeps them, beside two ordinary parts.
+	clean := func(p *part) bool { return !messyOnly[p.sku] }
+	messy := func(p *part) bool { return messyOnly[p.sku] || messyAlso[p.sku] }
+	if err := writeHistory(filepath.Join(*dir, "history.csv"), parts, clean, false); err != nil {
 		log.Fatal(err)
 	}
-	if err := writeItems(filepath.Join(*dir, "items.csv"), parts, rng); err != nil {
+	items, err := itemRows(parts, rng)
+	if err != nil {
 		log.Fatal(err)
 	}
+	if err := writeItems(filepath.Join(*dir, "items.csv"), items, clean); err != nil {
+		log.Fatal(err)
+	}
+	messyDir := filepath.Join(*dir, "messy")
+	if err := os.MkdirAll(messyDir, 0o755); err != nil {
+		log.Fatal(err)
+	}
+	if err := writeHistory(filepath.Join(messyDir, "history.csv"), parts, messy, true); err != nil {
+		log.Fatal(err)
+	}
+	if err := writeItems(filepath.Join(messyDir, "items.csv"), items, messy); err != nil {
+		log.Fatal(err)
+	}
+}
+
+// messyOnly are the parts that cannot be planned: they appear only in the
+// messy example. messyAlso are ordinary parts shown beside them.
+var (
+	messyOnly = map[string]bool{"CABLE-FLEX-2.5MM": true, "DOOR-CONTROL-BOARD-T4": true, "T5-LED-DEST-DISPLAY-FRONT": true}
+	messyAlso = map[string]bool{"WIPE-CAB-100": true, "BRAKE-PAD-T4-FRONT": true}
+)
+
+// itemRow is one line of an items file, with its part.
+type itemRow struct {
+	p    *part
+	line string
 }
 
 func uniform(rng *rand.Rand, r [2]float64) float64 { return r[0] + (r[1]-r[0])*rng.Float64() }
@@ -318,7 +352,16 @@ func day(t int) string { return firstDay.AddDate(0, 0, t).Format("2006-01-02") }
 
 func round2(x float64) float64 { return math.Round(x*100) / 100 }
 
-func writeHistory(path string, parts []*part) error {
+// writeHistory writes the issues of the parts that keep accepts; the
+// hand-made rows only when withExtra is set. A part whose faults are kept
+// out of the clean catalogue is left out of it whole.
+func writeHistory(path string, all []*part, keep func(*part) bool, withExtra bool) error {
+	var parts []*part
+	for _, p := range all {
+		if keep(p) {
+			parts = append(parts, p)
+		}
+	}
 	f, err := os.Create(path)
 	if err != nil {
 		return err
@@ -327,6 +370,9 @@ func writeHistory(path string, parts []*part) error {
 	fmt.Fprintln(w, "date,depot,sku,quantity")
 	extra := map[string][][]string{}
 	for _, p := range parts {
+		if !withExtra {
+			break
+		}
 		for _, e := range p.extra {
 			extra[e[1]] = append(extra[e[1]], e)
 		}
@@ -389,13 +435,11 @@ func ftoa(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 // writeItems writes the items file: lead time in weeks, costs per week, and
 // the policy the stores use today, set by a rule of thumb (cover the lead
 // time plus a safety margin of z standard deviations, z drawn per part).
-func writeItems(path string, parts []*part, rng *rand.Rand) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	w := bufio.NewWriter(f)
-	fmt.Fprintln(w, "sku,lead_time,holding_cost,shortage_cost,order_cost,unit_cost,unmet,policy,min_fill_rate,demand,current_reorder_point,current_order_up_to,current_order_multiple")
+//
+// itemRows draws every part's row in one pass, so that the draws of one
+// part do not depend on which file it goes to.
+func itemRows(parts []*part, rng *rand.Rand) ([]itemRow, error) {
+	var out []itemRow
 	rows := append([]*part{}, parts...)
 	// A part listed for the new T5 trams that has not been issued yet.
 	rows = append(rows, &part{sku: "T5-LED-DEST-DISPLAY-FRONT", fam: family{class: intermittent, critical: false}, cost: 1480, note: "newly listed, no history"})
@@ -471,8 +515,24 @@ func writeItems(path string, parts []*part, rng *rand.Rand) error {
 				cur = [3]string{} // no policy on record
 			}
 		}
-		fmt.Fprintf(w, "%s,%d,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", p.sku, lead, ftoa(hold), ftoa(short), ftoa(order),
-			ftoa(p.cost), unmet, policy, minFill, quote(demand), cur[0], cur[1], cur[2])
+		out = append(out, itemRow{p, fmt.Sprintf("%s,%d,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", p.sku, lead, ftoa(hold), ftoa(short), ftoa(order),
+			ftoa(p.cost), unmet, policy, minFill, quote(demand), cur[0], cur[1], cur[2])})
+	}
+	return out, nil
+}
+
+// writeItems writes the items file with the rows whose part keep accepts.
+func writeItems(path string, rows []itemRow, keep func(*part) bool) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	w := bufio.NewWriter(f)
+	fmt.Fprintln(w, "sku,lead_time,holding_cost,shortage_cost,order_cost,unit_cost,unmet,policy,min_fill_rate,demand,current_reorder_point,current_order_up_to,current_order_multiple")
+	for _, r := range rows {
+		if keep(r.p) {
+			w.WriteString(r.line)
+		}
 	}
 	if err := w.Flush(); err != nil {
 		f.Close()

@@ -8,10 +8,33 @@ import (
 )
 
 // TestDemoData checks that the demo history (data/history.csv, made by
-// data/gen) reads in weeks and holds every demand pattern, short
-// histories, a trend, one bad row and one SKU without demand.
+// data/gen) reads in weeks and holds every demand pattern, short histories
+// and a trend, and no fault; the messy example (data/messy/history.csv)
+// holds one bad row and one SKU without demand.
 func TestDemoData(t *testing.T) {
-	f, err := os.Open(filepath.Join("..", "..", "data", "history.csv"))
+	count := demoCounts(t, filepath.Join("..", "..", "data", "history.csv"))
+	for _, k := range []string{"smooth", "erratic", "intermittent", "lumpy", "short history", "trend"} {
+		if count[k] == 0 {
+			t.Errorf("no SKU with %s", k)
+		}
+	}
+	for _, k := range []string{"error", "bad row skipped"} {
+		if count[k] != 0 {
+			t.Errorf("%d SKUs with %s in the clean demo", count[k], k)
+		}
+	}
+	count = demoCounts(t, filepath.Join("..", "..", "data", "messy", "history.csv"))
+	for _, k := range []string{"error", "bad row skipped"} {
+		if count[k] != 1 {
+			t.Errorf("%d SKUs with %s in the messy example, want 1", count[k], k)
+		}
+	}
+}
+
+// demoCounts reads a demo history in weeks and counts its SKUs by pattern,
+// model, error and warning.
+func demoCounts(t *testing.T, path string) map[string]int {
+	f, err := os.Open(path)
 	if err != nil {
 		t.Skip(err)
 	}
@@ -44,10 +67,6 @@ func TestDemoData(t *testing.T) {
 			count[strings.SplitN(w, ":", 2)[0]]++
 		}
 	}
-	t.Logf("%d SKUs: %v", len(h.SKUs), count)
-	for _, k := range []string{"smooth", "erratic", "intermittent", "lumpy", "short history", "trend", "error", "bad row skipped"} {
-		if count[k] == 0 {
-			t.Errorf("no SKU with %s", k)
-		}
-	}
+	t.Logf("%s: %d SKUs: %v", path, len(h.SKUs), count)
+	return count
 }
