@@ -1,14 +1,17 @@
 package report
 
 import (
+	"errors"
 	"fmt"
 	"html/template"
 	"math"
 	"runtime"
+	"strings"
 	"sync"
 
 	"ergostock/inventory"
 	"ergostock/policies"
+	"ergostock/policies/sim"
 )
 
 // SKUInput is what the page for one SKU is built from.
@@ -129,6 +132,14 @@ func buildSKU(in SKUInput, ev evalFunc, opt optFunc) (*SKUPage, error) {
 		return nil, fmt.Errorf("search for the cheapest %s policy: %w", kind, err)
 	}
 	pg.Optimum = o
+	for _, e := range []*policies.Evaluation{pg.Current, &o.Evaluation} {
+		if e == nil {
+			continue
+		}
+		if err := finiteFigures(in.System, e); err != nil {
+			return nil, err
+		}
+	}
 	pg.gatherLevels()
 	if err := pg.gatherGrid(); err != nil {
 		return nil, err
@@ -136,12 +147,18 @@ func buildSKU(in SKUInput, ev evalFunc, opt optFunc) (*SKUPage, error) {
 	pg.gatherFill()
 	if in.Simulate != nil {
 		if s, err := in.Simulate(o.Policy); err != nil {
+			if e := simRefused(o.Policy, err); e != nil {
+				return nil, e
+			}
 			pg.Notes = append(pg.Notes, fmt.Sprintf("simulation of %v failed: %v", o.Policy, err))
 		} else {
 			pg.SimOptimum = s
 		}
 		if in.Current != nil && *in.Current != o.Policy {
 			if s, err := in.Simulate(*in.Current); err != nil {
+				if e := simRefused(*in.Current, err); e != nil {
+					return nil, e
+				}
 				pg.Notes = append(pg.Notes, fmt.Sprintf("simulation of %v failed: %v", *in.Current, err))
 			} else {
 				pg.SimCurrent = s
@@ -150,6 +167,48 @@ func buildSKU(in SKUInput, ev evalFunc, opt optFunc) (*SKUPage, error) {
 	}
 	pg.render()
 	return pg, nil
+}
+
+// finiteFigures refuses an evaluation with a non-finite figure (costs so
+// large that a cost per period overflows float64), naming the costs.
+func finiteFigures(sys inventory.System, e *policies.Evaluation) error {
+	for _, f := range e.Figures.Fields() {
+		if !math.IsInf(f.Value, 0) && !(math.IsNaN(f.Value) && f.Name != "fill_rate" && f.Name != "mean_order_quantity") {
+			continue
+		}
+		var names []string
+		for _, c := range []struct {
+			flag string
+			v    float64
+		}{{"--holding-cost", sys.Holding}, {"--shortage-cost", sys.Shortage}, {"--order-cost", sys.OrderCost}, {"--unit-cost", sys.UnitCost}} {
+			if c.v != 0 {
+				names = append(names, fmt.Sprintf("%s %g", c.flag, c.v))
+			}
+		}
+		return fmt.Errorf("%s: the %s of %v overflows float64: want costs whose figures stay below 1.8e308 (state them in larger money units)",
+			strings.Join(names, ", "), f.Label, e.Policy)
+	}
+	return nil
+}
+
+// simRefused turns a simulation refused for its size, its time budget or
+// the range of its sums (the inputs, not the policy, are at fault) into the
+// page's error naming the flag; nil for any other error, which leaves a
+// note on the page.
+func simRefused(p policies.Policy, err error) error {
+	var le *sim.LimitError
+	if errors.As(err, &le) {
+		flags := strings.Split(le.Field, ", ")
+		for i, f := range flags {
+			flags[i] = "--" + strings.ReplaceAll(f, "_", "-")
+		}
+		return fmt.Errorf("--simulate: %s %s: want %s (%s), simulating %v", strings.Join(flags, ", "), le.Value, le.Want, le.Size, p)
+	}
+	var re *sim.RangeError
+	if errors.As(err, &re) {
+		return fmt.Errorf("--simulate --periods: simulating %v: %w", p, err)
+	}
+	return nil
 }
 
 // policiesShown lists the recommended policy and, if different, the
