@@ -1,6 +1,7 @@
 package sim
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -8,6 +9,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"ergostock/inventory"
+	"ergostock/policies"
 )
 
 // binnedChiSquare draws n values and returns Pearson's statistic over
@@ -195,5 +197,85 @@ func TestRoundDemand(t *testing.T) {
 		if got := roundDemand(c.x); got != c.want {
 			t.Errorf("roundDemand(%g) = %g, want %g", c.x, got, c.want)
 		}
+	}
+}
+
+// TestRunWideLawAcrossWorkers: with a direct sampler the figures of every
+// replication are identical on any number of workers.
+func TestRunWideLawAcrossWorkers(t *testing.T) {
+	d, _ := inventory.Parse("negbin:mean=1e7,var=1e14")
+	sys := inventory.System{Demand: d, LeadTime: 1, Holding: 1, Shortage: 9, OrderCost: 50, Mode: inventory.Backorder}
+	p := policies.Policy{Kind: policies.SS, ReorderPoint: 30_000_000, OrderUpTo: 60_000_000}
+	var first *Result
+	for _, w := range []int{1, 3, 7} {
+		res, err := Run(sys, p, Options{Periods: 5000, Warmup: 500, Replications: 7, Seed: 3, Workers: w})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.TableMax != -1 {
+			t.Errorf("TableMax %d, want -1 (drawn directly)", res.TableMax)
+		}
+		if first == nil {
+			first = res
+			continue
+		}
+		for r := range res.PerReplication {
+			if res.PerReplication[r] != first.PerReplication[r] {
+				t.Errorf("workers %d, replication %d: %+v, want %+v", w, r, res.PerReplication[r], first.PerReplication[r])
+			}
+		}
+	}
+}
+
+// TestLimits: each input over a limit is refused before allocation with a
+// *LimitError naming it.
+func TestLimits(t *testing.T) {
+	pois, _ := inventory.Parse("poisson:mean=9")
+	sys := inventory.System{Demand: pois, Holding: 1, Shortage: 9, Mode: inventory.Backorder}
+	bs := policies.Policy{Kind: policies.BaseStock, OrderUpTo: 20}
+	ok := Options{Periods: 1000, Replications: 4}
+	for _, c := range []struct {
+		name  string
+		lead  int
+		p     policies.Policy
+		opt   Options
+		field string
+	}{
+		{"replications", 0, bs, Options{Periods: 1, Replications: 1 << 30}, "replications"},
+		{"workers", 0, bs, Options{Periods: 1000, Replications: 4, Workers: MaxWorkers + 1}, "workers"},
+		{"budget", 0, bs, Options{Periods: 1000, Replications: 4, PeriodBudget: 3999}, "periods"},
+		{"pipelines", 1 << 28, bs, Options{Periods: 1000, Replications: 4, Workers: 4}, "lead_time"},
+		{"memory limit", 1 << 20, bs, Options{Periods: 1000, Replications: 4, Workers: 4, MaxBytes: 1 << 20}, "lead_time"},
+		{"level", 0, policies.Policy{Kind: policies.BaseStock, OrderUpTo: 1 << 61}, ok, "order_up_to"},
+		{"order multiple", 0, policies.Policy{Kind: policies.SNQ, ReorderPoint: 0, OrderMultiple: 1 << 61}, ok, "order_multiple"},
+		{"sums", 0, policies.Policy{Kind: policies.BaseStock, OrderUpTo: 1 << 59}, Options{Periods: 100, Replications: 2}, "periods"},
+	} {
+		s := sys
+		s.LeadTime = c.lead
+		err := Check(s, c.p, c.opt)
+		var le *LimitError
+		if !errors.As(err, &le) || le.Field != c.field {
+			t.Errorf("%s: error %v, want a LimitError naming %s", c.name, err, c.field)
+		}
+	}
+}
+
+// TestRangeStop: a draw beyond the bound the sums can hold stops the
+// replication with a *RangeError rather than wrap.
+func TestRangeStop(t *testing.T) {
+	pois, _ := inventory.Parse("poisson:mean=9")
+	sys := inventory.System{Demand: pois, Holding: 1, Shortage: 9, Mode: inventory.Backorder}
+	_, err := replicate(sys, policies.Policy{Kind: policies.BaseStock, OrderUpTo: 20}, newSampler(pois), Options{Periods: 1000, Replications: 2}, 0, 5)
+	if err == nil || err.Demand <= 5 || err.Limit != 5 {
+		t.Errorf("error %v, want a RangeError over 5", err)
+	}
+}
+
+// TestIntervalLargeFigures: the interval of figures near the float64 limit
+// is finite (the squares are scaled).
+func TestIntervalLargeFigures(t *testing.T) {
+	m, h := interval([]float64{1e307, 3e307, 5e307}, 0.95)
+	if math.IsInf(m, 0) || math.IsInf(h, 0) || math.IsNaN(h) || math.Abs(m-3e307) > 1e293 {
+		t.Errorf("mean %g, half-width %g", m, h)
 	}
 }

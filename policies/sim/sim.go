@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"runtime"
+	"strconv"
 	"strings"
 	"sync"
 
@@ -116,6 +117,28 @@ type Result struct {
 	TableTail      float64 // P(D > TableMax), drawn exactly from the tail
 }
 
+// Check returns the error Run would return before simulating anything:
+// an invalid system, policy or option (*inventory.FieldError), or an input
+// over the limits of memory, period budget or integer range
+// (*LimitError). It allocates nothing in proportion to the inputs.
+func Check(sys inventory.System, p policies.Policy, opt Options) error {
+	_, err := prepare(sys, p, opt)
+	return err
+}
+
+func prepare(sys inventory.System, p policies.Policy, opt Options) (limits, error) {
+	if err := sys.Validate(); err != nil {
+		return limits{}, err
+	}
+	if err := p.Validate(sys.Mode); err != nil {
+		return limits{}, fmt.Errorf("policy %v: %w", p, err)
+	}
+	if err := opt.validate(); err != nil {
+		return limits{}, err
+	}
+	return check(sys, p, opt)
+}
+
 // limits holds what Run derived from its size checks.
 type limits struct {
 	workers int
@@ -137,7 +160,7 @@ func check(sys inventory.System, p policies.Policy, opt Options) (limits, error)
 	}
 	if opt.Workers > MaxWorkers {
 		return lim, &LimitError{Field: "workers", Value: str(opt.Workers), Want: fmt.Sprintf("at most %d workers", MaxWorkers),
-			Size: "each is a goroutine with its own pipeline"}
+			Size: "each runs replications with its own pipeline"}
 	}
 	workers := opt.Workers
 	if workers == 0 {
@@ -169,6 +192,7 @@ func check(sys inventory.System, p policies.Policy, opt Options) (limits, error)
 	// sums must stay below 2^62, and periods times the largest increment
 	// below 2^63.
 	s, S, Q := float64(p.ReorderPoint), float64(p.OrderUpTo), float64(p.OrderMultiple)
+	given := map[string]int{"reorder_point": p.ReorderPoint, "order_up_to": p.OrderUpTo, "order_multiple": p.OrderMultiple}
 	var lo, top float64 // inventory positions after review lie in lo..top
 	switch p.Kind {
 	case policies.BaseStock:
@@ -189,7 +213,7 @@ func check(sys inventory.System, p policies.Policy, opt Options) (limits, error)
 		{"order_multiple", Q, p.Kind == policies.SNQ},
 	} {
 		if c.ok && math.Abs(c.v) >= levelMax/4 {
-			return lim, &LimitError{Field: c.field, Value: fmt.Sprintf("%.0f", c.v), Want: "a level of magnitude below 2^60 (1.15e18)",
+			return lim, &LimitError{Field: c.field, Value: str(given[c.field]), Want: "a level of magnitude below 2^60 (1.15e18)",
 				Size: "the simulator's int64 stock and sums would overflow"}
 		}
 	}
@@ -252,16 +276,7 @@ func (o Options) validate() error {
 // opt.Workers: the same inputs give identical results on any number of
 // workers.
 func Run(sys inventory.System, p policies.Policy, opt Options) (*Result, error) {
-	if err := sys.Validate(); err != nil {
-		return nil, err
-	}
-	if err := p.Validate(sys.Mode); err != nil {
-		return nil, fmt.Errorf("policy %v: %w", p, err)
-	}
-	if err := opt.validate(); err != nil {
-		return nil, err
-	}
-	lim, err := check(sys, p, opt)
+	lim, err := prepare(sys, p, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -332,7 +347,7 @@ func finite(sys inventory.System, res *Result) error {
 				continue
 			}
 			names = append(names, c.field)
-			vals = append(vals, fmt.Sprint(c.v))
+			vals = append(vals, strconv.FormatFloat(c.v, 'g', -1, 64))
 		}
 		if len(names) == 0 {
 			names, vals = []string{"demand"}, []string{sys.Demand.String()}
