@@ -106,17 +106,9 @@ func simulateAction(c *cli.Context) error {
 // overflow names its flag and exits 1, a bad option is a usage error
 // naming its flag (exit 2).
 func simErr(err error) error {
-	var le *sim.LimitError
-	if errors.As(err, &le) {
-		flags := strings.Split(le.Field, ", ")
-		for i, f := range flags {
-			flags[i] = "--" + strings.ReplaceAll(f, "_", "-")
-		}
-		return fmt.Errorf("simulate: %s %s: want %s (%s)", strings.Join(flags, ", "), le.Value, le.Want, le.Size)
-	}
-	var re *sim.RangeError
-	if errors.As(err, &re) {
-		return fmt.Errorf("simulate: --periods: %w", err)
+	var le interface{ FlagMessage() string }
+	if errors.As(err, &le) { // *sim.LimitError, *sim.RangeError
+		return fmt.Errorf("simulate: %s", le.FlagMessage())
 	}
 	return flagErr(err)
 }

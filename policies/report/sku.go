@@ -11,7 +11,6 @@ import (
 
 	"ergostock/inventory"
 	"ergostock/policies"
-	"ergostock/policies/sim"
 )
 
 // SKUInput is what the page for one SKU is built from.
@@ -196,17 +195,11 @@ func finiteFigures(sys inventory.System, e *policies.Evaluation) error {
 // page's error naming the flag; nil for any other error, which leaves a
 // note on the page.
 func simRefused(p policies.Policy, err error) error {
-	var le *sim.LimitError
+	// The simulator's *LimitError and *RangeError carry the message
+	// with the flag; report does not import policies/sim.
+	var le interface{ FlagMessage() string }
 	if errors.As(err, &le) {
-		flags := strings.Split(le.Field, ", ")
-		for i, f := range flags {
-			flags[i] = "--" + strings.ReplaceAll(f, "_", "-")
-		}
-		return fmt.Errorf("--simulate: %s %s: want %s (%s), simulating %v", strings.Join(flags, ", "), le.Value, le.Want, le.Size, p)
-	}
-	var re *sim.RangeError
-	if errors.As(err, &re) {
-		return fmt.Errorf("--simulate --periods: simulating %v: %w", p, err)
+		return fmt.Errorf("--simulate: %s, simulating %v", le.FlagMessage(), p)
 	}
 	return nil
 }

@@ -85,6 +85,17 @@ func (e *LimitError) Error() string {
 	return fmt.Sprintf("%s %s: want %s (%s)", e.Field, e.Value, e.Want, e.Size)
 }
 
+// FlagMessage is the message with each field named as its command-line
+// flag ("--lead-time 1000000000: want ..."). Callers that cannot import
+// this package (policies/report) find it through an interface.
+func (e *LimitError) FlagMessage() string {
+	flags := strings.Split(e.Field, ", ")
+	for i, f := range flags {
+		flags[i] = "--" + strings.ReplaceAll(f, "_", "-")
+	}
+	return fmt.Sprintf("%s %s: want %s (%s)", strings.Join(flags, ", "), e.Value, e.Want, e.Size)
+}
+
 // byteSize prints a byte count as "16 GB" and the like.
 func byteSize(b float64) string {
 	for _, u := range []string{"B", "kB", "MB", "GB", "TB", "PB", "EB"} {
@@ -247,6 +258,9 @@ type RangeError struct {
 func (e *RangeError) Error() string {
 	return fmt.Sprintf("replication %d drew a demand of %d units, beyond the %d that the exact int64 sums of this run can hold: run fewer periods", e.Replication, e.Demand, e.Limit)
 }
+
+// FlagMessage names the flag to change, as LimitError.FlagMessage does.
+func (e *RangeError) FlagMessage() string { return "--periods: " + e.Error() }
 
 // validate checks the options; errors name the option as the command-line
 // flag does.
