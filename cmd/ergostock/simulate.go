@@ -38,7 +38,7 @@ func simulateCommand() *cli.Command {
 			"of its 95% Student t interval. The table sets the exact value beside each interval and marks\n" +
 			"those outside it.\n\n" +
 			"Limits, checked before anything runs (exit status 1): --periods x --replications at most\n" +
-			"--period-budget (default 2e9, about a minute of one core); --periods times the largest stock\n" +
+			"--period-budget (default 2e9, about 30 s of one idle core); --periods times the largest stock\n" +
 			"level and demand within the 9.2e18 that the exact int64 sums of a replication hold; at most 1 GB\n" +
 			"of memory (pipelines of --lead-time + 1 slots per worker, the demand table, the figures of each\n" +
 			"replication); at most 1024 --workers. Costs whose figures overflow are refused.",

@@ -22,8 +22,9 @@ const (
 	DefaultLevel        = 0.95
 
 	// DefaultPeriodBudget is the default bound on Periods x Replications,
-	// the periods simulated in all: about a minute of one core at the
-	// speeds of DEVELOPERS.md section 5.
+	// the periods simulated in all: about 30 s of one idle core at the
+	// 76 M periods/s of DEVELOPERS.md section 5 (a few minutes for the
+	// widest laws, drawn directly).
 	DefaultPeriodBudget = 2_000_000_000
 
 	// DefaultMaxBytes is the default bound on the memory a run takes:
