@@ -361,6 +361,7 @@ func (pg *SKUPage) gatherGrid() error {
 	}
 	hx, hy := int(fx), int(fy)
 	xlo, xhi, ylo, yhi := ox-hx, ox+hx, oy-hy, oy+hy
+	base := [4]int{xlo, xhi, ylo, yhi} // the axes without the current policy
 	var cur *[2]int
 	if c := pg.Current; c != nil {
 		cp := c.Policy
@@ -405,6 +406,15 @@ func (pg *SKUPage) gatherGrid() error {
 	ys := axisLevels(oy, ylo, yhi, yfloor, n)
 	if sys.Mode == inventory.Backorder {
 		ops, bytes, b, span := gridWork(sys, xs, ys, snq)
+		if cur != nil && (bytes > gridBytesLimit || ops > gridOpsLimit) {
+			// A current policy far from the optimum stretches the axes:
+			// leave it off the map rather than refuse the page.
+			pg.Notes = append(pg.Notes, fmt.Sprintf("The cost map leaves out the current policy %v: axes covering it too would span %.0f levels (about %.2g operations).", pg.Current.Policy, span, ops))
+			cur = nil
+			xs = axisLevels(ox, base[0], base[1], xfloor, n)
+			ys = axisLevels(oy, base[2], base[3], yfloor, n)
+			ops, bytes, b, span = gridWork(sys, xs, ys, snq)
+		}
 		what := fmt.Sprintf("demand over %d periods cut at %.0f units per period, %.0f levels spanned", sys.LeadTime+1, b-1, span)
 		switch {
 		case bytes > gridBytesLimit:
