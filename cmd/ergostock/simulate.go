@@ -41,7 +41,8 @@ func simulateCommand() *cli.Command {
 			"--period-budget (default 2e9, about 30 s of one idle core); --periods times the largest stock\n" +
 			"level and demand within the 9.2e18 that the exact int64 sums of a replication hold; at most 1 GB\n" +
 			"of memory (pipelines of --lead-time + 1 slots per worker, the demand table, the figures of each\n" +
-			"replication); at most 1024 --workers. Costs whose figures overflow are refused.",
+			"replication); at most 1024 --workers. Costs whose figures overflow are refused. A --warmup\n" +
+			"not longer than --lead-time is refused (exit status 2): no order would have arrived.",
 		Flags:  flags,
 		Action: simulateAction,
 		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
@@ -96,6 +97,8 @@ func simulateAction(c *cli.Context) error {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the chain of %v would have about %.3g states, over --max-states %d\n", p, n, c.Int("max-states"))
 	} else if ev, err := policies.Evaluate(sys, p, evalOptions(c)); err != nil {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: %v\n", oneLine(err.Error()))
+	} else if f := simInfinite(ev.Figures); f != "" {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the exact %s overflows float64 (costs too large)\n", f)
 	} else {
 		exact = &ev.Figures
 	}
@@ -111,6 +114,17 @@ func simErr(err error) error {
 		return fmt.Errorf("simulate: %s", le.FlagMessage())
 	}
 	return flagErr(err)
+}
+
+// simInfinite returns the label of the first infinite figure of f, "" if
+// none.
+func simInfinite(f inventory.Figures) string {
+	for _, x := range f.Fields() {
+		if math.IsInf(x.Value, 0) {
+			return x.Label
+		}
+	}
+	return ""
 }
 
 // simChainSize estimates the states of the exact engine's chain for p, so
