@@ -21,8 +21,12 @@ func simRun(args ...string) (int, string, string) {
 var simBase = []string{"--demand", "poisson:mean=4", "--lead-time", "2", "--holding-cost", "1", "--shortage-cost", "9",
 	"--order-cost", "20", "--unit-cost", "2", "--reorder-point", "10", "--order-up-to", "20", "--periods", "20000", "--replications", "4"}
 
+// simWide draws its demand by a direct sampler (no alias table).
+var simWide = []string{"--demand", "negbin:mean=1e7,var=1e14", "--lead-time", "1", "--holding-cost", "1", "--shortage-cost", "9",
+	"--order-cost", "20", "--reorder-point", "20000000", "--order-up-to", "60000000", "--periods", "5000", "--replications", "5"}
+
 func TestSimulateByteIdenticalAcrossWorkers(t *testing.T) {
-	for _, extra := range [][]string{{"--json"}, nil} {
+	for _, extra := range [][]string{{"--json"}, nil, append([]string{"--json"}, simWide...), simWide} {
 		var first string
 		for _, w := range []string{"1", "3", "0"} {
 			code, out, errs := simRun(append(append(append([]string{}, simBase...), extra...), "--workers", w)...)
