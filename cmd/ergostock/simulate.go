@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -26,6 +27,7 @@ func simulateCommand() *cli.Command {
 		&cli.IntFlag{Name: "seed", Usage: "seed of the random streams (>= 0)", Value: 1},
 		&cli.IntFlag{Name: "warmup", Usage: "leading periods of each replication left out", DefaultText: "a tenth of --periods"},
 		&cli.IntFlag{Name: "workers", Usage: "replications run at once (0: all cores); never changes the output", Value: 0},
+		&cli.Int64Flag{Name: "period-budget", Usage: "refuse a run of more than this many periods in all (--periods x --replications); raise it for longer runs", Value: sim.DefaultPeriodBudget},
 		&cli.BoolFlag{Name: "json", Usage: "print every figure as {\"mean\", \"ci95\"} in JSON"},
 	)
 	return &cli.Command{
@@ -34,7 +36,13 @@ func simulateCommand() *cli.Command {
 		Description: "Plays review, receipt, demand and charges period by period on independent random streams\n" +
 			"derived from --seed, and reports each figure's mean across replications with the half-width\n" +
 			"of its 95% Student t interval. The table sets the exact value beside each interval and marks\n" +
-			"those outside it.",
+			"those outside it.\n\n" +
+			"Limits, checked before anything runs (exit status 1): --periods x --replications at most\n" +
+			"--period-budget (default 2e9, about 30 s of one idle core); --periods times the largest stock\n" +
+			"level and demand within the 9.2e18 that the exact int64 sums of a replication hold; at most 1 GB\n" +
+			"of memory (pipelines of --lead-time + 1 slots per worker, the demand table, the figures of each\n" +
+			"replication); at most 1024 --workers. Costs whose figures overflow are refused. A --warmup\n" +
+			"not longer than --lead-time is refused (exit status 2): no order would have arrived.",
 		Flags:  flags,
 		Action: simulateAction,
 		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
@@ -62,25 +70,85 @@ func simulateAction(c *cli.Context) error {
 		Replications: c.Int("replications"),
 		Seed:         uint64(seed),
 		Workers:      c.Int("workers"),
+		PeriodBudget: c.Int64("period-budget"),
 	}
 	if c.IsSet("warmup") {
 		opt.Warmup = c.Int("warmup")
 	}
+	if opt.PeriodBudget < 1 {
+		return usageErr("--period-budget %d: want a number of periods >= 1", opt.PeriodBudget)
+	}
+	if err := sim.Check(sys, p, opt); err != nil {
+		return simErr(err)
+	}
+	if sys.LeadTime > 0 && opt.Warmup <= sys.LeadTime {
+		return usageErr("--warmup %d: want a warm-up longer than the lead time %d, so that the orders of the counted periods can arrive (raise --periods or --warmup)", opt.Warmup, sys.LeadTime)
+	}
 	res, err := sim.Run(sys, p, opt)
 	if err != nil {
-		return flagErr(err)
+		return simErr(err)
 	}
 	out := c.App.Writer
 	if c.Bool("json") {
 		return simWriteJSON(out, sys, p, res)
 	}
 	var exact *inventory.Figures
-	if ev, err := policies.Evaluate(sys, p, evalOptions(c)); err != nil {
+	if n := simChainSize(sys, p); n > float64(c.Int("max-states")) {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the chain of %v would have about %.3g states, over --max-states %d\n", p, n, c.Int("max-states"))
+	} else if ev, err := policies.Evaluate(sys, p, evalOptions(c)); err != nil {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: %v\n", oneLine(err.Error()))
+	} else if f := simInfinite(ev.Figures); f != "" {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the exact %s overflows float64 (costs too large)\n", f)
 	} else {
 		exact = &ev.Figures
 	}
 	return simWriteTable(out, sys, p, res, exact)
+}
+
+// simErr maps the simulator's errors to messages: a refused size or an
+// overflow names its flag and exits 1, a bad option is a usage error
+// naming its flag (exit 2).
+func simErr(err error) error {
+	var le interface{ FlagMessage() string }
+	if errors.As(err, &le) { // *sim.LimitError, *sim.RangeError
+		return fmt.Errorf("simulate: %s", le.FlagMessage())
+	}
+	return flagErr(err)
+}
+
+// simInfinite returns the label of the first infinite figure of f, "" if
+// none.
+func simInfinite(f inventory.Figures) string {
+	for _, x := range f.Fields() {
+		if math.IsInf(x.Value, 0) {
+			return x.Label
+		}
+	}
+	return ""
+}
+
+// simChainSize estimates the states of the exact engine's chain for p, so
+// that simulate skips the exact column rather than ask for a chain it
+// cannot build: the inventory positions s+1..top in backorder mode, about
+// C(top+L+1, L+1) in lost mode, and never less than the largest level in
+// magnitude (the engine's loss tables run over 0..top).
+func simChainSize(sys inventory.System, p policies.Policy) float64 {
+	s, S, Q := float64(p.ReorderPoint), float64(p.OrderUpTo), float64(p.OrderMultiple)
+	lo, top := s+1, S
+	switch p.Kind {
+	case policies.BaseStock:
+		lo = S
+	case policies.SNQ:
+		top = s + Q
+	}
+	if sys.Mode == inventory.Lost {
+		L := float64(sys.LeadTime)
+		a, _ := math.Lgamma(top + L + 2)
+		b, _ := math.Lgamma(L + 2)
+		d, _ := math.Lgamma(top + 1)
+		return math.Max(math.Exp(a-b-d), top)
+	}
+	return math.Max(top-lo+1, math.Max(math.Abs(lo), math.Abs(top)))
 }
 
 // simSettings records how the simulation ran; it holds nothing that depends

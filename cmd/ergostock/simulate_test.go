@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"os"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -19,8 +21,12 @@ func simRun(args ...string) (int, string, string) {
 var simBase = []string{"--demand", "poisson:mean=4", "--lead-time", "2", "--holding-cost", "1", "--shortage-cost", "9",
 	"--order-cost", "20", "--unit-cost", "2", "--reorder-point", "10", "--order-up-to", "20", "--periods", "20000", "--replications", "4"}
 
+// simWide draws its demand by a direct sampler (no alias table).
+var simWide = []string{"--demand", "negbin:mean=1e7,var=1e14", "--lead-time", "1", "--holding-cost", "1", "--shortage-cost", "9",
+	"--order-cost", "20", "--reorder-point", "20000000", "--order-up-to", "60000000", "--periods", "5000", "--replications", "5"}
+
 func TestSimulateByteIdenticalAcrossWorkers(t *testing.T) {
-	for _, extra := range [][]string{{"--json"}, nil} {
+	for _, extra := range [][]string{{"--json"}, nil, append([]string{"--json"}, simWide...), simWide} {
 		var first string
 		for _, w := range []string{"1", "3", "0"} {
 			code, out, errs := simRun(append(append(append([]string{}, simBase...), extra...), "--workers", w)...)
@@ -108,4 +114,143 @@ func TestSimulateFlagErrors(t *testing.T) {
 			t.Errorf("%v: exit %d, stderr %q, stdout %q; want exit 2 and one line naming %s", c.args, code, errs, out, c.flag)
 		}
 	}
+}
+
+// oneLineNaming checks a refusal: the wanted exit status, one line on
+// stderr that names want, nothing on stdout, no panic.
+func oneLineNaming(t *testing.T, args []string, code int, out, errs string, wantCode int, want string) {
+	t.Helper()
+	msg := strings.TrimSpace(errs)
+	if code != wantCode || !strings.Contains(msg, want) || strings.Contains(msg, "\n") || out != "" ||
+		strings.Contains(errs, "panic") || strings.Contains(errs, "goroutine") {
+		t.Errorf("%v:\nexit %d, stderr %q, stdout %q\nwant exit %d and one line naming %q", args, code, errs, out, wantCode, want)
+	}
+}
+
+// noNonFinite fails when s prints a non-finite number.
+func noNonFinite(t *testing.T, what, s string) {
+	t.Helper()
+	if m := nonFinite.FindString(s); m != "" {
+		t.Errorf("%s prints %q", what, m)
+	}
+}
+
+// nonFinite matches how Go prints a non-finite float.
+var nonFinite = regexp.MustCompile(`\bNaN\b|[+-]Inf\b|\bInf\b`)
+
+// TestSimulateHostile runs the reproductions of issue 10 through
+// simulate: inputs that used to allocate without bound, overflow the exact
+// sums or run for ever are refused before anything is allocated, with exit
+// status 1 and one line naming the flag, the value and the size.
+func TestSimulateHostile(t *testing.T) {
+	base := []string{"--demand", "poisson:mean=9", "--holding-cost", ".4", "--shortage-cost", "12"}
+	for _, c := range []struct {
+		args []string
+		code int
+		want string // in the one-line message
+	}{
+		{[]string{"--order-up-to", "9223372036854775807"}, 1, "--order-up-to 9223372036854775807"},
+		{[]string{"--order-up-to", "-9223372036854775808"}, 1, "--order-up-to -9223372036854775808"},
+		{[]string{"--reorder-point", "9223372036854775000", "--order-multiple", "5"}, 1, "--reorder-point 9223372036854775000"},
+		{[]string{"--reorder-point", "3", "--order-multiple", "9223372036854775000"}, 1, "--order-multiple 9223372036854775000"},
+		// Levels below 2^60 whose sums over 100,000 periods pass 2^63.
+		{[]string{"--reorder-point", "576460752303423487", "--order-multiple", "576460752303423487"}, 1, "--periods 100000: want at most"},
+		{[]string{"--order-up-to", "20", "--lead-time", "1000000000"}, 1, "--lead-time 1000000000"},
+		{[]string{"--order-up-to", "20", "--lead-time", "9223372036854775807"}, 1, "--lead-time 9223372036854775807"},
+		{[]string{"--order-up-to", "20", "--replications", "1000000000"}, 1, "--replications 1000000000"},
+		{[]string{"--order-up-to", "20", "--workers", "100000000"}, 1, "--workers 100000000"},
+		{[]string{"--order-up-to", "20", "--periods", "9223372036854775807"}, 1, "--periods 9223372036854775807: want periods x replications at most the period budget"},
+		{[]string{"--order-up-to", "20", "--periods", "4000000000000000000", "--replications", "2", "--period-budget", "9223372036854775807"}, 1, "9.2e18 an exact int64 sum holds"},
+		{[]string{"--order-up-to", "20", "--periods", "300000", "--replications", "20000", "--period-budget", "1000000"}, 1, "period budget of 1000000"},
+		{[]string{"--order-up-to", "20", "--holding-cost", "1e308", "--shortage-cost", "1e308"}, 1, "--holding-cost 1e+308"},
+		{[]string{"--order-up-to", "20", "--holding-cost", "1e308", "--shortage-cost", "1e308", "--json"}, 1, "--holding-cost 1e+308"},
+		{[]string{"--order-up-to", "20", "--order-cost", "1.7e308", "--unit-cost", "1.7e308", "--json"}, 1, "overflows float64"},
+		// A heavy tail: P(D > 3.5e10) is about 1e-15, so 2e8 periods could sum past 2^63.
+		{[]string{"--demand", "negbin:mean=1e9,var=1e18", "--order-up-to", "20", "--periods", "200000000", "--replications", "2"}, 1, "--periods 200000000: want at most"},
+		{[]string{"--order-up-to", "20", "--period-budget", "0"}, 2, "--period-budget 0"},
+		{[]string{"--order-up-to", "20", "--lead-time", "1000000"}, 2, "--warmup 10000: want a warm-up longer than the lead time 1000000"},
+		{[]string{"--order-up-to", "20", "--periods", "99999999999999999999"}, 2, "periods"},
+	} {
+		args := append(append([]string{}, base...), c.args...)
+		code, out, errs := simRun(args...)
+		oneLineNaming(t, args, code, out, errs, c.code, c.want)
+	}
+}
+
+// TestSimulateHugeButValid: levels and means far beyond the exact engine's
+// tables are simulated (the simulator needs no memory in proportion to a
+// level or to the support of a wide law), the exact column is left out with
+// one line on stderr, and every printed figure is finite.
+func TestSimulateHugeButValid(t *testing.T) {
+	for _, c := range []struct {
+		args []string
+		want string // on stdout
+	}{
+		{[]string{"--demand", "poisson:mean=9", "--order-up-to", "2000000000"}, "mean on hand"},
+		{[]string{"--demand", "poisson:mean=1e9", "--order-up-to", "1000030000"}, "fill rate"},
+		{[]string{"--demand", "negbin:mean=1e7,var=1e14", "--reorder-point", "20000000", "--order-multiple", "1000000"}, "order frequency"},
+		{[]string{"--demand", "gamma:mean=1e8,sd=1e8", "--order-up-to", "400000000", "--unmet", "lost"}, "lost sales"},
+		{[]string{"--demand", "normal:mean=1e9,sd=1e8", "--reorder-point", "1100000000", "--order-up-to", "1500000000", "--json"}, `"fill_rate"`},
+	} {
+		args := append([]string{"--holding-cost", ".4", "--shortage-cost", "12", "--periods", "20000", "--replications", "3"}, c.args...)
+		code, out, errs := simRun(args...)
+		if code != 0 || !strings.Contains(out, c.want) {
+			t.Errorf("%v: exit %d, stderr %q\n%s", args, code, errs, out)
+			continue
+		}
+		noNonFinite(t, strings.Join(args, " "), out)
+		if errs != "" && (strings.Count(strings.TrimSpace(errs), "\n") != 0 || !strings.Contains(errs, "exact values not shown")) {
+			t.Errorf("%v: stderr %q, want nothing or one line on the exact values", args, errs)
+		}
+	}
+}
+
+// TestReportSKUHostile runs the reproductions through the one-SKU report:
+// the cost map, the simulation and the figures refuse with exit 1 and one
+// line naming the input, and write nothing.
+func TestReportSKUHostile(t *testing.T) {
+	base := []string{"--demand", "poisson:mean=9", "--holding-cost", ".4", "--shortage-cost", "12", "--order-up-to", "20"}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--simulate", "--replications", "1000000000"}, "--replications 1000000000"},
+		{[]string{"--simulate", "--periods", "9223372036854775807"}, "--periods 9223372036854775807"},
+		{[]string{"--holding-cost", "1e308", "--shortage-cost", "1e308"}, "--holding-cost 1e+308, --shortage-cost 1e+308"},
+		// The renewal cost map of a wide demand over the lead time: about
+		// 4e11 operations, refused before the convolution.
+		{[]string{"--demand", "poisson:mean=200000", "--lead-time", "4", "--order-cost", "100", "--reorder-point", "1000000", "--order-up-to", "1000200"}, "--demand poisson:mean=200000 with --lead-time 4: the cost map"},
+		{[]string{"--lead-time", "1000000"}, "--lead-time 1000000: the cost map"},
+	} {
+		out := t.TempDir() + "/page.html"
+		args := append(append([]string{"ergostock", "report", "--out", out}, base...), c.args...)
+		var stdout, stderr bytes.Buffer
+		code := run(args, strings.NewReader(""), &stdout, &stderr)
+		oneLineNaming(t, args, code, stdout.String(), stderr.String(), 1, c.want)
+		if _, err := os.Stat(out); err == nil {
+			t.Errorf("%v: a page was written", args)
+		}
+	}
+}
+
+// TestReportSKUFarCurrent: a current policy far from the optimum would
+// stretch the cost map past its limit (a renewal mass over 3e5 levels,
+// about 5e10 operations); the page is written with the map around the
+// optimum and a note, and prints no non-finite figure.
+func TestReportSKUFarCurrent(t *testing.T) {
+	out := t.TempDir() + "/page.html"
+	args := []string{"ergostock", "report", "--out", out, "--demand", "poisson:mean=9", "--holding-cost", ".4", "--shortage-cost", "12",
+		"--reorder-point", "300000", "--order-up-to", "300100"}
+	var stdout, stderr bytes.Buffer
+	if code := run(args, strings.NewReader(""), &stdout, &stderr); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr.String())
+	}
+	page, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Contains(page, []byte("The cost map leaves out the current policy s-S(s=300000,S=300100)")) {
+		t.Error("the page lacks the note on the current policy")
+	}
+	noNonFinite(t, "page", string(page))
 }

@@ -1,6 +1,8 @@
 package report
 
 import (
+	"ergostock/inventory"
+
 	"fmt"
 	"html/template"
 	"image/color"
@@ -318,8 +320,12 @@ func seriesChart(labels []string, qty []float64, unit, title string) (template.H
 }
 
 // histChart draws the observed frequency of each demand size per period
-// against the fitted probability mass function, binned when wide.
-func histChart(obs []int, pmf func(k int) float64, fitName, unit, title string) (template.HTML, error) {
+// against the fitted probability mass function, binned when wide. The
+// work is O(periods + bins) whatever the support: the range ends at the
+// largest observation or the fitted law's 0.999 quantile (at most 3 times
+// the largest observation plus 50), and each bin's probability is a
+// difference of the CDF.
+func histChart(obs []int, fit inventory.Distribution, fitName, unit, title string) (template.HTML, error) {
 	if len(obs) == 0 {
 		return "", fmt.Errorf("chart %q: no periods to draw", title)
 	}
@@ -328,12 +334,8 @@ func histChart(obs []int, pmf func(k int) float64, fitName, unit, title string) 
 		hi = max(hi, v)
 	}
 	// Extend the range to where the fitted law has almost all its mass.
-	cum := 0.0
-	for k := 0; k <= hi || (cum < 0.999 && k < hi*3+50); k++ {
-		cum += pmf(k)
-		if k > hi {
-			hi = k
-		}
+	if hi < math.MaxInt/4 {
+		hi = max(hi, min(fit.Bound(1-0.999), hi*3+50))
 	}
 	w := niceWidth(hi+1, 40)
 	ylabel := "fraction of periods"
@@ -357,9 +359,13 @@ func histChart(obs []int, pmf func(k int) float64, fitName, unit, title string) 
 	p.Legend.Add(fmt.Sprintf("observed (%d periods)", len(obs)), bars)
 	var pts plotter.XYs
 	for b := 0; b <= hi; b += w {
-		m := 0.0
-		for k := b; k < b+w; k++ {
-			m += pmf(k)
+		m := fit.PMF(b)
+		if w > 1 { // P(b <= D < b+w), in the tail where it is smaller
+			if b > 0 && fit.CDF(b-1) > 0.5 {
+				m = fit.Tail(b) - fit.Tail(b+w)
+			} else {
+				m = fit.CDF(b+w-1) - fit.CDF(b-1)
+			}
 		}
 		pts = append(pts, plotter.XY{X: float64(b) - 0.5 + float64(w)/2, Y: m})
 	}

@@ -1,10 +1,12 @@
 package report
 
 import (
+	"errors"
 	"fmt"
 	"html/template"
 	"math"
 	"runtime"
+	"strings"
 	"sync"
 
 	"ergostock/inventory"
@@ -129,17 +131,33 @@ func buildSKU(in SKUInput, ev evalFunc, opt optFunc) (*SKUPage, error) {
 		return nil, fmt.Errorf("search for the cheapest %s policy: %w", kind, err)
 	}
 	pg.Optimum = o
+	for _, e := range []*policies.Evaluation{pg.Current, &o.Evaluation} {
+		if e == nil {
+			continue
+		}
+		if err := finiteFigures(in.System, e); err != nil {
+			return nil, err
+		}
+	}
 	pg.gatherLevels()
-	pg.gatherGrid()
+	if err := pg.gatherGrid(); err != nil {
+		return nil, err
+	}
 	pg.gatherFill()
 	if in.Simulate != nil {
 		if s, err := in.Simulate(o.Policy); err != nil {
+			if e := simRefused(o.Policy, err); e != nil {
+				return nil, e
+			}
 			pg.Notes = append(pg.Notes, fmt.Sprintf("simulation of %v failed: %v", o.Policy, err))
 		} else {
 			pg.SimOptimum = s
 		}
 		if in.Current != nil && *in.Current != o.Policy {
 			if s, err := in.Simulate(*in.Current); err != nil {
+				if e := simRefused(*in.Current, err); e != nil {
+					return nil, e
+				}
 				pg.Notes = append(pg.Notes, fmt.Sprintf("simulation of %v failed: %v", *in.Current, err))
 			} else {
 				pg.SimCurrent = s
@@ -148,6 +166,42 @@ func buildSKU(in SKUInput, ev evalFunc, opt optFunc) (*SKUPage, error) {
 	}
 	pg.render()
 	return pg, nil
+}
+
+// finiteFigures refuses an evaluation with a non-finite figure (costs so
+// large that a cost per period overflows float64), naming the costs.
+func finiteFigures(sys inventory.System, e *policies.Evaluation) error {
+	for _, f := range e.Figures.Fields() {
+		if !math.IsInf(f.Value, 0) && !(math.IsNaN(f.Value) && f.Name != "fill_rate" && f.Name != "mean_order_quantity") {
+			continue
+		}
+		var names []string
+		for _, c := range []struct {
+			flag string
+			v    float64
+		}{{"--holding-cost", sys.Holding}, {"--shortage-cost", sys.Shortage}, {"--order-cost", sys.OrderCost}, {"--unit-cost", sys.UnitCost}} {
+			if c.v != 0 {
+				names = append(names, fmt.Sprintf("%s %g", c.flag, c.v))
+			}
+		}
+		return fmt.Errorf("%s: the %s of %v overflows float64: want costs whose figures stay below 1.8e308 (state them in larger money units)",
+			strings.Join(names, ", "), f.Label, e.Policy)
+	}
+	return nil
+}
+
+// simRefused turns a simulation refused for its size, its time budget or
+// the range of its sums (the inputs, not the policy, are at fault) into the
+// page's error naming the flag; nil for any other error, which leaves a
+// note on the page.
+func simRefused(p policies.Policy, err error) error {
+	// The simulator's *LimitError and *RangeError carry the message
+	// with the flag; report does not import policies/sim.
+	var le interface{ FlagMessage() string }
+	if errors.As(err, &le) {
+		return fmt.Errorf("--simulate: %s, simulating %v", le.FlagMessage(), p)
+	}
+	return nil
 }
 
 // policiesShown lists the recommended policy and, if different, the
@@ -233,9 +287,57 @@ func axisLevels(centre, lo, hi, floor, n int) []int {
 	return v
 }
 
+// Limits of the cost map's own work (backorder mode; in lost mode every
+// cell is an evaluation and the map is kept near 1e6 states in all):
+// weighted operations (a multiply-add counts 1, a call of G 5, a pmf or
+// tail of the law 50) and bytes.
+const (
+	gridOpsLimit   = 2e10
+	gridBytesLimit = 1 << 30
+	// gridSpanLimit bounds the half-width of an axis, in units, before any
+	// level is computed in int.
+	gridSpanLimit = 1 << 40
+)
+
+// gridError reports a cost map too large for the one-SKU page; it names
+// the inputs behind the size.
+func (pg *SKUPage) gridError(what string, size, limit string) error {
+	sys := pg.In.System
+	return fmt.Errorf("--demand %s with --lead-time %d: the cost map around %v would take %s (%s), over the one-SKU page's limit of %s",
+		sys.Demand, sys.LeadTime, pg.Optimum.Policy, size, what, limit)
+}
+
+// gridWork estimates the weighted operations and bytes of the renewal
+// cost map in backorder mode over the axes xs, ys: the demand over L+1
+// periods by repeated convolution (b^2 L(L+1)/2 multiply-adds for a
+// one-period demand cut at b), the renewal mass over the levels spanned
+// (n^2/2 multiply-adds and n pmf values), and the cells (S - s calls of G
+// each for s-S, Q calls of G and of the tail for s-nQ).
+func gridWork(sys inventory.System, xs, ys []int, snq bool) (ops, bytes, b, n float64) {
+	b = float64(sys.Demand.Bound(levelEps)) + 1
+	L := float64(sys.LeadTime)
+	ops = b*b*L*(L+1)/2 + 50*b
+	bytes = 8 * 5 * (L + 1) * b
+	n = math.Max(1, float64(ys[len(ys)-1])-float64(xs[0]))
+	ops += n*n/2 + 50*n
+	bytes += 16 * n
+	for _, y := range ys {
+		for _, x := range xs {
+			switch {
+			case snq:
+				ops += 55 * float64(y)
+			case x < y:
+				ops += 5 * float64(y-x)
+			}
+		}
+	}
+	return ops, bytes, b, n
+}
+
 // gatherGrid evaluates total cost over a grid of reorder point (x) and
-// order-up-to level or order multiple (y) around the optimum.
-func (pg *SKUPage) gatherGrid() {
+// order-up-to level or order multiple (y) around the optimum. It estimates
+// its work first and refuses a map over gridOpsLimit or gridBytesLimit.
+func (pg *SKUPage) gatherGrid() error {
 	sys := pg.In.System
 	opt := pg.Optimum.Policy
 	sd := math.Sqrt(sys.Demand.Variance() * float64(sys.LeadTime+1))
@@ -247,13 +349,19 @@ func (pg *SKUPage) gatherGrid() {
 	if snq {
 		oy = opt.OrderMultiple
 	}
-	gap := float64(oy - ox)
+	gap := float64(oy) - float64(ox)
 	if snq {
 		gap = float64(oy)
 	}
-	hx := int(math.Ceil(math.Max(12, math.Max(2.5*sd, 0.6*gap))))
-	hy := int(math.Ceil(math.Max(12, math.Max(2.5*sd, 0.8*gap))))
+	fx := math.Ceil(math.Max(12, math.Max(2.5*sd, 0.6*gap)))
+	fy := math.Ceil(math.Max(12, math.Max(2.5*sd, 0.8*gap)))
+	if m := math.Max(fx, fy); !(m <= gridSpanLimit) || math.Abs(float64(ox))+m > math.MaxInt64/4 || math.Abs(float64(oy))+m > math.MaxInt64/4 {
+		return pg.gridError(fmt.Sprintf("axes %.3g units wide (2.5 sd of demand over the lead time plus review, or the order size)", 2*m),
+			fmt.Sprintf("%.3g units per axis", 2*m), fmt.Sprintf("%.3g", float64(2*gridSpanLimit)))
+	}
+	hx, hy := int(fx), int(fy)
 	xlo, xhi, ylo, yhi := ox-hx, ox+hx, oy-hy, oy+hy
+	base := [4]int{xlo, xhi, ylo, yhi} // the axes without the current policy
 	var cur *[2]int
 	if c := pg.Current; c != nil {
 		cp := c.Policy
@@ -291,11 +399,30 @@ func (pg *SKUPage) gatherGrid() {
 		}
 		if float64(n*n)*st > 1e6 {
 			pg.Notes = append(pg.Notes, fmt.Sprintf("The cost map is left out: its lost-sales chains would have up to about %.3g states each.", st))
-			return
+			return nil
 		}
 	}
 	xs := axisLevels(ox, xlo, xhi, xfloor, n)
 	ys := axisLevels(oy, ylo, yhi, yfloor, n)
+	if sys.Mode == inventory.Backorder {
+		ops, bytes, b, span := gridWork(sys, xs, ys, snq)
+		if cur != nil && (bytes > gridBytesLimit || ops > gridOpsLimit) {
+			// A current policy far from the optimum stretches the axes:
+			// leave it off the map rather than refuse the page.
+			pg.Notes = append(pg.Notes, fmt.Sprintf("The cost map leaves out the current policy %v: axes covering it too would span %.0f levels (about %.2g operations).", pg.Current.Policy, span, ops))
+			cur = nil
+			xs = axisLevels(ox, base[0], base[1], xfloor, n)
+			ys = axisLevels(oy, base[2], base[3], yfloor, n)
+			ops, bytes, b, span = gridWork(sys, xs, ys, snq)
+		}
+		what := fmt.Sprintf("demand over %d periods cut at %.0f units per period, %.0f levels spanned", sys.LeadTime+1, b-1, span)
+		switch {
+		case bytes > gridBytesLimit:
+			return pg.gridError(what, fmt.Sprintf("%.3g GB", bytes/1e9), fmt.Sprintf("%.3g GB", gridBytesLimit/1e9))
+		case ops > gridOpsLimit:
+			return pg.gridError(what, fmt.Sprintf("about %.2g operations", ops), fmt.Sprintf("%.0g", gridOpsLimit))
+		}
+	}
 	cost := make([][]float64, len(ys))
 	type cell struct{ ix, iy int }
 	var cells []cell
@@ -362,6 +489,7 @@ func (pg *SKUPage) gatherGrid() {
 		g.CurName = "current " + pg.Current.Policy.String()
 	}
 	pg.Grid = g
+	return nil
 }
 
 // lostStates estimates the states of a lost-sales chain with order-up-to

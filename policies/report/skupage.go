@@ -188,7 +188,7 @@ func (pg *SKUPage) render() {
 		}
 		if fit != nil {
 			c := Chart{ID: "history-fit", Title: "Observed demand per " + unit + " against the fitted distribution"}
-			svg, err := histChart(h.Demand, fit.PMF, what+shortSpec(fit), unit, c.Title)
+			svg, err := histChart(h.Demand, fit, what+shortSpec(fit), unit, c.Title)
 			c.SVG = svg
 			c.Caption = "Bars: the share of periods with each demand. Points: the probability the fitted model gives to the same demand. Large gaps between the two say the model misdescribes this item."
 			if sys.Demand != nil && fit.String() != sys.Demand.String() {

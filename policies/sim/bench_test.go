@@ -30,7 +30,7 @@ func BenchmarkPeriods(b *testing.B) {
 			}
 			b.ReportAllocs()
 			b.ResetTimer()
-			step(&st, &t, p, smp, rng, b.N)
+			step(&st, &t, p, smp, rng, b.N, 1<<52)
 			b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "periods/s")
 			if t.periods != int64(b.N) {
 				b.Fatal("lost periods")
@@ -53,6 +53,34 @@ func BenchmarkDraw(b *testing.B) {
 	}
 	if sum < 0 {
 		b.Fatal(sum)
+	}
+}
+
+// BenchmarkLargeMean measures simulated periods per second on one core
+// when demand is drawn by a direct sampler (no table over the support):
+// backorder mode, base-stock at the mean, lead time 0.
+// Run with: go test -run '^$' -bench LargeMean -benchtime 2000000x ./policies/sim/
+func BenchmarkLargeMean(b *testing.B) {
+	for _, spec := range []string{"poisson:mean=1e7", "negbin:mean=1e7,var=1e14", "normal:mean=1e9,sd=1e7", "gamma:mean=1e9,sd=1e8"} {
+		b.Run(spec, func(b *testing.B) {
+			d, err := inventory.Parse(spec)
+			if err != nil {
+				b.Fatal(err)
+			}
+			smp := newSampler(d)
+			if smp.by == byAlias {
+				b.Fatalf("%s: alias table, want a direct sampler", spec)
+			}
+			top := int(d.Mean())
+			p := policies.Policy{Kind: policies.BaseStock, OrderUpTo: top}
+			st := state{net: int64(top), pipe: make([]int64, 1), w: 0}
+			rng := rand.NewPCG(1, 2)
+			var t tally
+			b.ReportAllocs()
+			b.ResetTimer()
+			stepBackorder(&st, &t, p, smp, rng, b.N, 1<<52)
+			b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "periods/s")
+		})
 	}
 }
 

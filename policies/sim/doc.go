@@ -52,7 +52,15 @@
 // algorithm for generating random numbers with a given distribution", IEEE
 // TSE 17, 1991) over the values 0..K with P(D > K) <= 1e-16, plus one cell
 // for the event D > K, which is resolved by inverting the exact tail
-// function of the distribution, so no demand is ever truncated. Every
+// function of the distribution, so no demand is ever truncated. A Poisson,
+// negative binomial, discretised normal or gamma law whose K passes 2^16 is
+// drawn in O(1) with no table, exactly from the law: Poisson by the
+// transformed rejection method PTRS (W. Hörmann, "The transformed rejection
+// method for generating Poisson random variables", Insurance: Mathematics
+// and Economics 12, 1993), the negative binomial as a gamma mixture of
+// Poissons, the discretised laws by rounding the continuous variate as
+// the SPEC defines (gamma by G. Marsaglia and W. W. Tsang, ACM TOMS 26,
+// 2000; normal by the polar method). Every
 // replication draws from its own PCG generator (M. E. O'Neill, "PCG: a
 // family of simple fast space-efficient statistically good algorithms for
 // random number generation", 2014; math/rand/v2.PCG) seeded with two
@@ -60,4 +68,10 @@
 // "Fast splittable pseudorandom number generators", OOPSLA 2014) started at
 // the user's seed, so results depend only on the seed and the replication
 // index, never on the number of workers.
+//
+// # Limits
+//
+// Check (and Run, first) estimates memory, the period count and the range
+// of the int64 sums before anything is allocated and refuses with a
+// *LimitError naming the input; see Options.PeriodBudget and MaxBytes.
 package sim

@@ -12,9 +12,28 @@ import (
 // values 0..K with K = Bound(tableEps); the event D > K is one more cell.
 const tableEps = 1e-16
 
-// maxTable caps the number of table cells for very heavy-tailed demand; the
-// remaining mass is still drawn exactly through the tail cell.
+// maxTable caps the number of table cells for very heavy-tailed demand of
+// a law without a direct sampler; the remaining mass is still drawn exactly
+// through the tail cell.
 const maxTable = 1 << 20
+
+// aliasLimit is the widest support (in units) that gets an alias table
+// when the family has a direct sampler (Poisson, negative binomial,
+// discretised normal and gamma); wider laws are drawn directly.
+const aliasLimit = 1 << 16
+
+// cellBytes is the memory of one table cell with its build scratch
+// (weight, scaled weight, small/large index).
+const cellBytes = 16 + 8 + 8 + 8
+
+// How a sampler draws.
+const (
+	byAlias   = iota // alias table plus exact tail inversion
+	byPoisson        // PTRS (Hormann 1993)
+	byNegBin         // gamma-Poisson mixture
+	byNormal         // rounded continuous normal
+	byGamma          // rounded continuous gamma
+)
 
 // cell is one column of the alias table: the value of the column itself is
 // taken when the fraction part of the draw is below thr, the alias
@@ -29,15 +48,71 @@ type cell struct {
 // for the event D > k, drawn from the exact tail. A sampler is read-only
 // after construction and may be shared by goroutines.
 type sampler struct {
+	by    int // byAlias, byPoisson, ...
 	cells []cell
 	n     uint64 // len(cells)
 	k     int64  // largest value held in the table
 	tail  float64
 	dist  inventory.Distribution
+
+	// Direct samplers: PTRS constants (byPoisson), the gamma shape and
+	// scale (byNegBin: of the Poisson mean; byGamma: of the demand), the
+	// normal's mu and sigma (byNormal).
+	pois         ptrs
+	shape, scale float64
+	mu, sigma    float64
 }
 
-// newSampler builds the alias table of d.
-func newSampler(d inventory.Distribution) *sampler { return newSamplerEps(d, tableEps) }
+// newSampler returns the sampler of d: an alias table over 0..Bound(1e-16)
+// when that support is narrow, else the family's direct sampler; an
+// explicit pmf always gets the alias table over its support.
+func newSampler(d inventory.Distribution) *sampler {
+	if s := directSampler(d); s != nil {
+		return s
+	}
+	return newSamplerEps(d, tableEps)
+}
+
+// tableCells returns the number of alias cells newSampler(d) builds (0 for
+// a direct sampler), for the size estimate before building.
+func tableCells(d inventory.Distribution) int {
+	if directSampler(d) != nil {
+		return 0
+	}
+	return min(max(d.Bound(tableEps), 0), maxTable-2) + 2
+}
+
+// directSampler returns the direct sampler of a wide law of a family that
+// has one, nil otherwise.
+//
+//   - Poisson: PTRS (see ptrs).
+//   - Negative binomial with size r and probability p: Poisson(L) with
+//     L ~ Gamma(r, (1-p)/p), the gamma-Poisson mixture (Johnson, Kemp and
+//     Kotz, Univariate Discrete Distributions, 3rd ed., 2005, section 5.3).
+//   - Discretised normal and gamma: the continuous variate X rounded as the
+//     SPEC discretises it (see roundDemand).
+func directSampler(d inventory.Distribution) *sampler {
+	switch d.(type) {
+	case inventory.Poisson, inventory.NegBin, inventory.Normal, inventory.Gamma:
+	default:
+		return nil
+	}
+	if d.Bound(tableEps) <= aliasLimit {
+		return nil
+	}
+	s := &sampler{k: -1, dist: d}
+	switch d := d.(type) {
+	case inventory.Poisson:
+		s.by, s.pois = byPoisson, newPTRS(d.Mean())
+	case inventory.NegBin:
+		s.by, s.shape, s.scale = byNegBin, d.Size(), (1-d.Prob())/d.Prob()
+	case inventory.Normal:
+		s.by, s.mu, s.sigma = byNormal, d.Mu(), d.Sigma()
+	case inventory.Gamma:
+		s.by, s.shape, s.scale = byGamma, d.Shape(), d.Scale()
+	}
+	return s
+}
 
 // newSamplerEps builds the alias table of d over 0..Bound(eps).
 func newSamplerEps(d inventory.Distribution, eps float64) *sampler {
@@ -118,6 +193,9 @@ func threshold(x float64) uint64 {
 // floor(u n / 2^64), and the fraction within it, u n mod 2^64; the fraction
 // is uniform to within n / 2^64.
 func (s *sampler) draw(rng *rand.PCG) int64 {
+	if s.by != byAlias {
+		return s.direct(rng)
+	}
 	col, frac := bits.Mul64(rng.Uint64(), s.n)
 	c := s.cells[col]
 	v := c.alias
@@ -157,4 +235,24 @@ func (s *sampler) far(rng *rand.PCG) int64 {
 		}
 	}
 	return hi
+}
+
+// direct draws from a direct sampler. A draw beyond 2^62 (possible only
+// for laws the size checks of Run refuse) is returned as 2^62.
+func (s *sampler) direct(rng *rand.PCG) int64 {
+	var x float64
+	switch s.by {
+	case byPoisson:
+		x = s.pois.draw(rng)
+	case byNegBin:
+		x = poisson(rng, s.scale*gammaVariate(rng, s.shape))
+	case byNormal:
+		x = roundDemand(s.mu + s.sigma*normal(rng))
+	case byGamma:
+		x = roundDemand(s.scale * gammaVariate(rng, s.shape))
+	}
+	if !(x < 1<<62) {
+		return 1 << 62
+	}
+	return int64(x)
 }

@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"runtime"
+	"strconv"
+	"strings"
 	"sync"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -19,8 +21,31 @@ const (
 	DefaultReplications = 20
 	DefaultLevel        = 0.95
 
-	// MaxLeadTime bounds the pipeline each worker holds (L+1 slots).
-	MaxLeadTime = 1 << 20
+	// DefaultPeriodBudget is the default bound on Periods x Replications,
+	// the periods simulated in all: about 30 s of one idle core at the
+	// 76 M periods/s of DEVELOPERS.md section 5 (a few minutes for the
+	// widest laws, drawn directly).
+	DefaultPeriodBudget = 2_000_000_000
+
+	// DefaultMaxBytes is the default bound on the memory a run takes:
+	// pipelines, the demand table and the per-replication figures.
+	DefaultMaxBytes = 1 << 30
+
+	// MaxWorkers bounds Options.Workers.
+	MaxWorkers = 1024
+
+	// MaxDemand is the largest single demand the simulator draws: integers
+	// up to 2^52 are exact in float64, in which the direct samplers work.
+	MaxDemand = 1 << 52
+
+	// sumLimit bounds every exact int64 sum of a replication (below 2^63-1
+	// with room for round-off in the float64 estimate of the bound).
+	sumLimit = 9.2e18
+
+	// demandEps is the per-draw probability beyond which the demand bound
+	// used for the sums is set: a draw above it stops the run with an error
+	// (see LimitError), never with a wrapped sum.
+	demandEps = 1e-15
 )
 
 // DefaultWarmup returns the warm-up used when none is given: a tenth of the
@@ -37,6 +62,50 @@ type Options struct {
 	Seed         uint64  // the seed every replication's stream is derived from
 	Workers      int     // goroutines; 0 means runtime.GOMAXPROCS(0). Never changes the result
 	Level        float64 // confidence level of the intervals; 0 means 0.95
+	// PeriodBudget bounds Periods x Replications; 0 means
+	// DefaultPeriodBudget.
+	PeriodBudget int64
+	// MaxBytes bounds the estimated memory of the run; 0 means
+	// DefaultMaxBytes.
+	MaxBytes int64
+}
+
+// LimitError reports an input the simulator refuses for its size: the
+// memory it would take, the time it would run, or sums that int64 cannot
+// hold. Field names the input as inventory.FieldError does (snake_case;
+// the command line shows it as a flag); Want says the limit and Size the
+// estimate that broke it.
+type LimitError struct {
+	Field string
+	Value string
+	Want  string
+	Size  string
+}
+
+func (e *LimitError) Error() string {
+	return fmt.Sprintf("%s %s: want %s (%s)", e.Field, e.Value, e.Want, e.Size)
+}
+
+// FlagMessage is the message with each field named as its command-line
+// flag ("--lead-time 1000000000: want ..."). Callers that cannot import
+// this package (policies/report) find it through an interface.
+func (e *LimitError) FlagMessage() string {
+	flags := strings.Split(e.Field, ", ")
+	for i, f := range flags {
+		flags[i] = "--" + strings.ReplaceAll(f, "_", "-")
+	}
+	return fmt.Sprintf("%s %s: want %s (%s)", strings.Join(flags, ", "), e.Value, e.Want, e.Size)
+}
+
+// byteSize prints a byte count as "16 GB" and the like.
+func byteSize(b float64) string {
+	for _, u := range []string{"B", "kB", "MB", "GB", "TB", "PB", "EB"} {
+		if b < 1000 {
+			return fmt.Sprintf("%.3g %s", b, u)
+		}
+		b /= 1000
+	}
+	return fmt.Sprintf("%.3g ZB", b)
 }
 
 // Result holds the figures of a simulation: the mean across replications
@@ -56,9 +125,143 @@ type Result struct {
 	Warmup         int
 	Replications   int
 	Seed           uint64
-	TableMax       int     // largest demand held in the alias table
+	TableMax       int     // largest demand held in the alias table; -1 when drawn directly
 	TableTail      float64 // P(D > TableMax), drawn exactly from the tail
 }
+
+// Check returns the error Run would return before simulating anything:
+// an invalid system, policy or option (*inventory.FieldError), or an input
+// over the limits of memory, period budget or integer range
+// (*LimitError). It allocates nothing in proportion to the inputs.
+func Check(sys inventory.System, p policies.Policy, opt Options) error {
+	_, err := prepare(sys, p, opt)
+	return err
+}
+
+func prepare(sys inventory.System, p policies.Policy, opt Options) (limits, error) {
+	if err := sys.Validate(); err != nil {
+		return limits{}, err
+	}
+	if err := p.Validate(sys.Mode); err != nil {
+		return limits{}, fmt.Errorf("policy %v: %w", p, err)
+	}
+	if err := opt.validate(); err != nil {
+		return limits{}, err
+	}
+	return check(sys, p, opt)
+}
+
+// limits holds what Run derived from its size checks.
+type limits struct {
+	workers int
+	dmax    int64 // a draw above it stops the run
+}
+
+// check estimates the memory, time and integer range of the run before
+// anything is allocated, and refuses over the limits.
+func check(sys inventory.System, p policies.Policy, opt Options) (limits, error) {
+	var lim limits
+	str := func(v any) string { return fmt.Sprint(v) }
+	budget := opt.PeriodBudget
+	if budget == 0 {
+		budget = DefaultPeriodBudget
+	}
+	maxBytes := opt.MaxBytes
+	if maxBytes == 0 {
+		maxBytes = DefaultMaxBytes
+	}
+	if opt.Workers > MaxWorkers {
+		return lim, &LimitError{Field: "workers", Value: str(opt.Workers), Want: fmt.Sprintf("at most %d workers", MaxWorkers),
+			Size: "each runs replications with its own pipeline"}
+	}
+	workers := opt.Workers
+	if workers == 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	lim.workers = min(workers, opt.Replications)
+	// Memory: per-replication figures (kept in Result and sorted through
+	// aggregate), one pipeline of L+1 slots per worker, the demand table.
+	nf := float64(len(inventory.Figures{}.Fields()))
+	if b := float64(opt.Replications) * (nf + 1) * 8; b > float64(maxBytes) {
+		return lim, &LimitError{Field: "replications", Value: str(opt.Replications), Want: fmt.Sprintf("at most %d replications", int64(float64(maxBytes)/((nf+1)*8))),
+			Size: fmt.Sprintf("their figures would take %s, over the limit of %s", byteSize(b), byteSize(float64(maxBytes)))}
+	}
+	if n := float64(opt.Periods) * float64(opt.Replications); n > float64(budget) {
+		return lim, &LimitError{Field: "periods", Value: str(opt.Periods), Want: fmt.Sprintf("periods x replications at most the period budget of %d", budget),
+			Size: fmt.Sprintf("%d x %d = %.3g periods in all; raise the budget to run longer", opt.Periods, opt.Replications, n)}
+	}
+	pipe := float64(lim.workers) * (float64(sys.LeadTime) + 1) * 8
+	if pipe > float64(maxBytes) {
+		return lim, &LimitError{Field: "lead_time", Value: str(sys.LeadTime), Want: fmt.Sprintf("a lead time whose pipelines fit in %s", byteSize(float64(maxBytes))),
+			Size: fmt.Sprintf("%d workers x %d slots x 8 bytes = %s", lim.workers, sys.LeadTime+1, byteSize(pipe))}
+	}
+	cells := tableCells(sys.Demand)
+	if b := pipe + float64(cells)*cellBytes; b > float64(maxBytes) {
+		return lim, &LimitError{Field: "demand", Value: sys.Demand.String(), Want: fmt.Sprintf("a demand table that fits in %s", byteSize(float64(maxBytes))),
+			Size: fmt.Sprintf("%d cells, %s", cells, byteSize(b))}
+	}
+	// Integer range: every level and every per-period increment of the
+	// sums must stay below 2^62, and periods times the largest increment
+	// below 2^63.
+	s, S, Q := float64(p.ReorderPoint), float64(p.OrderUpTo), float64(p.OrderMultiple)
+	given := map[string]int{"reorder_point": p.ReorderPoint, "order_up_to": p.OrderUpTo, "order_multiple": p.OrderMultiple}
+	var lo, top float64 // inventory positions after review lie in lo..top
+	switch p.Kind {
+	case policies.BaseStock:
+		lo, top = S, S
+	case policies.SS:
+		lo, top = s+1, S
+	default:
+		lo, top = s+1, s+Q
+	}
+	const levelMax = 1 << 62
+	for _, c := range []struct {
+		field string
+		v     float64
+		ok    bool
+	}{
+		{"reorder_point", s, p.Kind != policies.BaseStock},
+		{"order_up_to", S, p.Kind != policies.SNQ},
+		{"order_multiple", Q, p.Kind == policies.SNQ},
+	} {
+		if c.ok && math.Abs(c.v) >= levelMax/4 {
+			return lim, &LimitError{Field: c.field, Value: str(given[c.field]), Want: "a level of magnitude below 2^60 (1.15e18)",
+				Size: "the simulator's int64 stock and sums would overflow"}
+		}
+	}
+	need := sys.Demand.Bound(demandEps) // P(D > need) <= 1e-15
+	if float64(need) > MaxDemand {
+		return lim, &LimitError{Field: "demand", Value: sys.Demand.String(), Want: "a demand below 2^52 units per period",
+			Size: fmt.Sprintf("P(D > %.3g) > %g", float64(MaxDemand), demandEps)}
+	}
+	span := top - lo + 1
+	fixed := math.Abs(lo) + math.Abs(top) + 2
+	L := float64(sys.LeadTime)
+	perPeriod := func(dmax float64) float64 { return fixed + (L+2)*(span+dmax) }
+	if n := float64(opt.Periods) * perPeriod(float64(need)); n > sumLimit {
+		most := math.Floor(sumLimit / perPeriod(float64(need)))
+		return lim, &LimitError{Field: "periods", Value: str(opt.Periods), Want: fmt.Sprintf("at most %.0f periods per replication for these levels, lead time and demand", most),
+			Size: fmt.Sprintf("periods x (|levels| + (L+2) x (%g + demand up to %d)) = %.3g, beyond the 9.2e18 an exact int64 sum holds", span, need, n)}
+	}
+	// The demand bound actually enforced: as high as the sums allow.
+	dmax := (sumLimit/float64(opt.Periods)-fixed)/(L+2) - span
+	lim.dmax = int64(min(dmax, MaxDemand))
+	return lim, nil
+}
+
+// RangeError reports a draw beyond the demand the exact sums of the run
+// can hold (a tail event of probability below 1e-15 per draw).
+type RangeError struct {
+	Demand, Limit int64
+	Replication   int
+}
+
+func (e *RangeError) Error() string {
+	return fmt.Sprintf("replication %d drew a demand of %d units, beyond the %d that the exact int64 sums of this run can hold: run fewer periods", e.Replication, e.Demand, e.Limit)
+}
+
+// FlagMessage names the flag to change, as LimitError.FlagMessage does.
+func (e *RangeError) FlagMessage() string { return "--periods: " + e.Error() }
 
 // validate checks the options; errors name the option as the command-line
 // flag does.
@@ -88,38 +291,26 @@ func (o Options) validate() error {
 // opt.Workers: the same inputs give identical results on any number of
 // workers.
 func Run(sys inventory.System, p policies.Policy, opt Options) (*Result, error) {
-	if err := sys.Validate(); err != nil {
+	lim, err := prepare(sys, p, opt)
+	if err != nil {
 		return nil, err
-	}
-	if err := p.Validate(sys.Mode); err != nil {
-		return nil, fmt.Errorf("policy %v: %w", p, err)
-	}
-	if err := opt.validate(); err != nil {
-		return nil, err
-	}
-	if sys.LeadTime > MaxLeadTime {
-		return nil, &inventory.FieldError{Field: "lead_time", Value: fmt.Sprint(sys.LeadTime), Want: fmt.Sprintf("at most %d periods for the simulator", MaxLeadTime)}
 	}
 	level := opt.Level
 	if level == 0 {
 		level = DefaultLevel
 	}
-	workers := opt.Workers
-	if workers == 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
-	workers = min(workers, opt.Replications)
 
 	smp := newSampler(sys.Demand)
 	per := make([]inventory.Figures, opt.Replications)
+	bad := make([]*RangeError, opt.Replications)
 	next := make(chan int)
 	var wg sync.WaitGroup
-	for range workers {
+	for range lim.workers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			for r := range next {
-				per[r] = replicate(sys, p, smp, opt, r)
+				per[r], bad[r] = replicate(sys, p, smp, opt, r, lim.dmax)
 			}
 		}()
 	}
@@ -128,6 +319,11 @@ func Run(sys inventory.System, p policies.Policy, opt Options) (*Result, error) 
 	}
 	close(next)
 	wg.Wait()
+	for _, e := range bad { // the first in index order, whatever the workers
+		if e != nil {
+			return nil, e
+		}
+	}
 
 	res := &Result{
 		Level:          level,
@@ -141,7 +337,41 @@ func Run(sys inventory.System, p policies.Policy, opt Options) (*Result, error) 
 		TableTail:      smp.tail,
 	}
 	res.Mean, res.HalfWidth = aggregate(per, level)
+	if err := finite(sys, res); err != nil {
+		return nil, err
+	}
 	return res, nil
+}
+
+// finite refuses a result with an infinite figure or half-width (costs so
+// large that a figure overflows float64), naming the costs behind it. NaN
+// stays allowed only where a ratio figure is undefined.
+func finite(sys inventory.System, res *Result) error {
+	costs := []struct {
+		field string
+		v     float64
+	}{{"holding_cost", sys.Holding}, {"shortage_cost", sys.Shortage}, {"order_cost", sys.OrderCost}, {"unit_cost", sys.UnitCost}}
+	mf, hf := res.Mean.Fields(), res.HalfWidth.Fields()
+	for i, f := range mf {
+		if !math.IsInf(f.Value, 0) && !math.IsInf(hf[i].Value, 0) && !(math.IsNaN(f.Value) && i >= 7) {
+			continue
+		}
+		var names, vals []string
+		for j, c := range costs {
+			if c.v == 0 || (i >= 7 && i < 11 && j != i-7) {
+				continue
+			}
+			names = append(names, c.field)
+			vals = append(vals, strconv.FormatFloat(c.v, 'g', -1, 64))
+		}
+		if len(names) == 0 {
+			names, vals = []string{"demand"}, []string{sys.Demand.String()}
+		}
+		return &LimitError{Field: strings.Join(names, ", "), Value: strings.Join(vals, ", "),
+			Want: "costs whose figures stay below 1.8e308 (state them in larger money units)",
+			Size: f.Label + " overflows float64"}
+	}
+	return nil
 }
 
 // aggregate returns, figure by figure, the mean across replications and the
@@ -180,11 +410,23 @@ func interval(x []float64, level float64) (mean, half float64) {
 		sum += v
 	}
 	mean = sum / float64(n)
-	var ss float64
-	for _, v := range x {
-		ss += (v - mean) * (v - mean)
+	if math.IsInf(sum, 0) { // large figures: sum the shares instead
+		mean = 0
+		for _, v := range x {
+			mean += v / float64(n)
+		}
 	}
-	sd := math.Sqrt(ss / float64(n-1))
+	var ss, scale float64
+	for _, v := range x {
+		scale = math.Max(scale, math.Abs(v-mean))
+	}
+	if scale > 0 { // scaled so that squares of large figures do not overflow
+		for _, v := range x {
+			d := (v - mean) / scale
+			ss += d * d
+		}
+	}
+	sd := scale * math.Sqrt(ss/float64(n-1))
 	t := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(n - 1)}.Quantile(1 - (1-level)/2)
 	return mean, t * sd / math.Sqrt(float64(n))
 }
@@ -256,7 +498,8 @@ type state struct {
 }
 
 // replicate runs replication r: warm-up, then the counted periods.
-func replicate(sys inventory.System, p policies.Policy, smp *sampler, opt Options, r int) inventory.Figures {
+// A draw above dmax stops it with a *RangeError.
+func replicate(sys inventory.System, p policies.Policy, smp *sampler, opt Options, r int, dmax int64) (inventory.Figures, *RangeError) {
 	a, b := streamSeeds(opt.Seed, r)
 	rng := rand.NewPCG(a, b)
 	_, top := p.Levels()
@@ -266,14 +509,19 @@ func replicate(sys inventory.System, p policies.Policy, smp *sampler, opt Option
 	if sys.Mode == inventory.Lost {
 		step = stepLost
 	}
-	step(&st, &t, p, smp, rng, opt.Warmup)
+	if d := step(&st, &t, p, smp, rng, opt.Warmup, dmax); d > dmax {
+		return inventory.Figures{}, &RangeError{Demand: d, Limit: dmax, Replication: r}
+	}
 	t = tally{}
-	step(&st, &t, p, smp, rng, opt.Periods-opt.Warmup)
-	return t.figures(sys)
+	if d := step(&st, &t, p, smp, rng, opt.Periods-opt.Warmup, dmax); d > dmax {
+		return inventory.Figures{}, &RangeError{Demand: d, Limit: dmax, Replication: r}
+	}
+	return t.figures(sys), nil
 }
 
-// stepBackorder simulates n periods in backorder mode, adding to t.
-func stepBackorder(st *state, t *tally, p policies.Policy, smp *sampler, rng *rand.PCG, n int) {
+// stepBackorder simulates n periods in backorder mode, adding to t. It
+// stops at the first demand above dmax and returns it (0 when none).
+func stepBackorder(st *state, t *tally, p policies.Policy, smp *sampler, rng *rand.PCG, n int, dmax int64) (over int64) {
 	net, onOrder, pipe, w, r := st.net, st.onOrder, st.pipe, st.w, st.r
 	last := len(pipe) - 1
 	s := *t
@@ -294,6 +542,9 @@ func stepBackorder(st *state, t *tally, p policies.Policy, smp *sampler, rng *ra
 		}
 		// 3. Demand, served from the stock left after clearing backorders.
 		d := smp.draw(rng)
+		if d > dmax {
+			return d
+		}
 		s.demand += d
 		s.served += min(d, max(net, 0))
 		net -= d
@@ -305,10 +556,12 @@ func stepBackorder(st *state, t *tally, p policies.Policy, smp *sampler, rng *ra
 	s.periods += int64(n)
 	*t = s
 	st.net, st.onOrder, st.w, st.r = net, onOrder, w, r
+	return 0
 }
 
-// stepLost simulates n periods in lost mode, adding to t.
-func stepLost(st *state, t *tally, p policies.Policy, smp *sampler, rng *rand.PCG, n int) {
+// stepLost simulates n periods in lost mode, adding to t; it stops at a
+// demand above dmax as stepBackorder does.
+func stepLost(st *state, t *tally, p policies.Policy, smp *sampler, rng *rand.PCG, n int, dmax int64) (over int64) {
 	onHand, onOrder, pipe, w, r := st.net, st.onOrder, st.pipe, st.w, st.r
 	last := len(pipe) - 1
 	s := *t
@@ -329,6 +582,9 @@ func stepLost(st *state, t *tally, p policies.Policy, smp *sampler, rng *rand.PC
 		}
 		// 3. Demand; what stock cannot serve is lost.
 		d := smp.draw(rng)
+		if d > dmax {
+			return d
+		}
 		served := min(d, onHand)
 		lost := d - served
 		s.demand += d
@@ -342,4 +598,5 @@ func stepLost(st *state, t *tally, p policies.Policy, smp *sampler, rng *rand.PC
 	s.periods += int64(n)
 	*t = s
 	st.net, st.onOrder, st.w, st.r = onHand, onOrder, w, r
+	return 0
 }
