@@ -299,35 +299,57 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 	if err != nil {
 		return nil, fmt.Errorf("--results: %w", err)
 	}
-	rows, err := report.ReadResults(f, path)
+	res, err := report.ReadResultsFile(f, path)
 	f.Close()
 	if err != nil {
 		return nil, err
 	}
-	in := report.BatchInput{ResultsFile: path, Rows: rows, Targets: targets, Workers: c.Int("workers"), Version: version}
-	if p := c.String("items"); p != "" {
-		f, err := os.Open(p)
-		if err != nil {
-			return nil, fmt.Errorf("--items: %w", err)
+	meta := res.Meta
+	// The inputs must be those the results were planned from.
+	mismatch := func(flag, file, digest, key, want string) error {
+		return fmt.Errorf("--%s %s (digest %s) is not the %s file %s was planned from (%s=%s on its line 1): give that file, or run the batch again", flag, file, digest, flag, path, key, want)
+	}
+	period := c.String("period")
+	if meta != nil {
+		if c.IsSet("period") && period != meta.Period {
+			return nil, fmt.Errorf("--period %s contradicts %s, planned by the %s (period=%s on its line 1): give --period %s or leave it out", period, path, meta.Period, meta.Period, meta.Period)
 		}
-		items, err := batch.ReadItems(f, p, nil)
-		f.Close()
+		period = meta.Period
+	}
+	in := report.BatchInput{ResultsFile: path, Rows: res.Rows, Targets: targets, Workers: c.Int("workers"), Version: version}
+	if meta != nil {
+		in.Period = meta.Period
+	}
+	if p := c.String("items"); p != "" {
+		items, digest, err := readItemsFile(c.Context, p, batch.Shard{})
 		if err != nil {
 			return nil, err
+		}
+		if meta != nil && digest != meta.Items {
+			return nil, mismatch("items", p, digest, "items", meta.Items)
 		}
 		in.Items, in.ItemsFile = items, p
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: re-optimising %d items at %d fill-rate targets for the exchange curve\n", len(items), len(targets))
 	}
 	if p := c.String("history"); p != "" {
-		period, err := history.ParsePeriod(c.String("period"))
+		per, err := history.ParsePeriod(period)
 		if err != nil {
 			return nil, usageErr("--%v", err)
 		}
-		h, err := reportReadHistory(p, period)
+		h, digest, err := readHistoryFile(c.Context, p, per)
 		if err != nil {
 			return nil, err
 		}
+		if meta != nil && digest != meta.History {
+			if meta.History == "none" {
+				return nil, fmt.Errorf("--history %s: %s was planned without a history file (history=none on its line 1): leave --history out", p, path)
+			}
+			return nil, mismatch("history", p, digest, "history", meta.History)
+		}
 		in.History = h
+	}
+	if meta == nil && (c.IsSet("items") || c.IsSet("history") || c.IsSet("period")) {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: %s has no header record (an older ergostock wrote it): the items, history and period given are not checked against it\n", path)
 	}
 	return report.BuildBatch(in)
 }

@@ -86,7 +86,7 @@ func CreateAtomic(path string) (*AtomicFile, error) {
 		mode = fi.Mode().Perm()
 	}
 	if fi, err := os.Stat(dir); err != nil {
-		return nil, fmt.Errorf("directory %s: %w", dir, unwrapPath(err))
+		return nil, fmt.Errorf("cannot create a file in %s: %w", dir, unwrapPath(err))
 	} else if !fi.IsDir() {
 		return nil, fmt.Errorf("%s is not a directory", dir)
 	}
