@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime/debug"
 	"strings"
 
 	"ergostock/inventory"
@@ -60,7 +61,7 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	defer func() {
 		if v := recover(); v != nil {
 			row.Policy, row.Figures, row.CurrentTotalCost = nil, nil, nil
-			row.Err = &PanicError{Value: v}
+			row.Err = &PanicError{Value: v, Stack: debug.Stack()}
 		}
 		if row.Err != nil {
 			if te := timeoutOf(ctx); te != nil {
