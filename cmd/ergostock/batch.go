@@ -189,6 +189,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 
 	meta := batch.Meta{Format: batch.MetaFormat, Period: period.String(), History: "none",
 		MaxStates: c.Int("max-states"), Shard: shard, Version: version}
+	if shard.N == 0 {
+		meta.Shard = batch.Shard{K: 0, N: 1}
+	}
 	items, digest, err := readItemsFile(ctx, itemsPath, shard)
 	if e := interrupted(); e != nil {
 		return e
