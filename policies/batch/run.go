@@ -100,9 +100,9 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 		i int
 		v T
 	}
-	// Results is buffered for every index, so that a worker never blocks
-	// on a consumer that has returned.
-	results := make(chan result, n)
+	results := make(chan result, workers)
+	quit := make(chan struct{}) // closed when the consumer returns
+	defer close(quit)
 	var next atomic.Int64
 	var stop atomic.Bool
 	var wg sync.WaitGroup
@@ -160,7 +160,11 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 				if i >= n {
 					return
 				}
-				results <- result{i, one(i)}
+				select {
+				case results <- result{i, one(i)}:
+				case <-quit:
+					return
+				}
 			}
 		}()
 	}
@@ -187,7 +191,16 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 				delete(pending, want)
 				if err := emit(want, v); err != nil {
 					stop.Store(true)
-					<-finished
+					// Let the items in progress end (within their budget),
+					// dropping their results.
+				drain:
+					for {
+						select {
+						case <-results:
+						case <-finished:
+							break drain
+						}
+					}
 					return err
 				}
 				want++
