@@ -53,8 +53,9 @@ the run, removes the temporary file and exits 130 or 143. --out - writes
 the results to stdout instead (no temporary file).
 --shard K/N plans only the items at positions K, K+N, K+2N, ... (0-based),
 so that N runs, for instance the tasks of a cluster array job, split the
-catalogue; their parts concatenate (header once) into the full result, and
-the item column restores input order.
+catalogue; their parts share one run digest in the header record and join
+(header record and column header once) into the full result, the item
+column restoring input order.
 
 Exit status: 0 when every item was planned; 3 when the results file was
 written but some items failed; 1 when the run failed as a whole (an
