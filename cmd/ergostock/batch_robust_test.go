@@ -152,6 +152,9 @@ func TestBatchInterrupted(t *testing.T) {
 				if !errors.As(err, &ee) {
 					t.Fatalf("killed run: %v", err)
 				}
+				if b, _ := os.ReadFile(filepath.Join(dir, "results.csv")); string(b) != old {
+					t.Errorf("the killed run changed the previous results to %.60q", b)
+				}
 				// The next run sweeps what the killed one left.
 				next := exec.Command(bin, "batch", "--items", "quick.csv", "--out", "results.csv")
 				next.Dir = dir
