@@ -187,6 +187,45 @@ func TestRunDoesNotWaitForASlowItem(t *testing.T) {
 	}
 }
 
+// Items that ignore their deadline run on after it, but at most two per
+// worker at once: the goroutines of deaf items cannot pile up.
+func TestRunBoundsAbandonedItems(t *testing.T) {
+	var live, peak atomic.Int64
+	const workers = 1
+	err := Run(context.Background(), 8, RunOptions{Workers: workers, ItemTimeout: 20 * time.Millisecond},
+		func(_ context.Context, i int) int {
+			n := live.Add(1)
+			for {
+				p := peak.Load()
+				if n <= p || peak.CompareAndSwap(p, n) {
+					break
+				}
+			}
+			time.Sleep(150 * time.Millisecond) // deaf to its context
+			live.Add(-1)
+			return i
+		},
+		func(i int, err error) int {
+			var te *TimeoutError
+			if !errors.As(err, &te) {
+				t.Errorf("item %d: %v, want a *TimeoutError", i, err)
+			}
+			return -1
+		},
+		func(i, v int) error {
+			if v != -1 {
+				t.Errorf("item %d finished within 20 ms of a 150 ms sleep", i)
+			}
+			return nil
+		})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p := peak.Load(); p > 3*workers {
+		t.Errorf("%d items ran at once, want at most %d (the worker's and two abandoned)", p, 3*workers)
+	}
+}
+
 func TestRunCancelStopsWaiting(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	var emitted atomic.Int64

@@ -17,7 +17,9 @@ type RunOptions struct {
 	// gets this deadline, and when it passes Run stops waiting for the
 	// item and hands fail a *TimeoutError (the item's goroutine, which Go
 	// cannot stop, is left to notice its context and return; its result
-	// is dropped).
+	// is dropped). At most 2 x Workers such goroutines may run on at once;
+	// past that, a worker waits for one of them to end before it takes new
+	// work, so that items deaf to their context cannot exhaust memory.
 	ItemTimeout time.Duration
 }
 
@@ -106,11 +108,25 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 	var next atomic.Int64
 	var stop atomic.Bool
 	var wg sync.WaitGroup
+	// Items abandoned at their deadline whose goroutine still runs (a
+	// step that does not check its context): at most 2 x workers of them,
+	// so that such items cannot pile up and exhaust memory. A worker that
+	// would abandon one more waits for one of them to end.
+	abandoned := make(chan struct{}, 2*workers)
+	const (
+		running int32 = iota
+		completed
+		dropped
+	)
 	one := func(i int) T {
 		st := &itemState{limit: opt.ItemTimeout}
-		ictx, cancel := context.WithCancel(context.WithValue(ctx, itemKey{}, st))
+		base := context.WithValue(ctx, itemKey{}, st)
+		var ictx context.Context
+		var cancel context.CancelFunc
 		if opt.ItemTimeout > 0 {
-			ictx, cancel = context.WithTimeout(context.WithValue(ctx, itemKey{}, st), opt.ItemTimeout)
+			ictx, cancel = context.WithTimeout(base, opt.ItemTimeout)
+		} else {
+			ictx, cancel = context.WithCancel(base)
 		}
 		defer cancel()
 		type outcome struct {
@@ -118,7 +134,13 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 			err error
 		}
 		done := make(chan outcome, 1)
+		var state atomic.Int32
 		go func() {
+			defer func() {
+				if !state.CompareAndSwap(running, completed) {
+					<-abandoned // the worker gave up on us: free our slot
+				}
+			}()
 			defer func() {
 				if p := recover(); p != nil {
 					done <- outcome{err: &PanicError{Value: p, Stack: debug.Stack()}}
@@ -126,27 +148,29 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 			}()
 			done <- outcome{v: do(ictx, i)}
 		}()
-		select {
-		case o := <-done:
+		result := func(o outcome) T {
 			if o.err != nil {
 				return fail(i, o.err)
 			}
 			return o.v
-		case <-ictx.Done():
-			// A result that is ready beats the deadline.
-			select {
-			case o := <-done:
-				if o.err != nil {
-					return fail(i, o.err)
-				}
-				return o.v
-			default:
-			}
-			if te := timeoutOf(ictx); te != nil {
-				return fail(i, te)
-			}
-			return fail(i, ctx.Err())
 		}
+		select {
+		case o := <-done:
+			return result(o)
+		case <-ictx.Done():
+		}
+		if !state.CompareAndSwap(running, dropped) {
+			// It finished as the deadline passed: a result beats the deadline.
+			return result(<-done)
+		}
+		select {
+		case abandoned <- struct{}{}:
+		case <-ctx.Done():
+		}
+		if te := timeoutOf(ictx); te != nil {
+			return fail(i, te)
+		}
+		return fail(i, ctx.Err())
 	}
 	for range workers {
 		wg.Add(1)
