@@ -402,6 +402,11 @@ func TestBatchHeaderRecordAndReport(t *testing.T) {
 		if tt.code != 0 && strings.Count(stderr, "\n") != 1 {
 			t.Errorf("%s: stderr %q, want one line", tt.name, stderr)
 		}
+		if tt.code == 0 {
+			if b, _ := os.ReadFile(page); !strings.Contains(string(b), "Planned by the month; costs are per month.") {
+				t.Errorf("%s: the page does not name the period of the results", tt.name)
+			}
+		}
 	}
 }
 
