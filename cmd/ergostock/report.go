@@ -34,7 +34,10 @@ A batch: --results FILE (written by ergostock batch) gives the table of
 items, the saving by demand pattern, and the warnings and errors; with
 --items FILE (the batch's items file) also the exchange curve, which
 re-optimises every item under common fill-rate targets (--targets); with
---history also the map of demand patterns.
+--history also the map of demand patterns. The --items, --history and
+--period given must be those in the header record of the results (the
+line batch writes first); a mismatch is refused, naming both. Without
+--period the record's period is used.
 
 Exit status: 0 when the page was written; 1 when an input cannot be used
 (nothing is written); 2 for a usage error.`
