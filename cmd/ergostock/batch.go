@@ -1,11 +1,15 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
 	"runtime"
+	"sync/atomic"
+	"syscall"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -31,31 +35,48 @@ current_reorder_point, current_order_up_to, current_order_multiple
 (current_order_up_to alone: base-stock; with current_reorder_point: s-S;
 current_reorder_point with current_order_multiple: s-nQ).
 
-The results file is written to a temporary file beside it and renamed into
-place at the end, so a failed run leaves an existing file as it was.
+Each item has a budget, --item-timeout (default 1m0s; 0 means none): an item
+that runs past it fails with that reason and the run goes on. A panic, a
+refused size or a figure that overflows (NaN, infinite or negative) fails
+only its item, too.
+
+The results file starts with a header record, a comment line such as
+  # ergostock results v2; period=week; run=...; items=...; history=...; ...
+with the planning period and digests of the items file, the history and the
+options, which ergostock report checks. Text cells starting with = + - @
+get a leading ' so that a spreadsheet does not run them as formulas.
+The file is written to .NAME.ergostock-tmp-PID beside it and renamed into
+place at the end, under a lock (.NAME.ergostock-lock), so a failed run
+leaves an existing file as it was and two runs cannot write one file at
+once; a later run removes what a killed run left. SIGINT or SIGTERM stops
+the run, removes the temporary file and exits 130 or 143. --out - writes
+the results to stdout instead (no temporary file).
 --shard K/N plans only the items at positions K, K+N, K+2N, ... (0-based),
 so that N runs, for instance the tasks of a cluster array job, split the
-catalogue; their parts concatenate (header once) into the full result, and
-the item column restores input order.
+catalogue; their parts share one run digest in the header record and join
+(header record and column header once) into the full result, the item
+column restoring input order.
 
 Exit status: 0 when every item was planned; 3 when the results file was
 written but some items failed; 1 when the run failed as a whole (an
-unreadable file, a missing column, a write error) and nothing was written;
-2 for a usage error.`
+unreadable file, a missing column, a write error, --out busy or not
+writable) and nothing was written; 2 for a usage error; 130 (SIGINT) or 143
+(SIGTERM) when the run was interrupted and nothing was written.`
 
 func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N]",
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D]",
 		Description: batchDescription,
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
-			&cli.StringFlag{Name: "out", Usage: "results file (CSV) to write", Required: true},
+			&cli.StringFlag{Name: "out", Usage: "results file (CSV) to write; - writes the results to stdout", Required: true},
 			&cli.StringFlag{Name: "period", Usage: "review period the history is summed into: day, week (ISO, Monday first) or month", Value: "week"},
 			&cli.IntFlag{Name: "workers", Usage: "items planned at once", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
+			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
 		},
 		Action: func(c *cli.Context) error {
@@ -96,6 +117,10 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if c.Int("max-states") < 1 {
 		return usageErr("--max-states %d: want a state count >= 1", c.Int("max-states"))
 	}
+	timeout := c.Duration("item-timeout")
+	if timeout < 0 {
+		return usageErr("--item-timeout %v: want a duration >= 0 (0 for no limit), e.g. 90s or 5m", timeout)
+	}
 	var shard batch.Shard
 	if c.IsSet("shard") {
 		s, err := batch.ParseShard(c.String("shard"))
@@ -109,22 +134,83 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return usageErr("--%v", err)
 	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
+	toStdout := outPath == "-"
 	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}} {
-		if in.path != "" && sameFile(in.path, outPath) {
+		if in.path != "" && !toStdout && sameFile(in.path, outPath) {
 			return usageErr("--out %s: it is the --%s file; choose another results file", outPath, in.flag)
 		}
 	}
 
-	items, err := readItemsFile(itemsPath, shard)
+	// An interrupt cancels the run: the items in progress get a done
+	// context, the temporary file is removed, and the exit status says
+	// which signal came (128 + its number, as a shell reports it). A
+	// second signal of the same kind kills the process at once.
+	ctx, cancel := context.WithCancel(c.Context)
+	defer cancel()
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
+	defer signal.Stop(sigs)
+	var got atomic.Value // the signal that interrupted the run
+	go func() {
+		select {
+		case s := <-sigs:
+			got.Store(s)
+			signal.Stop(sigs)
+			cancel()
+		case <-ctx.Done():
+		}
+	}()
+	interrupted := func() error {
+		s, _ := got.Load().(os.Signal)
+		if s == nil {
+			return nil
+		}
+		code, name := 130, "SIGINT"
+		if s == syscall.SIGTERM {
+			code, name = 143, "SIGTERM"
+		}
+		what := "--out " + outPath + " left as it was"
+		if toStdout {
+			what = "the results on stdout are incomplete"
+		}
+		return &exitError{code: code, err: fmt.Errorf("batch interrupted by %s: %s", name, what)}
+	}
+
+	// The results file is checked and locked before any work.
+	var out io.Writer = c.App.Writer
+	var af *batch.AtomicFile
+	if !toStdout {
+		af, err = batch.CreateAtomic(outPath)
+		if err != nil {
+			return fmt.Errorf("--out %s: %w", outPath, err)
+		}
+		defer af.Abort()
+		out = af
+	}
+
+	meta := batch.Meta{Format: batch.MetaFormat, Period: period.String(), History: "none",
+		MaxStates: c.Int("max-states"), Shard: shard, Version: version}
+	if shard.N == 0 {
+		meta.Shard = batch.Shard{K: 0, N: 1}
+	}
+	items, digest, err := readItemsFile(ctx, itemsPath, shard)
+	if e := interrupted(); e != nil {
+		return e
+	}
 	if err != nil {
 		return err
 	}
+	meta.Items = digest
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
-		h, err := readHistoryFile(histPath, period)
+		h, digest, err := readHistoryFile(ctx, histPath, period)
+		if e := interrupted(); e != nil {
+			return e
+		}
 		if err != nil {
 			return err
 		}
+		meta.History = digest
 		if n := len(h.Errors); n > 0 {
 			fmt.Fprintf(stderr, "ergostock: %s: %d rows without a sku skipped, first %v\n", histPath, n, h.Errors[0])
 		}
@@ -138,6 +224,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			return nil, errors.New("no demand column and no --history file")
 		}
 	}
+	meta.Run = meta.RunDigest()
 
 	var bar *progressbar.ProgressBar
 	if isTerminal(stderr) && len(items) > 0 {
@@ -153,32 +240,41 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		)
 	}
 	var sum batchSummary
-	err = batch.WriteFileAtomic(outPath, func(w io.Writer) error {
-		bw := batch.NewWriter(w)
-		if err := bw.WriteHeader(); err != nil {
-			return err
-		}
-		err := batch.Run(len(items), workers,
-			func(i int) batch.Row { return planner.Plan(items[i]) },
-			func(i int, r batch.Row) error {
-				sum.add(&r)
+	bw := batch.NewWriter(out)
+	err = bw.WriteMeta(meta)
+	if err == nil {
+		err = bw.WriteHeader()
+	}
+	if err == nil {
+		err = planner.PlanAll(ctx, items, batch.RunOptions{Workers: workers, ItemTimeout: timeout},
+			func(r *batch.Row) error {
+				sum.add(r)
 				if bar != nil {
 					bar.Add(1)
 				}
-				return bw.Write(&r)
+				return bw.Write(r)
 			})
-		if err != nil {
-			return err
-		}
-		return bw.Flush()
-	})
+	}
+	if err == nil {
+		err = bw.Flush()
+	}
 	if bar != nil {
 		bar.Finish()
+	}
+	if e := interrupted(); e != nil {
+		return e
+	}
+	if err == nil && af != nil {
+		err = af.Commit()
 	}
 	if err != nil {
 		return fmt.Errorf("--out %s: %w", outPath, err)
 	}
-	msg := sum.String() + "; results in " + outPath
+	where := "results in " + outPath
+	if toStdout {
+		where = "results on stdout"
+	}
+	msg := sum.String() + "; " + where
 	if sum.failed > 0 {
 		return &exitError{code: 3, err: errors.New(msg)}
 	}
@@ -186,22 +282,52 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	return nil
 }
 
-func readItemsFile(path string, shard batch.Shard) ([]batch.Item, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("--items: %w", err)
-	}
-	defer f.Close()
-	return batch.ReadItems(f, path, shard.Contains)
+// ctxReader fails its reads once ctx is done, so that an interrupt stops
+// the reading of a large input.
+type ctxReader struct {
+	ctx context.Context
+	r   io.Reader
 }
 
-func readHistoryFile(path string, p history.Period) (*history.History, error) {
+func (r ctxReader) Read(p []byte) (int, error) {
+	if err := r.ctx.Err(); err != nil {
+		return 0, err
+	}
+	return r.r.Read(p)
+}
+
+// readDigested opens path, hands read a reader of its bytes, and returns
+// the digest of the whole file (for the results' header record).
+func readDigested(ctx context.Context, flag, path string, read func(io.Reader) error) (string, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("--history: %w", err)
+		return "", fmt.Errorf("--%s: %w", flag, err)
 	}
 	defer f.Close()
-	return history.Read(f, path, p)
+	h := batch.NewDigest()
+	if err := read(io.TeeReader(ctxReader{ctx, f}, h)); err != nil {
+		return "", err
+	}
+	if _, err := io.Copy(h, ctxReader{ctx, f}); err != nil {
+		return "", fmt.Errorf("--%s %s: %w", flag, path, err)
+	}
+	return batch.DigestSum(h), nil
+}
+
+func readItemsFile(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, digest string, err error) {
+	digest, err = readDigested(ctx, "items", path, func(r io.Reader) (err error) {
+		items, err = batch.ReadItems(r, path, shard.Contains)
+		return err
+	})
+	return items, digest, err
+}
+
+func readHistoryFile(ctx context.Context, path string, p history.Period) (h *history.History, digest string, err error) {
+	digest, err = readDigested(ctx, "history", path, func(r io.Reader) (err error) {
+		h, err = history.Read(r, path, p)
+		return err
+	})
+	return h, digest, err
 }
 
 // sameFile reports whether the paths name one existing file.

@@ -11,6 +11,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"ergostock/policies/batch"
 )
 
 // The fixtures in testdata/batch are plumbing: a small invented history of
@@ -42,6 +44,10 @@ func readResults(t *testing.T, path string) ([]string, [][]string) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	if !bytes.HasPrefix(b, []byte(batch.MetaPrefix)) {
+		t.Fatalf("%s: no header record: starts %.40q", path, b)
+	}
+	b = b[bytes.IndexByte(b, '\n')+1:]
 	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
 	if err != nil {
 		t.Fatalf("%s: %v", path, err)

@@ -34,7 +34,10 @@ A batch: --results FILE (written by ergostock batch) gives the table of
 items, the saving by demand pattern, and the warnings and errors; with
 --items FILE (the batch's items file) also the exchange curve, which
 re-optimises every item under common fill-rate targets (--targets); with
---history also the map of demand patterns.
+--history also the map of demand patterns. The --items, --history and
+--period given must be those in the header record of the results (the
+line batch writes first); a mismatch is refused, naming both. Without
+--period the record's period is used.
 
 Exit status: 0 when the page was written; 1 when an input cannot be used
 (nothing is written); 2 for a usage error.`
@@ -299,35 +302,56 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 	if err != nil {
 		return nil, fmt.Errorf("--results: %w", err)
 	}
-	rows, err := report.ReadResults(f, path)
+	res, err := report.ReadResultsFile(f, path)
 	f.Close()
 	if err != nil {
 		return nil, err
 	}
-	in := report.BatchInput{ResultsFile: path, Rows: rows, Targets: targets, Workers: c.Int("workers"), Version: version}
-	if p := c.String("items"); p != "" {
-		f, err := os.Open(p)
-		if err != nil {
-			return nil, fmt.Errorf("--items: %w", err)
+	meta := res.Meta
+	// The inputs must be those the results were planned from.
+	mismatch := func(flag, file, digest, key, want string) error {
+		return fmt.Errorf("--%s %s (digest %s) is not the %s file %s was planned from (%s=%s on its line 1): give that file, or run the batch again", flag, file, digest, flag, path, key, want)
+	}
+	period := c.String("period")
+	if meta != nil {
+		if c.IsSet("period") && period != meta.Period {
+			return nil, fmt.Errorf("--period %s contradicts %s, planned by the %s (period=%s on its line 1): give --period %s or leave it out", period, path, meta.Period, meta.Period, meta.Period)
 		}
-		items, err := batch.ReadItems(f, p, nil)
-		f.Close()
+		period = meta.Period
+	}
+	in := report.BatchInput{ResultsFile: path, Rows: res.Rows, Targets: targets, Workers: c.Int("workers"), Version: version}
+	if meta != nil {
+		in.Period = meta.Period
+	}
+	if p := c.String("items"); p != "" {
+		items, digest, err := readItemsFile(c.Context, p, batch.Shard{})
 		if err != nil {
 			return nil, err
+		}
+		if meta != nil && digest != meta.Items {
+			return nil, mismatch("items", p, digest, "items", meta.Items)
 		}
 		in.Items, in.ItemsFile = items, p
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: re-optimising %d items at %d fill-rate targets for the exchange curve\n", len(items), len(targets))
 	}
 	if p := c.String("history"); p != "" {
-		period, err := history.ParsePeriod(c.String("period"))
+		per, err := history.ParsePeriod(period)
 		if err != nil {
 			return nil, usageErr("--%v", err)
 		}
-		h, err := reportReadHistory(p, period)
+		h, digest, err := readHistoryFile(c.Context, p, per)
 		if err != nil {
 			return nil, err
 		}
+		// A batch planned from demand columns alone (history=none) has no
+		// history to contradict; the page may still show its patterns.
+		if meta != nil && meta.History != "none" && digest != meta.History {
+			return nil, mismatch("history", p, digest, "history", meta.History)
+		}
 		in.History = h
+	}
+	if meta == nil && (c.IsSet("items") || c.IsSet("history") || c.IsSet("period")) {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: %s has no header record (an older ergostock wrote it): the items, history and period given are not checked against it\n", path)
 	}
 	return report.BuildBatch(in)
 }

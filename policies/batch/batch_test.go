@@ -2,6 +2,7 @@ package batch
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -86,6 +87,8 @@ func fakeFit(demand map[string]int) func(string) (*Fitted, error) {
 		return &Fitted{Demand: pointMass(d), Pattern: "smooth"}, nil
 	}
 }
+
+func failInt(i int, err error) int { panic(fmt.Sprintf("item %d failed: %v", i, err)) }
 
 func readItems(t *testing.T, text string) []Item {
 	t.Helper()
@@ -252,7 +255,7 @@ func TestRunOrder(t *testing.T) {
 	const n = 1000
 	for _, workers := range []int{1, 2, 7, 64, 2000} {
 		var got []int
-		err := Run(n, workers, func(i int) int {
+		err := Run(context.Background(), n, RunOptions{Workers: workers}, func(_ context.Context, i int) int {
 			// Uneven work, so that results finish out of order.
 			s := 0
 			for j := range (i * 7919) % 5000 {
@@ -260,7 +263,7 @@ func TestRunOrder(t *testing.T) {
 			}
 			_ = s
 			return i * i
-		}, func(i int, v int) error {
+		}, failInt, func(i int, v int) error {
 			if v != i*i {
 				return fmt.Errorf("result %d for index %d", v, i)
 			}
@@ -281,7 +284,7 @@ func TestRunOrder(t *testing.T) {
 	}
 	stop := errors.New("disk full")
 	calls := 0
-	err := Run(10000, 4, func(i int) int { return i }, func(i, v int) error {
+	err := Run(context.Background(), 10000, RunOptions{Workers: 4}, func(_ context.Context, i int) int { return i }, failInt, func(i, v int) error {
 		calls++
 		if i == 10 {
 			return stop
@@ -313,7 +316,7 @@ func TestPlanAndWrite(t *testing.T) {
 	if err := w.WriteHeader(); err != nil {
 		t.Fatal(err)
 	}
-	err := Run(len(items), 3, func(i int) Row { return pl.Plan(items[i]) }, func(i int, r Row) error { return w.Write(&r) })
+	err := pl.PlanAll(context.Background(), items, RunOptions{Workers: 3}, w.Write)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -2,6 +2,7 @@ package batch
 
 import (
 	"bufio"
+	"context"
 	"fmt"
 	"io"
 	"math"
@@ -144,11 +145,11 @@ func runFiles(tb testing.TB, itemsPath, histPath, outPath string, workers int, p
 		if err := bw.WriteHeader(); err != nil {
 			return err
 		}
-		if err := Run(len(items), workers, func(i int) Row { return pl.Plan(items[i]) }, func(i int, r Row) error {
+		if err := pl.PlanAll(context.Background(), items, RunOptions{Workers: workers}, func(r *Row) error {
 			if r.Err != nil {
 				failed++
 			}
-			return bw.Write(&r)
+			return bw.Write(r)
 		}); err != nil {
 			return err
 		}

@@ -47,7 +47,10 @@
 //
 // # Results file
 //
-// One row per item, in the order of the items file, under the header given
+// The first line is the header record (see Meta): a comment line starting
+// "# ergostock results v2; " with the planning period, digests of the items
+// and history files and the run digest. Then the CSV header and one row per
+// item, in the order of the items file, under the header given
 // by Header: sku, demand (the model as a text-grammar string), demand_mean,
 // demand_variance (the moments of that model), pattern (of the history, by
 // the cut-offs of Syntetos, Boylan and Croston, 2005), policy,
@@ -64,5 +67,17 @@
 // demand columns, pattern and warnings are kept where they were known
 // before the failure. Numbers are printed by strconv.FormatFloat with
 // format 'g' and the shortest precision that reads back to the same
-// float64, so the file loses nothing.
+// float64, so the file loses nothing. Text cells pass through Guard: line
+// breaks are folded, and a cell starting with =, +, -, @ or a tab (or a
+// single quote) gets a leading single quote so that a spreadsheet does not
+// run it as a formula; Unguard drops it when reading.
+//
+// # Running a catalogue
+//
+// Planner.PlanAll plans the items over Run: each item in its own goroutine
+// with a budget (RunOptions.ItemTimeout, passed to the engine through
+// policies.Options.Context); a panic, a timeout, an error or a figure that
+// is not finite fails only that item. CreateAtomic opens the results file
+// under a lock and a temporary name, so that a failed or interrupted run
+// leaves nothing and an existing file as it was.
 package batch

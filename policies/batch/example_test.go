@@ -1,6 +1,7 @@
 package batch_test
 
 import (
+	"context"
 	"fmt"
 	"strings"
 
@@ -56,10 +57,13 @@ func ExampleShard() {
 // Run hands results to emit in index order whatever the number of workers.
 func ExampleRun() {
 	var got []int
-	batch.Run(6, 4, func(i int) int { return i * i }, func(i, v int) error {
-		got = append(got, v)
-		return nil
-	})
+	batch.Run(context.Background(), 6, batch.RunOptions{Workers: 4},
+		func(_ context.Context, i int) int { return i * i },
+		func(i int, err error) int { return -1 }, // a panic or a timeout of item i
+		func(i, v int) error {
+			got = append(got, v)
+			return nil
+		})
 	fmt.Println(got)
 	// Output:
 	// [0 1 4 9 16 25]

@@ -1,8 +1,12 @@
 package batch
 
 import (
+	"context"
 	"errors"
 	"fmt"
+	"math"
+	"runtime/debug"
+	"strings"
 
 	"ergostock/inventory"
 	"ergostock/policies"
@@ -42,22 +46,46 @@ func DefaultKind(sys inventory.System) policies.Kind {
 	return policies.BaseStock
 }
 
-// Plan plans one item. It never panics: a failure of any step, including
-// a panic of a step, is the row's Err, and the other items are unaffected.
-func (p *Planner) Plan(it Item) (row Row) {
+// Plan plans one item with no deadline; see PlanContext.
+func (p *Planner) Plan(it Item) Row { return p.PlanContext(context.Background(), it) }
+
+// PlanContext plans one item. It never panics: a failure of any step,
+// including a panic of a step, is the row's Err, and the other items are
+// unaffected. ctx bounds the work (it is passed to the engine as
+// policies.Options.Context); when ctx is an item context of Run whose
+// deadline passed, the row's Err is a *TimeoutError naming the step.
+// A row whose figures are not finite and non-negative (an overflow) fails
+// too, with the first such figure named.
+func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	row = Row{Item: it.Index, SKU: it.SKU}
 	defer func() {
 		if v := recover(); v != nil {
 			row.Policy, row.Figures, row.CurrentTotalCost = nil, nil, nil
-			row.Err = fmt.Errorf("internal error: %v", v)
+			row.Err = &PanicError{Value: v, Stack: debug.Stack()}
+		}
+		if row.Err != nil {
+			if te := timeoutOf(ctx); te != nil {
+				row.Policy, row.Figures, row.CurrentTotalCost = nil, nil, nil
+				row.Err = te
+			}
+			return
+		}
+		if err := row.checkFinite(); err != nil {
+			row.Policy, row.Figures, row.CurrentTotalCost = nil, nil, nil
+			row.Err = err
 		}
 	}()
 	if it.Err != nil {
 		row.Err = it.Err
 		return row
 	}
+	if strings.ContainsAny(it.SKU, "\r\n") {
+		row.Err = fmt.Errorf("sku %q: want a SKU without line breaks", it.SKU)
+		return row
+	}
 	sys := it.System
 	if sys.Demand != nil && p.Pattern != nil {
+		SetStage(ctx, "reading the demand pattern")
 		row.Pattern = p.Pattern(it.SKU)
 	}
 	if sys.Demand == nil {
@@ -65,6 +93,7 @@ func (p *Planner) Plan(it Item) (row Row) {
 			row.Err = errors.New("no demand column and no history")
 			return row
 		}
+		SetStage(ctx, "fitting the demand history")
 		f, err := p.Fit(it.SKU)
 		if err != nil {
 			row.Err = err
@@ -92,6 +121,8 @@ func (p *Planner) Plan(it Item) (row Row) {
 		row.Err = err
 		return row
 	}
+	opt := p.Options
+	opt.Context = ctx
 
 	kind := it.Kind
 	if kind == "" {
@@ -104,14 +135,16 @@ func (p *Planner) Plan(it Item) (row Row) {
 	if evaluate == nil {
 		evaluate = policies.Evaluate
 	}
-	best, err := optimize(sys, kind, policies.SearchOptions{MinFillRate: it.MinFillRate, Eval: p.Options})
+	SetStage(ctx, "optimizing "+string(kind))
+	best, err := optimize(sys, kind, policies.SearchOptions{MinFillRate: it.MinFillRate, Eval: opt})
 	if err != nil {
 		row.Err = fmt.Errorf("optimize %s: %w", kind, err)
 		return row
 	}
 	var cur *policies.Evaluation
 	if it.Current != nil {
-		cur, err = evaluate(sys, *it.Current, p.Options)
+		SetStage(ctx, fmt.Sprintf("evaluating the current policy %v", *it.Current))
+		cur, err = evaluate(sys, *it.Current, opt)
 		if err != nil {
 			row.Err = fmt.Errorf("current policy %v: %w", *it.Current, err)
 			return row
@@ -134,4 +167,64 @@ func (p *Planner) Plan(it Item) (row Row) {
 		}
 	}
 	return row
+}
+
+// checkFinite returns an error naming the first number of a planned row
+// that is not finite or is negative: such a figure comes from inputs too
+// large for double precision, and must not reach the results as a figure.
+func (r *Row) checkFinite() error {
+	bad := func(name string, v float64) error {
+		if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+			return fmt.Errorf("%s %v: want a finite figure >= 0 (the item's costs or demand are too large for double precision)", name, v)
+		}
+		return nil
+	}
+	if r.Demand != "" {
+		if err := bad("demand_mean", r.DemandMean); err != nil {
+			return err
+		}
+		if err := bad("demand_variance", r.DemandVariance); err != nil {
+			return err
+		}
+	}
+	if r.Figures != nil {
+		for _, f := range r.Figures.Fields() {
+			if err := bad(f.Name, f.Value); err != nil {
+				return err
+			}
+		}
+	}
+	if r.CurrentTotalCost != nil {
+		if err := bad("current_total_cost", *r.CurrentTotalCost); err != nil {
+			return err
+		}
+		if v, ok := r.Saving(); ok && (math.IsNaN(v) || math.IsInf(v, 0)) {
+			return fmt.Errorf("saving %v: want a finite figure (the item's costs are too large for double precision)", v)
+		}
+	}
+	for _, d := range []struct {
+		name string
+		v    float64
+	}{{"residual", r.Residual}, {"balance", r.Balance}, {"neglected", r.Neglected}} {
+		if err := bad(d.name, d.v); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// FailedRow is the row of an item that failed with err before or outside
+// its plan (a timeout, a panic caught by Run).
+func FailedRow(it Item, err error) Row {
+	return Row{Item: it.Index, SKU: it.SKU, Err: err}
+}
+
+// PlanAll plans items with Run: each item gets the budget opt.ItemTimeout,
+// a panic or a timeout becomes the item's error, and emit gets the rows in
+// the order of items.
+func (p *Planner) PlanAll(ctx context.Context, items []Item, opt RunOptions, emit func(r *Row) error) error {
+	return Run(ctx, len(items), opt,
+		func(ctx context.Context, i int) Row { return p.PlanContext(ctx, items[i]) },
+		func(i int, err error) Row { return FailedRow(items[i], err) },
+		func(i int, r Row) error { return emit(&r) })
 }

@@ -60,13 +60,26 @@ func Header() []string {
 
 // Writer writes the results file as CSV.
 type Writer struct {
+	out io.Writer
 	w   *csv.Writer
 	rec []string
 }
 
-// NewWriter returns a Writer on w; call WriteHeader first and Flush last.
+// NewWriter returns a Writer on w; call WriteMeta (optional) and
+// WriteHeader first, and Flush last.
 func NewWriter(w io.Writer) *Writer {
-	return &Writer{w: csv.NewWriter(w)}
+	return &Writer{out: w, w: csv.NewWriter(w)}
+}
+
+// WriteMeta writes the header record, the comment line that says what the
+// results were computed from (see Meta). Call it before WriteHeader.
+func (w *Writer) WriteMeta(m Meta) error {
+	w.w.Flush()
+	if err := w.w.Error(); err != nil {
+		return err
+	}
+	_, err := io.WriteString(w.out, m.String()+"\n")
+	return err
 }
 
 // WriteHeader writes the header line.
@@ -89,13 +102,13 @@ func formatFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) 
 
 // appendRecord appends the row's cells, in the order of Header.
 func (r *Row) appendRecord(rec []string) []string {
-	rec = append(rec, r.SKU, r.Demand)
+	rec = append(rec, Guard(r.SKU), Guard(r.Demand))
 	if r.Demand != "" {
 		rec = append(rec, formatFloat(r.DemandMean), formatFloat(r.DemandVariance))
 	} else {
 		rec = append(rec, "", "")
 	}
-	rec = append(rec, r.Pattern)
+	rec = append(rec, Guard(r.Pattern))
 	ok := r.Err == nil && r.Policy != nil && r.Figures != nil
 	if ok {
 		p := r.Policy
@@ -127,9 +140,9 @@ func (r *Row) appendRecord(rec []string) []string {
 	}
 	errText := ""
 	if r.Err != nil {
-		errText = oneLine(r.Err.Error())
+		errText = r.Err.Error()
 	}
-	rec = append(rec, cur, saving, oneLine(strings.Join(r.Warnings, "; ")), errText)
+	rec = append(rec, cur, saving, Guard(strings.Join(r.Warnings, "; ")), Guard(errText))
 	if ok {
 		rec = append(rec, strconv.Itoa(r.States), formatFloat(r.Residual), formatFloat(r.Balance),
 			formatFloat(r.Neglected), strconv.Itoa(r.Evaluated))
@@ -147,3 +160,26 @@ func oneLine(s string) string {
 	}
 	return strings.NewReplacer("\r\n", " ", "\n", " ", "\r", " ").Replace(s)
 }
+
+// Guard makes a text cell safe for the results file: line breaks are
+// folded into spaces (every row is one line of text), and a cell that a
+// spreadsheet would run as a formula, one starting with =, +, - or @ (or a
+// tab), gets a leading single quote, the usual guard against CSV
+// injection (common practice, as recommended by OWASP). A cell that starts
+// with a single quote gets one more, so that Unguard restores every cell
+// exactly. Numeric cells are never guarded: -3 stays a number.
+func Guard(s string) string {
+	s = oneLine(s)
+	if s == "" {
+		return s
+	}
+	switch s[0] {
+	case '=', '+', '-', '@', '\t', '\'':
+		return "'" + s
+	}
+	return s
+}
+
+// Unguard undoes Guard on a text cell read from a results file: it drops
+// one leading single quote.
+func Unguard(s string) string { return strings.TrimPrefix(s, "'") }

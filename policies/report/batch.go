@@ -29,6 +29,9 @@ const (
 type BatchInput struct {
 	ResultsFile string
 	Rows        []ResultRow
+	// Period is the planning period of the results (day, week or month),
+	// "" when the results file does not say.
+	Period string
 	// ItemsFile and Items, when given, let the page re-optimise every
 	// item under common fill-rate targets for the exchange curve.
 	ItemsFile string

@@ -130,11 +130,19 @@ func (pg *BatchPage) view() batchView {
 	if in.History != nil {
 		v.SubTitle += " and the history of " + in.History.File
 	}
-	v.SubTitle += ". Costs are per review period."
+	if in.Period != "" {
+		v.SubTitle += ". Planned by the " + in.Period + "; costs are per " + in.Period + "."
+	} else {
+		v.SubTitle += ". Costs are per review period."
+	}
 	var done, failed, withCur int
 	var cost, curCost, saving, demand, served float64
 	for _, r := range in.Rows {
-		row := itemRow{SKU: r.SKU, Pattern: r.Pattern, Warnings: len(r.Warnings)}
+		sku := r.SKU
+		if sku == "" {
+			sku = fmt.Sprintf("(no SKU, line %d)", r.Line)
+		}
+		row := itemRow{SKU: sku, Pattern: r.Pattern, Warnings: len(r.Warnings)}
 		if r.Demand != "" {
 			row.Mean = cell{strconv.FormatFloat(r.DemandMean, 'g', 4, 64), fkey(r.DemandMean)}
 		}
@@ -142,7 +150,7 @@ func (pg *BatchPage) view() batchView {
 			failed++
 			row.Failed = true
 			row.Policy = "failed"
-			v.Errors = append(v.Errors, skuMessage{r.SKU, r.Err})
+			v.Errors = append(v.Errors, skuMessage{sku, r.Err})
 		} else {
 			done++
 			f := r.Figures

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"bufio"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -11,6 +12,7 @@ import (
 
 	"ergostock/inventory"
 	"ergostock/policies"
+	"ergostock/policies/batch"
 )
 
 // ResultRow is one line of the results file of `ergostock batch`.
@@ -47,13 +49,50 @@ func figureNames() []string {
 // not a results file of `ergostock batch`.
 var ErrNotResults = errors.New("not a results file of ergostock batch")
 
-// ReadResults reads the results file of `ergostock batch` from r; name is
-// the file name used in errors. Columns are found by their header names
-// (extra columns are ignored). A missing column, an unreadable number or
-// policy, or an empty file is an error naming the file, the line and the
-// column, in the style of encoding/csv's ParseError.
+// Results is a results file of `ergostock batch`.
+type Results struct {
+	// Meta is the header record (planning period, digests of the inputs);
+	// nil for a file written before there was one (format v1).
+	Meta *batch.Meta
+	Rows []ResultRow
+}
+
+// ReadResults reads the rows of a results file; see ReadResultsFile.
 func ReadResults(r io.Reader, name string) ([]ResultRow, error) {
-	cr := csv.NewReader(r)
+	res, err := ReadResultsFile(r, name)
+	if err != nil {
+		return nil, err
+	}
+	return res.Rows, nil
+}
+
+// ReadResultsFile reads the results file of `ergostock batch` from r; name
+// is the file name used in errors. A first line starting with "#" is the
+// header record (batch.Meta). Columns are found by their header names
+// (extra columns are ignored). Text cells are read back through
+// batch.Unguard. A missing column, an unreadable number or policy, or an
+// empty file is an error naming the file, the line and the column, in the
+// style of encoding/csv's ParseError. Every file batch writes is read,
+// including rows of items without a SKU (they failed).
+func ReadResultsFile(r io.Reader, name string) (*Results, error) {
+	br := bufio.NewReader(r)
+	if b, err := br.Peek(3); err == nil && string(b) == "\ufeff" {
+		br.Discard(3)
+	}
+	res := &Results{}
+	offset := 0 // lines before the CSV header
+	if b, err := br.Peek(1); err == nil && b[0] == '#' {
+		line, err := br.ReadString('\n')
+		if err != nil && err != io.EOF {
+			return nil, fmt.Errorf("%s: %w", name, err)
+		}
+		m, err := batch.ParseMeta(line, name, 1)
+		if err != nil {
+			return nil, err
+		}
+		res.Meta, offset = m, 1
+	}
+	cr := csv.NewReader(br)
 	cr.FieldsPerRecord = -1
 	header, err := cr.Read()
 	if err == io.EOF {
@@ -84,7 +123,7 @@ func ReadResults(r io.Reader, name string) ([]ResultRow, error) {
 		if len(missing) > 1 {
 			noun = "columns"
 		}
-		return nil, fmt.Errorf("%s:1: missing %s %s: %w (want its header: sku, demand, ..., error)", name, noun, list, ErrNotResults)
+		return nil, fmt.Errorf("%s:%d: missing %s %s: %w (want its header: sku, demand, ..., error)", name, 1+offset, noun, list, ErrNotResults)
 	}
 	var rows []ResultRow
 	for {
@@ -93,15 +132,22 @@ func ReadResults(r io.Reader, name string) ([]ResultRow, error) {
 			break
 		}
 		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				pe.StartLine += offset
+				pe.Line += offset
+			}
 			return nil, fmt.Errorf("%s: %w", name, err)
 		}
 		line, _ := cr.FieldPos(0)
+		line += offset
 		cell := func(c string) string {
 			if i := col[c]; i < len(rec) {
 				return strings.TrimSpace(rec[i])
 			}
 			return ""
 		}
+		text := func(c string) string { return batch.Unguard(cell(c)) }
 		bad := func(c, want string) error {
 			return fmt.Errorf("%s:%d: %s %q: want %s", name, line, c, cell(c), want)
 		}
@@ -127,9 +173,9 @@ func ReadResults(r io.Reader, name string) ([]ResultRow, error) {
 			}
 			return v, nil
 		}
-		row := ResultRow{Line: line, SKU: cell("sku"), Demand: cell("demand"), Pattern: cell("pattern"), Err: cell("error")}
-		if row.SKU == "" {
-			return nil, bad("sku", "a SKU")
+		row := ResultRow{Line: line, SKU: text("sku"), Demand: text("demand"), Pattern: text("pattern"), Err: text("error")}
+		if row.SKU == "" && row.Err == "" {
+			return nil, bad("sku", "a SKU (only a failed item may lack one)")
 		}
 		if row.DemandMean, _, err = number("demand_mean"); err != nil {
 			return nil, err
@@ -137,14 +183,14 @@ func ReadResults(r io.Reader, name string) ([]ResultRow, error) {
 		if row.DemandVariance, _, err = number("demand_variance"); err != nil {
 			return nil, err
 		}
-		if w := cell("warnings"); w != "" {
+		if w := text("warnings"); w != "" {
 			for _, s := range strings.Split(w, "; ") {
 				if s = strings.TrimSpace(s); s != "" {
 					row.Warnings = append(row.Warnings, s)
 				}
 			}
 		}
-		if kind := cell("policy"); kind != "" {
+		if kind := text("policy"); kind != "" {
 			p := policies.Policy{Kind: policies.Kind(kind)}
 			if p.ReorderPoint, err = integer("reorder_point"); err != nil {
 				return nil, err
@@ -190,5 +236,6 @@ func ReadResults(r io.Reader, name string) ([]ResultRow, error) {
 	if len(rows) == 0 {
 		return nil, fmt.Errorf("%s: no items after the header: want at least one row of results", name)
 	}
-	return rows, nil
+	res.Rows = rows
+	return res, nil
 }

@@ -1,0 +1,109 @@
+package batch
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"hash"
+	"strconv"
+	"strings"
+)
+
+// MetaPrefix starts the header record of a results file.
+const MetaPrefix = "# ergostock results v"
+
+// MetaFormat is the format version of the results file written now. Files
+// of version 1 (before the header record) have no header record.
+const MetaFormat = 2
+
+// Meta is the header record of a results file: the comment line before
+// the CSV header that says what the rows were computed from, e.g.
+//
+//	# ergostock results v2; period=week; run=5d0c1a2b3e4f5a6b; items=0a1b2c3d4e5f6a7b; history=8c9d0e1f2a3b4c5d; max_states=5000000; shard=0/1; version=0.1.0
+//
+// Fields are "key=value" separated by "; "; no value holds a comma, so the
+// line is one cell in a spreadsheet. Digests are the first 16 hex digits
+// (64 bits) of SHA-256: items and history of those files' bytes ("none"
+// without a history file); run of everything that shapes the figures (the
+// format, period, items and history digests, max_states and the program
+// version), so the parts of one catalogue run over shards share one run
+// digest and parts of different runs do not. Readers ignore keys they do
+// not know, so later versions may add some.
+type Meta struct {
+	Format    int
+	Period    string // day, week or month
+	Run       string
+	Items     string
+	History   string
+	MaxStates int
+	Shard     Shard
+	Version   string
+}
+
+// NewDigest returns the hash whose sum DigestSum prints.
+func NewDigest() hash.Hash { return sha256.New() }
+
+// DigestSum prints the digest of h as in the header record.
+func DigestSum(h hash.Hash) string { return hex.EncodeToString(h.Sum(nil))[:16] }
+
+// RunDigest computes m's run digest from its other fields.
+func (m Meta) RunDigest() string {
+	h := NewDigest()
+	fmt.Fprintf(h, "ergostock results v%d\nperiod=%s\nitems=%s\nhistory=%s\nmax_states=%d\nversion=%s\n",
+		m.Format, m.Period, m.Items, m.History, m.MaxStates, m.Version)
+	return DigestSum(h)
+}
+
+// String prints the header record (without a line end).
+func (m Meta) String() string {
+	return fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
+		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version)
+}
+
+// ParseMeta reads a header record written by Meta.String; name and line
+// are used in errors. It refuses a line that is not one and a format
+// version it does not know.
+func ParseMeta(s, name string, line int) (*Meta, error) {
+	s = strings.TrimRight(s, "\r\n")
+	rest, ok := strings.CutPrefix(s, MetaPrefix)
+	if !ok {
+		return nil, fmt.Errorf("%s:%d: header record %q: want a line starting %q", name, line, s, MetaPrefix)
+	}
+	fields := strings.Split(rest, ";")
+	v, err := strconv.Atoi(strings.TrimSpace(fields[0]))
+	if err != nil || v < 2 {
+		return nil, fmt.Errorf("%s:%d: header record %q: want format version 2 or later", name, line, s)
+	}
+	if v > MetaFormat {
+		return nil, fmt.Errorf("%s:%d: results format v%d: this ergostock reads up to v%d; use a newer version", name, line, v, MetaFormat)
+	}
+	m := &Meta{Format: v}
+	for _, f := range fields[1:] {
+		k, val, ok := strings.Cut(strings.TrimSpace(f), "=")
+		if !ok {
+			continue
+		}
+		switch k {
+		case "period":
+			m.Period = val
+		case "run":
+			m.Run = val
+		case "items":
+			m.Items = val
+		case "history":
+			m.History = val
+		case "max_states":
+			m.MaxStates, _ = strconv.Atoi(val)
+		case "shard":
+			if sh, err := ParseShard(val); err == nil {
+				m.Shard = sh
+			}
+		case "version":
+			m.Version = val
+		}
+	}
+	if m.Period == "" || m.Items == "" {
+		return nil, fmt.Errorf("%s:%d: header record %q: want period= and items= fields", name, line, s)
+	}
+	return m, nil
+}
