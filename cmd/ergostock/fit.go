@@ -76,8 +76,11 @@ func fitAction(c *cli.Context) error {
 	for _, e := range h.Errors {
 		fmt.Fprintf(stderr, "ergostock: warning: bad row skipped: %v\n", e)
 	}
-	if len(h.SKUs) == 0 {
-		return fmt.Errorf("%s: no data rows, want at least one row of sku, date and quantity", h.File)
+	if len(h.SKUs) == 0 && len(h.Errors) == 0 {
+		return fmt.Errorf("%s:2: no data rows, want at least one row of sku, date and quantity", h.File)
+	}
+	if err := fitNoSeries(h); err != nil {
+		return err
 	}
 	res := fitAll(h)
 	failed := 0
@@ -99,11 +102,25 @@ func fitAction(c *cli.Context) error {
 		return err
 	}
 	span := ""
-	if failed < len(res) || h.Rows > len(h.Errors) {
-		span = fmt.Sprintf(", %s .. %s", h.Label(fitFirst(h)), h.Label(h.Last))
+	bad, left := len(h.Errors), 0
+	for _, k := range h.SKUs {
+		if len(k.Demand) > 0 {
+			span = fmt.Sprintf(", %s .. %s", h.Label(fitFirst(h)), h.Label(h.Last))
+		}
+		bad += len(k.Errors)
+		for _, o := range k.LeftOut {
+			left += o.Rows
+		}
 	}
-	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model\n",
-		len(res), h.File, h.Period, span, len(res)-failed, failed)
+	notes := ""
+	if bad > 0 {
+		notes += fmt.Sprintf("; %d bad rows skipped", bad)
+	}
+	if left > 0 {
+		notes += fmt.Sprintf("; %d rows left out, far from the bulk of their SKU's dates", left)
+	}
+	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model%s\n",
+		len(res), h.File, h.Period, span, len(res)-failed, failed, notes)
 	if failed > 0 {
 		return &exitError{code: 3, err: fmt.Errorf("%d of %d SKUs have no demand model", failed, len(res))}
 	}
@@ -136,6 +153,39 @@ func fitAll(h *history.History) []fitResult {
 	}
 	wg.Wait()
 	return res
+}
+
+// fitNoSeries refuses a history in which no SKU has a series: every row
+// is bad, or every SKU failed the bulk rule. The error names the first
+// reason, with its file and line.
+func fitNoSeries(h *history.History) error {
+	var first error
+	rows := 0
+	for _, k := range h.SKUs {
+		if len(k.Demand) > 0 {
+			return nil
+		}
+		rows += len(k.Errors)
+		switch {
+		case first != nil:
+		case k.Err != nil:
+			first = fmt.Errorf("sku %q: %w", k.SKU, k.Err)
+		case len(k.Errors) > 0:
+			first = k.Errors[0]
+		}
+	}
+	if len(h.Errors) > 0 && (first == nil || h.Errors[0].Line < lineOf(first)) {
+		first = h.Errors[0]
+	}
+	return fmt.Errorf("%s: no usable series in %d data rows (%d bad rows); the first problem: %w", h.File, h.Rows, rows+len(h.Errors), first)
+}
+
+// lineOf returns the line of a *history.RowError, or 0.
+func lineOf(err error) int {
+	if re, ok := err.(*history.RowError); ok {
+		return re.Line
+	}
+	return 0
 }
 
 // fitFirst returns the earliest first period over the SKUs with records.
