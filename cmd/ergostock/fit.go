@@ -30,8 +30,10 @@ func fitCommand() *cli.Command {
 			"variance, demand pattern (Syntetos-Boylan-Croston) and the candidate models\n" +
 			"(poisson, negbin, normal, gamma, pmf) fitted by maximum likelihood, choosing the\n" +
 			"one of least AICc (Akaike's criterion with the small-sample correction). Bad rows\n" +
-			"are skipped with a warning. FILE - reads standard input. Exit status 3 when some\n" +
-			"SKU gets no model (no demand, or no usable rows).",
+			"are skipped with a warning; rows far from the bulk of a SKU's dates (a typo year)\n" +
+			"are left out with a warning, and a SKU without a clear bulk gets no model.\n" +
+			"FILE - reads standard input. Exit status 3 when some SKU gets no model (no\n" +
+			"demand, no usable rows, no clear bulk), 1 when no SKU has a usable series.",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "history", Usage: "demand history CSV `FILE` (- for standard input)"},
 			&cli.StringFlag{Name: "period", Usage: "review period for dated rows: day, week (ISO 8601, Monday first) or month; an integer period column is taken as it is", Value: "week"},
@@ -72,15 +74,15 @@ func fitAction(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	stderr := c.App.ErrWriter
-	for _, e := range h.Errors {
-		fmt.Fprintf(stderr, "ergostock: warning: bad row skipped: %v\n", e)
-	}
 	if len(h.SKUs) == 0 && len(h.Errors) == 0 {
 		return fmt.Errorf("%s:2: no data rows, want at least one row of sku, date and quantity", h.File)
 	}
 	if err := fitNoSeries(h); err != nil {
 		return err
+	}
+	stderr := c.App.ErrWriter
+	for _, e := range h.Errors {
+		fmt.Fprintf(stderr, "ergostock: warning: bad row skipped: %v\n", e)
 	}
 	res := fitAll(h)
 	failed := 0
