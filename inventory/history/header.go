@@ -42,7 +42,7 @@ func quoteHeader(header []string) string {
 func missingColumn(name, column, header string, fields []string) error {
 	if d, ok := ForeignDelimiter(fields); ok {
 		return fmt.Errorf("%s:1: %w %q: the header %q looks %s-delimited; want comma-separated columns %s",
-			name, ErrMissingColumn, column, fields[0], d, header)
+			name, ErrMissingColumn, column, strings.TrimPrefix(fields[0], "\ufeff"), d, header)
 	}
 	return fmt.Errorf("%s:1: %w %q (the header names %s; want columns %s)", name, ErrMissingColumn, column, quoteHeader(fields), header)
 }

@@ -189,7 +189,7 @@ func TestReadFails(t *testing.T) {
 		{"sku,date,quantity\nA,2026-01-05,1\"2\n", `h.csv:2:15: bare " in non-quoted-field; want a field holding " enclosed in quotes, with the " doubled`, false},
 		// A file in another dialect says so (issue 11 will read them).
 		{"sku;date;quantity\nA;2026-01-05;1\n", `h.csv:1: missing column "sku": the header "sku;date;quantity" looks ';'-delimited; want comma-separated columns sku, date (YYYY-MM-DD) or period (a whole number), and quantity`, true},
-		{"\ufeffsku\tdate\tquantity\n", `h.csv:1: missing column "sku": the header "\ufeffsku\tdate\tquantity" looks tab-delimited; want comma-separated`, true},
+		{"\ufeffsku\tdate\tquantity\n", `h.csv:1: missing column "sku": the header "sku\tdate\tquantity" looks tab-delimited; want comma-separated`, true},
 		{"sku|date|quantity\n", `h.csv:1: missing column "sku": the header "sku|date|quantity" looks '|'-delimited`, true},
 		{"sku;date;quantity;note|x\n", `h.csv:1: missing column "sku": the header "sku;date;quantity;note|x" looks ';'-delimited`, true},
 	} {
