@@ -31,7 +31,7 @@ func ForeignDelimiter(header []string) (string, bool) {
 func quoteHeader(header []string) string {
 	q := make([]string, len(header))
 	for i, s := range header {
-		q[i] = strconv.Quote(strings.TrimSpace(s))
+		q[i] = strconv.Quote(strings.TrimSpace(strings.TrimPrefix(s, "\ufeff")))
 	}
 	return strings.Join(q, ", ")
 }

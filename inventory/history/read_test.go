@@ -181,7 +181,7 @@ func TestReadFails(t *testing.T) {
 		missing    bool
 	}{
 		{"sku,date,note\nA,2026-01-05,x\n", `h.csv:1: missing column "quantity" (the header names "sku", "date", "note"; want columns sku, date (YYYY-MM-DD) or period (a whole number), and quantity)`, true},
-		{"date,quantity\n2026-01-05,1\n", `h.csv:1: missing column "sku" (the header names "date", "quantity"; want columns`, true},
+		{"\ufeffdate,quantity\n2026-01-05,1\n", `h.csv:1: missing column "sku" (the header names "date", "quantity"; want columns`, true},
 		{"sku,quantity\nA,1\n", `h.csv:1: missing column "date" (the header names "sku", "quantity"; want columns sku, date (YYYY-MM-DD) or period`, true},
 		{"", "h.csv:1: empty file, want a header line with columns sku, date", true},
 		{"sku,date,quantity,sku\n", `h.csv:1: column "sku" appears twice (fields 1 and 4): want each of sku, date or period, and quantity once`, false},

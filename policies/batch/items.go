@@ -215,7 +215,7 @@ func isItemColumn(h string) bool {
 func quoteList(h []string) string {
 	q := make([]string, len(h))
 	for i, s := range h {
-		q[i] = strconv.Quote(strings.TrimSpace(s))
+		q[i] = strconv.Quote(strings.TrimSpace(strings.TrimPrefix(s, "\ufeff")))
 	}
 	return strings.Join(q, ", ")
 }

@@ -111,6 +111,7 @@ func TestReadItemsWholeFile(t *testing.T) {
 	}{
 		{"", "items.csv:1: empty file, want a header line with columns sku, lead_time, holding_cost, shortage_cost: missing column"},
 		{"sku,lead_time,holding_cost\nA,1,2\n", `items.csv:1: missing column "shortage_cost" (the header names "sku", "lead_time", "holding_cost"; want columns sku, lead_time, holding_cost, shortage_cost)`},
+		{"\ufeffsku,lead_time,note\n", `items.csv:1: missing column "holding_cost" (the header names "sku", "lead_time", "note"; want columns sku, lead_time, holding_cost, shortage_cost)`},
 		{"sku,lead_time,holding_cost,shortage_cost,SKU\n", `items.csv:1: column "sku" appears twice (fields 1 and 5), want each column once`},
 		{"sku,lead_time,holding_cost,shortage_cost\nA,1,2,3\n\"B,1,2,3\n", `items.csv:3:10: extraneous or missing " in quoted-field; want a quoted field closed by " and each " inside it doubled`},
 		{"sku,lead_time,holding_cost,shortage_cost\nA,1,2,3\nB,1,2\"x,3\n", `items.csv:3:6: bare " in non-quoted-field; want a field holding " enclosed in quotes, with the " doubled`},
