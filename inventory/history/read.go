@@ -154,7 +154,7 @@ func Read(r io.Reader, name string, p Period) (*History, error) {
 			return ""
 		}
 		sku := field(cols.sku)
-		if sku == "" || strings.ContainsAny(sku, "\r\n") {
+		if sku == "" || hasLineBreak(sku) {
 			want := "want a non-empty SKU"
 			if sku != "" {
 				want = "want a SKU without line breaks (CR or LF)"
@@ -221,6 +221,21 @@ func Read(r io.Reader, name string, p Period) (*History, error) {
 // wanted when the cell is unusable.
 func quantityOf(s string) (int, string) {
 	const want = "want a whole number >= 0"
+	if n := len(s); n > 0 && n <= 15 {
+		// The common case, plain digits, without the float path.
+		v := 0
+		for i := 0; i < n; i++ {
+			c := s[i]
+			if c < '0' || c > '9' {
+				v = -1
+				break
+			}
+			v = v*10 + int(c-'0')
+		}
+		if v >= 0 {
+			return v, ""
+		}
+	}
 	v, err := parseNumber(s)
 	switch {
 	case err != nil || v < 0 || v != math.Trunc(v):
@@ -229,4 +244,14 @@ func quantityOf(s string) (int, string) {
 		return 0, fmt.Sprintf("%s below %d (2^53)", want, maxExact)
 	}
 	return int(v), ""
+}
+
+// hasLineBreak reports whether s holds a CR or an LF.
+func hasLineBreak(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if s[i] == '\n' || s[i] == '\r' {
+			return true
+		}
+	}
+	return false
 }
