@@ -44,11 +44,16 @@ func fitCommand() *cli.Command {
 	}
 }
 
-// fitResult is one SKU's fit as printed.
+// fitResult is one SKU's fit as printed. The distributions themselves are
+// not kept: an empirical pmf holds three numbers per support point (up to
+// inventory.MaxSupport), so a catalogue of lot-sized items would need
+// gigabytes; their strings are formatted as each SKU is fitted.
 type fitResult struct {
 	SKU     string
 	First   string
-	Summary history.Summary
+	Summary history.Summary // Demand and Candidates[i].Demand cleared
+	Demand  string          // the chosen model's SPEC, "" when none
+	Specs   []string        // per candidate (with --json), "" when it cannot be built
 	Err     error
 }
 
@@ -84,10 +89,10 @@ func fitAction(c *cli.Context) error {
 	for _, e := range h.Errors {
 		fmt.Fprintf(stderr, "ergostock: warning: bad row skipped: %v\n", e)
 	}
-	res := fitAll(h)
+	res := fitAll(h, c.Bool("json"))
 	failed := 0
 	for _, r := range res {
-		if r.Err != nil || r.Summary.Demand == nil {
+		if r.Err != nil || r.Demand == "" {
 			failed++
 		}
 	}
@@ -130,8 +135,9 @@ func fitAction(c *cli.Context) error {
 }
 
 // fitAll fits every SKU, spread over all cores; the results are in the
-// order of h.SKUs whatever the number of workers.
-func fitAll(h *history.History) []fitResult {
+// order of h.SKUs whatever the number of workers. With specs, every
+// candidate's SPEC is formatted too (for --json).
+func fitAll(h *history.History, specs bool) []fitResult {
 	res := make([]fitResult, len(h.SKUs))
 	var next atomic.Int64
 	var wg sync.WaitGroup
@@ -147,6 +153,21 @@ func fitAll(h *history.History) []fitResult {
 				k := h.SKUs[i]
 				s, err := k.Fit()
 				res[i] = fitResult{SKU: k.SKU, Summary: s, Err: err}
+				if s.Demand != nil {
+					res[i].Demand = s.Demand.String()
+				}
+				if specs {
+					res[i].Specs = make([]string, len(s.Candidates))
+					for j := range s.Candidates {
+						if d, err := s.Candidates[j].Build(); err == nil {
+							res[i].Specs[j] = d.String()
+						}
+					}
+				}
+				res[i].Summary.Demand = nil
+				for j := range s.Candidates {
+					s.Candidates[j].Demand = nil
+				}
 				if len(k.Demand) > 0 {
 					res[i].First = h.Label(k.Start)
 				}
@@ -232,10 +253,7 @@ func fitShort(x float64) string {
 }
 
 func (r *fitResult) demand() string {
-	if r.Summary.Demand == nil {
-		return ""
-	}
-	return r.Summary.Demand.String()
+	return r.Demand
 }
 
 func (r *fitResult) errText() string {
@@ -353,8 +371,8 @@ func fitWriteJSON(w io.Writer, res []fitResult) error {
 		for i := range s.Candidates {
 			c := &s.Candidates[i]
 			spec := ""
-			if d, err := c.Build(); err == nil {
-				spec = d.String()
+			if i < len(r.Specs) {
+				spec = r.Specs[i]
 			}
 			j.Candidates = append(j.Candidates, fitCandidateJSON{c.Model, c.Params, fitFloat(c.LogLikelihood),
 				fitFloat(c.AIC), fitFloat(c.AICc), spec, i == s.Chosen})

@@ -10,6 +10,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"ergostock/inventory/history"
 )
 
 // fitRun runs `ergostock fit` and returns exit status, stdout and stderr.
@@ -318,6 +320,41 @@ func TestFitHostileHistory(t *testing.T) {
 		}
 		if all := strings.Join(append(r.Warnings, r.Error), "|"); !strings.Contains(all, c.warning) {
 			t.Errorf("%s: warnings and error %q lack %q", c.name, all, c.warning)
+		}
+	}
+}
+
+// fit keeps the strings of the fitted laws, not the laws: an empirical pmf
+// over a support of a million (a part issued in lots of 1e6) holds 24 MB,
+// and a catalogue of them would not fit in memory.
+func TestFitKeepsNoDistributions(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("sku,period,quantity\n")
+	for k := 0; k < 3; k++ {
+		for i := 0; i < 20; i++ {
+			q := 0
+			if (i+k)%3 == 0 {
+				q = 1000000
+			}
+			b.WriteString("LOT-" + itoa(k) + "," + itoa(i) + "," + itoa(q) + "\n")
+		}
+	}
+	code, out, errs := fitRun(b.String(), "--history", "-", "--json")
+	if code != 0 || !strings.Contains(out, `"demand": "pmf:0=`) || !strings.Contains(out, `1000000=`) {
+		t.Fatalf("exit %d: %s\n%s", code, errs, out)
+	}
+	h, err := history.Read(strings.NewReader(b.String()), "lots.csv", history.Week)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range fitAll(h, true) {
+		if r.Summary.Demand != nil || r.Demand == "" || len(r.Specs) != len(r.Summary.Candidates) {
+			t.Errorf("%s: kept %v, spec %q, %d specs", r.SKU, r.Summary.Demand, r.Demand, len(r.Specs))
+		}
+		for _, c := range r.Summary.Candidates {
+			if c.Demand != nil {
+				t.Errorf("%s: candidate %s kept its law", r.SKU, c.Model)
+			}
 		}
 	}
 }
