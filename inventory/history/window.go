@@ -224,7 +224,7 @@ func (h *History) build(order []*acc, cols columns) error {
 		}
 		first[k] = per(rs[0].t)
 		if span := per(rs[len(rs)-1].t) - first[k] + 1; span > MaxSpan {
-			order[k].sku.Err = spanErr(h, cols, rs[0], &rs[len(rs)-1], span)
+			order[k].sku.Err = spanErr(h, cols, order[k].sku.SKU, rs[0], &rs[len(rs)-1], span)
 			kept[k] = nil
 			continue
 		}
@@ -240,7 +240,7 @@ func (h *History) build(order []*acc, cols columns) error {
 		}
 		span := h.Last - first[k] + 1
 		if span > MaxSpan {
-			order[k].sku.Err = spanErr(h, cols, rs[0], nil, span)
+			order[k].sku.Err = spanErr(h, cols, order[k].sku.SKU, rs[0], nil, span)
 			kept[k] = nil
 			continue
 		}
@@ -400,11 +400,11 @@ func farText(rs []rec, sc gapScale) string {
 
 // spanErr is the error of a SKU whose series would be too long; to nil
 // means up to the file's last period.
-func spanErr(h *History, cols columns, from rec, to *rec, span int) error {
+func spanErr(h *History, cols columns, sku string, from rec, to *rec, span int) error {
 	end := "the file's last period " + h.Label(h.Last)
 	if to != nil {
 		end = fmt.Sprintf("%s %q at %s:%d", cols.timeName, cols.timeLabel(to.t), h.File, to.line)
 	}
-	return fmt.Errorf("%w: its series would span %d %s periods, from %s %q at %s:%d to %s, more than the limit of %d; check the %ss",
-		ErrSpan, span, h.Period, cols.timeName, cols.timeLabel(from.t), h.File, from.line, end, MaxSpan, cols.timeName)
+	return fmt.Errorf("%w: the series of sku %q would span %d %s periods, from %s %q at %s:%d to %s, more than the limit of %d; check the %ss",
+		ErrSpan, sku, span, h.Period, cols.timeName, cols.timeLabel(from.t), h.File, from.line, end, MaxSpan, cols.timeName)
 }

@@ -164,7 +164,7 @@ func TestSpanLimits(t *testing.T) {
 		fmt.Fprintf(&b, "B,%d,1\n", 1000000+i)
 	}
 	h := mustRead(t, b.String(), Week)
-	want := `too many periods: its series would span 1000005 index periods, from period "0" at h.csv:2 to the file's last period 1000004, more than the limit of 131072; check the periods`
+	want := `too many periods: the series of sku "A" would span 1000005 index periods, from period "0" at h.csv:2 to the file's last period 1000004, more than the limit of 131072; check the periods`
 	if a := h.SKUs[0]; a.Demand != nil || errText(a.Err) != want || !errors.Is(a.Err, ErrSpan) {
 		t.Errorf("A: %d periods, error\n%v\nwant\n%s", len(a.Demand), a.Err, want)
 	}
