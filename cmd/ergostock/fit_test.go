@@ -290,6 +290,8 @@ func TestFitHostileHistory(t *testing.T) {
 			`ergostock: 1 of 1 SKUs have no demand model`, 3, `no candidate model could be fitted to 3 periods (the largest demand of a period is 1000000000000 (its rows start at stdin:3))`},
 		{"quantity 1e300", head + "BRAKE-PAD-T3,2026-01-05,1e300\n" + bulk, nil, 0,
 			`1 bad rows skipped`, 86, `bad row skipped: stdin:2: quantity "1e300": want a whole number >= 0 below 9007199254740992 (2^53)`},
+		{"series beyond MaxSpan", "sku,period,quantity\nA,0,1\nA,1,2\nA,2,1\nB,1000000,1\nB,1000001,2\nB,1000002,1\n", nil, 3,
+			"1 fitted, 1 without a model", 0, `too many periods: the series of sku "A" would span 1000003 index periods, from period "0" at stdin:2 to the file's last period 1000002, more than the limit of 131072`},
 		{"series beyond MaxCells", cells.String(), []string{"--period", "day"}, 1,
 			`ergostock: stdin:2: too many periods: the series of the file's SKUs would hold 153914600 periods in all, from 1900-01-01 (the date on this line, sku "E0") to 2200-12-31, more than the limit of 134217728`, -1, ""},
 	} {
