@@ -30,8 +30,10 @@ func fitCommand() *cli.Command {
 			"variance, demand pattern (Syntetos-Boylan-Croston) and the candidate models\n" +
 			"(poisson, negbin, normal, gamma, pmf) fitted by maximum likelihood, choosing the\n" +
 			"one of least AICc (Akaike's criterion with the small-sample correction). Bad rows\n" +
-			"are skipped with a warning. FILE - reads standard input. Exit status 3 when some\n" +
-			"SKU gets no model (no demand, or no usable rows).",
+			"are skipped with a warning; rows far from the bulk of a SKU's dates (a typo year)\n" +
+			"are left out with a warning, and a SKU without a clear bulk gets no model.\n" +
+			"FILE - reads standard input. Exit status 3 when some SKU gets no model (no\n" +
+			"demand, no usable rows, no clear bulk), 1 when no SKU has a usable series.",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "history", Usage: "demand history CSV `FILE` (- for standard input)"},
 			&cli.StringFlag{Name: "period", Usage: "review period for dated rows: day, week (ISO 8601, Monday first) or month; an integer period column is taken as it is", Value: "week"},
@@ -42,11 +44,16 @@ func fitCommand() *cli.Command {
 	}
 }
 
-// fitResult is one SKU's fit as printed.
+// fitResult is one SKU's fit as printed. The distributions themselves are
+// not kept: an empirical pmf holds three numbers per support point (up to
+// inventory.MaxSupport), so a catalogue of lot-sized items would need
+// gigabytes; their strings are formatted as each SKU is fitted.
 type fitResult struct {
 	SKU     string
 	First   string
-	Summary history.Summary
+	Summary history.Summary // Demand and Candidates[i].Demand cleared
+	Demand  string          // the chosen model's SPEC, "" when none
+	Specs   []string        // per candidate (with --json), "" when it cannot be built
 	Err     error
 }
 
@@ -72,17 +79,20 @@ func fitAction(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	if len(h.SKUs) == 0 && len(h.Errors) == 0 {
+		return fmt.Errorf("%s:2: no data rows, want at least one row of sku, date and quantity", h.File)
+	}
+	if err := fitNoSeries(h); err != nil {
+		return err
+	}
 	stderr := c.App.ErrWriter
 	for _, e := range h.Errors {
 		fmt.Fprintf(stderr, "ergostock: warning: bad row skipped: %v\n", e)
 	}
-	if len(h.SKUs) == 0 {
-		return fmt.Errorf("%s: no data rows, want at least one row of sku, date and quantity", h.File)
-	}
-	res := fitAll(h)
+	res := fitAll(h, c.Bool("json"))
 	failed := 0
 	for _, r := range res {
-		if r.Err != nil || r.Summary.Demand == nil {
+		if r.Err != nil || r.Demand == "" {
 			failed++
 		}
 	}
@@ -99,11 +109,25 @@ func fitAction(c *cli.Context) error {
 		return err
 	}
 	span := ""
-	if failed < len(res) || h.Rows > len(h.Errors) {
-		span = fmt.Sprintf(", %s .. %s", h.Label(fitFirst(h)), h.Label(h.Last))
+	bad, left := len(h.Errors), 0
+	for _, k := range h.SKUs {
+		if len(k.Demand) > 0 {
+			span = fmt.Sprintf(", %s .. %s", h.Label(fitFirst(h)), h.Label(h.Last))
+		}
+		bad += len(k.Errors)
+		for _, o := range k.LeftOut {
+			left += o.Rows
+		}
 	}
-	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model\n",
-		len(res), h.File, h.Period, span, len(res)-failed, failed)
+	notes := ""
+	if bad > 0 {
+		notes += fmt.Sprintf("; %d bad rows skipped", bad)
+	}
+	if left > 0 {
+		notes += fmt.Sprintf("; %d rows left out, far from the bulk of their SKU's dates", left)
+	}
+	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model%s\n",
+		len(res), h.File, h.Period, span, len(res)-failed, failed, notes)
 	if failed > 0 {
 		return &exitError{code: 3, err: fmt.Errorf("%d of %d SKUs have no demand model", failed, len(res))}
 	}
@@ -111,8 +135,9 @@ func fitAction(c *cli.Context) error {
 }
 
 // fitAll fits every SKU, spread over all cores; the results are in the
-// order of h.SKUs whatever the number of workers.
-func fitAll(h *history.History) []fitResult {
+// order of h.SKUs whatever the number of workers. With specs, every
+// candidate's SPEC is formatted too (for --json).
+func fitAll(h *history.History, specs bool) []fitResult {
 	res := make([]fitResult, len(h.SKUs))
 	var next atomic.Int64
 	var wg sync.WaitGroup
@@ -128,6 +153,21 @@ func fitAll(h *history.History) []fitResult {
 				k := h.SKUs[i]
 				s, err := k.Fit()
 				res[i] = fitResult{SKU: k.SKU, Summary: s, Err: err}
+				if s.Demand != nil {
+					res[i].Demand = s.Demand.String()
+				}
+				if specs {
+					res[i].Specs = make([]string, len(s.Candidates))
+					for j := range s.Candidates {
+						if d, err := s.Candidates[j].Build(); err == nil {
+							res[i].Specs[j] = d.String()
+						}
+					}
+				}
+				res[i].Summary.Demand = nil
+				for j := range s.Candidates {
+					s.Candidates[j].Demand = nil
+				}
 				if len(k.Demand) > 0 {
 					res[i].First = h.Label(k.Start)
 				}
@@ -136,6 +176,39 @@ func fitAll(h *history.History) []fitResult {
 	}
 	wg.Wait()
 	return res
+}
+
+// fitNoSeries refuses a history in which no SKU has a series: every row
+// is bad, or every SKU failed the bulk rule. The error names the first
+// reason, with its file and line.
+func fitNoSeries(h *history.History) error {
+	var first error
+	rows := 0
+	for _, k := range h.SKUs {
+		if len(k.Demand) > 0 {
+			return nil
+		}
+		rows += len(k.Errors)
+		switch {
+		case first != nil:
+		case k.Err != nil:
+			first = fmt.Errorf("sku %q: %w", k.SKU, k.Err)
+		case len(k.Errors) > 0:
+			first = k.Errors[0]
+		}
+	}
+	if len(h.Errors) > 0 && (first == nil || h.Errors[0].Line < lineOf(first)) {
+		first = h.Errors[0]
+	}
+	return fmt.Errorf("%s: no usable series in %d data rows (%d bad rows); the first problem: %w", h.File, h.Rows, rows+len(h.Errors), first)
+}
+
+// lineOf returns the line of a *history.RowError, or 0.
+func lineOf(err error) int {
+	if re, ok := err.(*history.RowError); ok {
+		return re.Line
+	}
+	return 0
 }
 
 // fitFirst returns the earliest first period over the SKUs with records.
@@ -180,10 +253,7 @@ func fitShort(x float64) string {
 }
 
 func (r *fitResult) demand() string {
-	if r.Summary.Demand == nil {
-		return ""
-	}
-	return r.Summary.Demand.String()
+	return r.Demand
 }
 
 func (r *fitResult) errText() string {
@@ -301,8 +371,8 @@ func fitWriteJSON(w io.Writer, res []fitResult) error {
 		for i := range s.Candidates {
 			c := &s.Candidates[i]
 			spec := ""
-			if d, err := c.Build(); err == nil {
-				spec = d.String()
+			if i < len(r.Specs) {
+				spec = r.Specs[i]
 			}
 			j.Candidates = append(j.Candidates, fitCandidateJSON{c.Model, c.Params, fitFloat(c.LogLikelihood),
 				fitFloat(c.AIC), fitFloat(c.AICc), spec, i == s.Chosen})

@@ -10,6 +10,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"ergostock/inventory/history"
 )
 
 // fitRun runs `ergostock fit` and returns exit status, stdout and stderr.
@@ -175,7 +177,7 @@ func TestFitErrors(t *testing.T) {
 		{"json and out", []string{"--history", noQty, "--json", "--out", "x.csv"}, "", 2, "ergostock: --json and --out: give one of them, not both"},
 		{"missing column", []string{"--history", noQty}, "", 1, `ergostock: ` + noQty + `:1: missing column "quantity"`},
 		{"no such file", []string{"--history", filepath.Join(dir, "nope.csv")}, "", 1, "ergostock: --history: open " + filepath.Join(dir, "nope.csv") + ": no such file or directory"},
-		{"header only", []string{"--history", "-"}, "sku,date,quantity\n", 1, "ergostock: stdin: no data rows"},
+		{"header only", []string{"--history", "-"}, "sku,date,quantity\n", 1, "ergostock: stdin:2: no data rows"},
 		{"csv syntax", []string{"--history", "-"}, "sku,date,quantity\nA,2026-01-05,\"3\n", 1, "ergostock: stdin:2:"},
 		{"no demand", []string{"--history", zero}, "", 3, "ergostock: 1 of 2 SKUs have no demand model"},
 		{"empty sku", []string{"--history", "-"}, "sku,date,quantity\n,2026-01-05,3\nA,2026-01-05,1\n", 0, `ergostock: warning: bad row skipped: stdin:2: sku "": want a non-empty SKU`},
@@ -228,6 +230,130 @@ func TestFitDemo(t *testing.T) {
 		case "CABLE-FLEX-2.5MM":
 			if len(r.Warnings) != 1 || !strings.Contains(r.Warnings[0], `history.csv:731: quantity "2.5"`) {
 				t.Errorf("%s: %q", r.SKU, r.Warnings)
+			}
+		}
+	}
+}
+
+// fitDays returns n rows of sku, one every step days from 2025-01-06, with
+// quantities 1..7 in turn.
+func fitDays(sku string, n, step int) string {
+	var b strings.Builder
+	for i := 0; i < n; i++ {
+		b.WriteString(sku + "," + dayLabel(20094+i*step) + "," + itoa(i%7+1) + "\n")
+	}
+	return b.String()
+}
+
+// History that lies (issue 10, item 6) and hostile cells, through the
+// command: exit status, the one-line message with file and line, and what
+// the series became.
+func TestFitHostileHistory(t *testing.T) {
+	const head = "sku,date,quantity\n"
+	bulk := fitDays("BRAKE-PAD-T3", 200, 3) // 2025-01-06 .. 2026-08-26: 86 ISO weeks
+	var cells strings.Builder
+	cells.WriteString(head)
+	for i := 0; i < 1400; i++ {
+		cells.WriteString("E" + itoa(i) + ",1900-01-01,1\nL" + itoa(i) + ",2200-12-31,1\n")
+	}
+	for _, c := range []struct {
+		name    string
+		stdin   string
+		args    []string
+		code    int
+		stderr  string // a substring of stderr
+		periods int    // of the first SKU in --json (-1: not checked)
+		warning string // a substring of its warnings or error
+	}{
+		{"typo year first", head + "BRAKE-PAD-T3,0001-01-01,3\n" + bulk, nil, 0, "1 fitted, 0 without a model; 1 bad rows skipped", 86,
+			`bad row skipped: stdin:2: date "0001-01-01": want a date YYYY-MM-DD in the years 1900 to 2200`},
+		{"1900 first", head + "BRAKE-PAD-T3,1900-01-01,3\n" + bulk, nil, 0, "1 fitted, 0 without a model; 1 rows left out, far from the bulk of their SKU's dates", 86,
+			`stdin:2: date "1900-01-01" (quantity 3) left out: 45661 days before 2025-01-06 .. 2026-08-26, the span holding the bulk of this SKU's rows`},
+		{"1900 last", head + bulk + "BRAKE-PAD-T3,1900-01-01,3\n", nil, 0, "(week periods, 2025-W02 .. 2026-W35)", 86,
+			`stdin:202: date "1900-01-01" (quantity 3) left out`},
+		{"future typo in another sku", head + bulk + "DOOR-SENSOR-T4,2062-08-20,1\n", nil, 3, "(week periods, 2025-W02 .. 2026-W35): 1 fitted, 1 without a model", 86, ""},
+		{"no clear bulk", head + "BRAKE-PAD-T3,1900-01-01,3\nBRAKE-PAD-T3,2026-01-05,2\n" + fitDays("WIPE-CAB-100", 20, 7), nil, 3, "1 fitted, 1 without a model", 0,
+			`no clear bulk of rows: its 2 rows fall in 2 spans separated by gaps of more than 3653 days and none holds 90% of them (1900-01-01: 1 row at stdin:2; 2026-01-05: 1 row at stdin:3); check the dates`},
+		{"all rows bad", head + "BRAKE-PAD-T3,2026-01-05,x\n,2026-01-05,2\nBRAKE-PAD-T3,2026-02-30,1\n", nil, 1,
+			`ergostock: stdin: no usable series in 3 data rows (3 bad rows); the first problem: stdin:2: quantity "x": want a whole number >= 0`, -1, ""},
+		{"only sku without a bulk", head + "BRAKE-PAD-T3,1900-01-01,3\nBRAKE-PAD-T3,2026-01-05,2\n", nil, 1,
+			`ergostock: stdin: no usable series in 2 data rows (0 bad rows); the first problem: sku "BRAKE-PAD-T3": no clear bulk of rows`, -1, ""},
+		{"semicolons", "sku;date;quantity\nBRAKE-PAD-T3;2026-01-05;2\n", nil, 1,
+			`ergostock: stdin:1: missing column "sku": the header "sku;date;quantity" looks ';'-delimited; want comma-separated columns sku, date (YYYY-MM-DD) or period (a whole number), and quantity`, -1, ""},
+		{"tabs", "sku\tdate\tquantity\n", nil, 1, `looks tab-delimited; want comma-separated columns`, -1, ""},
+		{"bars", "sku|date|quantity\n", nil, 1, `looks '|'-delimited; want comma-separated columns`, -1, ""},
+		{"line break in a sku", head + "\"BRAKE\nPAD\",2026-01-05,1\n" + bulk, nil, 0,
+			`ergostock: warning: bad row skipped: stdin:2: sku "BRAKE\nPAD": want a SKU without line breaks (CR or LF)`, 86, ""},
+		{"quantity 1e12", "sku,period,quantity\nBRAKE-PAD-T3,1,3\nBRAKE-PAD-T3,2,1e12\nBRAKE-PAD-T3,3,0\n", nil, 3,
+			`ergostock: 1 of 1 SKUs have no demand model`, 3, `no candidate model could be fitted to 3 periods (the largest demand of a period is 1000000000000 (its rows start at stdin:3))`},
+		{"quantity 1e300", head + "BRAKE-PAD-T3,2026-01-05,1e300\n" + bulk, nil, 0,
+			`1 bad rows skipped`, 86, `bad row skipped: stdin:2: quantity "1e300": want a whole number >= 0 below 9007199254740992 (2^53)`},
+		{"series beyond MaxSpan", "sku,period,quantity\nA,0,1\nA,1,2\nA,2,1\nB,1000000,1\nB,1000001,2\nB,1000002,1\n", nil, 3,
+			"1 fitted, 1 without a model", 0, `too many periods: the series of sku "A" would span 1000003 index periods, from period "0" at stdin:2 to the file's last period 1000002, more than the limit of 131072`},
+		{"series beyond MaxCells", cells.String(), []string{"--period", "day"}, 1,
+			`ergostock: stdin:2: too many periods: the series of the file's SKUs would hold 153914600 periods in all, from 1900-01-01 (the date on this line, sku "E0") to 2200-12-31, more than the limit of 134217728`, -1, ""},
+	} {
+		args := append([]string{"--history", "-", "--json"}, c.args...)
+		code, out, errs := fitRun(c.stdin, args...)
+		if code != c.code || !strings.Contains(errs, c.stderr) {
+			t.Errorf("%s: exit %d, stderr %q; want exit %d and %q", c.name, code, errs, c.code, c.stderr)
+			continue
+		}
+		if code == 1 {
+			if strings.Count(strings.TrimSpace(errs), "\n") != 0 || out != "" {
+				t.Errorf("%s: error is not one line, or stdout %q: %q", c.name, out, errs)
+			}
+			continue
+		}
+		var res []struct {
+			Periods  int      `json:"periods"`
+			Warnings []string `json:"warnings"`
+			Error    string   `json:"error"`
+		}
+		if err := json.Unmarshal([]byte(out), &res); err != nil || len(res) == 0 {
+			t.Errorf("%s: %v\n%s", c.name, err, out)
+			continue
+		}
+		r := res[0]
+		if c.periods >= 0 && r.Periods != c.periods {
+			t.Errorf("%s: %d periods, want %d", c.name, r.Periods, c.periods)
+		}
+		if all := strings.Join(append(r.Warnings, r.Error), "|"); !strings.Contains(all, c.warning) {
+			t.Errorf("%s: warnings and error %q lack %q", c.name, all, c.warning)
+		}
+	}
+}
+
+// fit keeps the strings of the fitted laws, not the laws: an empirical pmf
+// over a support of a million (a part issued in lots of 1e6) holds 24 MB,
+// and a catalogue of them would not fit in memory.
+func TestFitKeepsNoDistributions(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("sku,period,quantity\n")
+	for k := 0; k < 3; k++ {
+		for i := 0; i < 20; i++ {
+			q := 0
+			if (i+k)%3 == 0 {
+				q = 1000000
+			}
+			b.WriteString("LOT-" + itoa(k) + "," + itoa(i) + "," + itoa(q) + "\n")
+		}
+	}
+	code, out, errs := fitRun(b.String(), "--history", "-", "--json")
+	if code != 0 || !strings.Contains(out, `"demand": "pmf:0=`) || !strings.Contains(out, `1000000=`) {
+		t.Fatalf("exit %d: %s\n%s", code, errs, out)
+	}
+	h, err := history.Read(strings.NewReader(b.String()), "lots.csv", history.Week)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range fitAll(h, true) {
+		if r.Summary.Demand != nil || r.Demand == "" || len(r.Specs) != len(r.Summary.Candidates) {
+			t.Errorf("%s: kept %v, spec %q, %d specs", r.SKU, r.Summary.Demand, r.Demand, len(r.Specs))
+		}
+		for _, c := range r.Summary.Candidates {
+			if c.Demand != nil {
+				t.Errorf("%s: candidate %s kept its law", r.SKU, c.Model)
 			}
 		}
 	}

@@ -232,6 +232,9 @@ func reportHistory(c *cli.Context) (*report.History, error) {
 		return nil, fmt.Errorf("%s: no SKU %q in the history (%d SKUs, e.g. %s): want a SKU of the file's sku column", path, sku, len(h.SKUs), reportExamples(h))
 	}
 	if len(k.Demand) == 0 {
+		if k.Err != nil { // no clear bulk of dates, or a span over the limit
+			return nil, fmt.Errorf("%s: SKU %q: %w", path, sku, k.Err)
+		}
 		if len(k.Errors) > 0 {
 			return nil, fmt.Errorf("SKU %q: no usable rows, first %w", sku, k.Errors[0])
 		}

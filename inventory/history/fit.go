@@ -145,7 +145,15 @@ func newHist(y []int) hist {
 // every total not yet seen. AICc penalises exactly that and agrees with
 // AIC when the parameters are few. A series without demand returns the
 // figures and an error wrapping ErrNoDemand; an empty one, ErrNoPeriods.
-func Fit(y []int) (Summary, error) {
+//
+// The empirical pmf is a candidate only while the largest demand of a
+// period is at most inventory.MaxSupport (it allocates one probability per
+// value up to it); beyond, a warning says so.
+func Fit(y []int) (Summary, error) { return fit(y, "") }
+
+// fit is Fit; where names the rows of the largest demand in the pmf
+// warning.
+func fit(y []int, where string) (Summary, error) {
 	s := Summary{Stats: Summarize(y), Chosen: -1}
 	if len(y) == 0 {
 		return s, fmt.Errorf("%w: an empty series", ErrNoPeriods)
@@ -180,7 +188,11 @@ func Fit(y []int) (Summary, error) {
 		add(fitNormal(h))
 		add(fitGamma(h))
 	}
-	add(fitPMF(h))
+	if top := h.v[len(h.v)-1]; top > inventory.MaxSupport {
+		s.Warnings = append(s.Warnings, fmt.Sprintf("no pmf candidate: the largest demand of a period, %d%s, is beyond the pmf limit of %d", top, where, inventory.MaxSupport))
+	} else {
+		add(fitPMF(h))
+	}
 	// Build the best candidate; should its constructor refuse the fitted
 	// parameters, drop it and take the next best.
 	var buildErr error
@@ -195,7 +207,7 @@ func Fit(y []int) (Summary, error) {
 		s.Candidates = append(s.Candidates[:i], s.Candidates[i+1:]...)
 	}
 	if s.Chosen < 0 {
-		return s, fmt.Errorf("no candidate model could be fitted to %d periods: %w", s.Periods, buildErr)
+		return s, fmt.Errorf("no candidate model could be fitted to %d periods (the largest demand of a period is %d%s): %w", s.Periods, h.v[len(h.v)-1], where, buildErr)
 	}
 	if len(h.v) == 1 {
 		s.Warnings = append(s.Warnings, fmt.Sprintf("constant demand: %d every period", h.v[0]))
@@ -223,21 +235,36 @@ func choose(cs []Candidate) int {
 	return best
 }
 
-// Fit fits the SKU's series (see the function Fit) and adds a warning for
-// its bad rows. A SKU whose every row was bad returns an error naming the
-// first of them.
+// Fit fits the SKU's series (see the function Fit) and adds warnings for
+// its bad rows and for the rows left out of its series (the first three,
+// then a count). A SKU with an Err returns it; a SKU whose every row was
+// bad returns an error naming the first of them.
 func (k *SKU) Fit() (Summary, error) {
+	if k.Err != nil {
+		return Summary{Stats: Summarize(nil), Chosen: -1}, k.Err
+	}
 	if k.Records == 0 && len(k.Errors) > 0 {
 		s := Summary{Stats: Summarize(nil), Chosen: -1}
 		return s, fmt.Errorf("no usable rows (%d bad, first %w)", len(k.Errors), k.Errors[0])
 	}
-	s, err := Fit(k.Demand)
+	where := ""
+	if k.peakLine > 0 {
+		where = fmt.Sprintf(" (its rows start at %s:%d)", k.peakFile, k.peakLine)
+	}
+	s, err := fit(k.Demand, where)
 	switch len(k.Errors) {
 	case 0:
 	case 1:
 		s.Warnings = append(s.Warnings, "bad row skipped: "+k.Errors[0].Error())
 	default:
 		s.Warnings = append(s.Warnings, fmt.Sprintf("%d bad rows skipped, first %v", len(k.Errors), k.Errors[0]))
+	}
+	for i, o := range k.LeftOut {
+		if i == 3 {
+			s.Warnings = append(s.Warnings, fmt.Sprintf("%d more dates left out, the last %v", len(k.LeftOut)-3, k.LeftOut[len(k.LeftOut)-1]))
+			break
+		}
+		s.Warnings = append(s.Warnings, o.String())
 	}
 	return s, err
 }

@@ -88,6 +88,45 @@ func periodOf(p Period, y, m, d int) int {
 	return daysFromCivil(y, m, d)
 }
 
+// civilFromDays is the inverse of daysFromCivil: the proleptic Gregorian
+// date of day number z (days from 1970-01-01), by the civil_from_days
+// algorithm of the same paper.
+func civilFromDays(z int) (y, m, d int) {
+	z += 719468
+	era := z
+	if era < 0 {
+		era -= 146096
+	}
+	era /= 146097
+	doe := z - era*146097
+	yoe := (doe - doe/1460 + doe/36524 - doe/146096) / 365
+	y = yoe + era*400
+	doy := doe - (365*yoe + yoe/4 - yoe/100)
+	mp := (5*doy + 2) / 153
+	d = doy - (153*mp+2)/5 + 1
+	m = mp + 3
+	if m > 12 {
+		m -= 12
+	}
+	if m <= 2 {
+		y++
+	}
+	return y, m, d
+}
+
+// periodOfDay maps day number z (days from 1970-01-01) to its period
+// number, as periodOf does for the date.
+func periodOfDay(p Period, z int) int {
+	switch p {
+	case Week:
+		return floorDiv(z+3, 7)
+	case Month:
+		y, m, _ := civilFromDays(z)
+		return 12*y + m - 1
+	}
+	return z
+}
+
 // Label names period number n of p: "2026-12-31" for a day, "2026-W53" for
 // an ISO week (its year is the ISO year), "2026-12" for a month, and the
 // number itself for an Index period.

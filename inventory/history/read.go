@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"strconv"
 	"strings"
 )
 
@@ -30,37 +29,43 @@ func (e *RowError) Error() string {
 // lacks a required column.
 var ErrMissingColumn = errors.New("missing column")
 
-// MaxSpan is the largest number of periods a history may span, first to
-// last (about 359 years of days). A row that would stretch the history
-// beyond it is a bad row; the limit keeps the memory of a mistyped year
-// (0206 for 2026) bounded.
-const MaxSpan = 1 << 17
-
 // SKU is the demand history of one item, summed into periods.
 type SKU struct {
 	SKU string
-	// Start is the period number of the item's first record; Demand[i] is
-	// the demand of period Start+i, up to the last period present anywhere
-	// in the file. Periods without records hold zero.
+	// Start is the period number of the first record of the item's series;
+	// Demand[i] is the demand of period Start+i, up to History.Last, the last
+	// period of the file's series. Periods without records hold zero.
 	Start  int
 	Demand []int
-	// Records counts the usable rows; Errors lists the unusable rows that
-	// name this SKU, in file order.
+	// Records counts the rows summed into Demand; Errors lists the
+	// unusable rows that name this SKU, in file order.
 	Records int
 	Errors  []*RowError
+	// LeftOut lists the usable rows left out of Demand because they lie
+	// far from the bulk of the SKU's rows, or of the file's (see the
+	// package documentation), in order of date.
+	LeftOut []*Outlier
+	// Err, when not nil, is why the SKU has no series although some of its
+	// rows are usable: its rows have no clear bulk, every one of them was
+	// left out, or its series would span more than MaxSpan periods.
+	Err error
+
+	// peakFile:peakLine is the first row of the period of largest demand.
+	peakFile string
+	peakLine int
 }
 
 // History is a demand history file read into per-SKU series.
 type History struct {
 	File   string
 	Period Period // Index when the file has a period column instead of date
-	// Last is the last period present in the file (meaningful when some SKU
-	// has a usable record).
+	// Last is the last period of the series (meaningful when some SKU has
+	// a series): the latest period holding a record that was not left out.
 	Last int
 	// SKUs are in order of first appearance in the file (including SKUs
 	// whose every row was unusable: they have no Demand and some Errors).
 	SKUs []*SKU
-	// Errors lists unusable rows whose sku cell is empty.
+	// Errors lists unusable rows whose sku cell is empty or unusable.
 	Errors []*RowError
 	// Rows counts the data rows read.
 	Rows int
@@ -69,138 +74,99 @@ type History struct {
 // Label names period number n in the history's period.
 func (h *History) Label(n int) string { return h.Period.Label(n) }
 
-// accum collects one SKU's sums while reading: buf[i] is the demand of
-// period base+i; lo is the first period with a record (valid when seen).
-type accum struct {
-	sku  *SKU
-	base int
-	lo   int
-	buf  []int
-	seen bool
+// rec is one time (day or period number) of a SKU while reading: the sum
+// q of its rows, their count and the line of the first of them.
+type rec struct {
+	t, q, line, rows int
 }
 
-func (a *accum) add(p, q int) bool {
-	switch {
-	case !a.seen:
-		a.base, a.lo, a.seen = p, p, true
-		a.buf = append(a.buf[:0], 0)
-	case p < a.base:
-		// Grow at the front by at least the current length, so that a
-		// file in reverse date order costs amortised O(1) per row.
-		grow := max(a.base-p, len(a.buf), 8)
-		nb := make([]int, grow+len(a.buf), grow+cap(a.buf))
-		copy(nb[grow:], a.buf)
-		a.buf, a.base = nb, a.base-grow
-	case p >= a.base+len(a.buf):
-		n := p - a.base + 1
-		if n <= cap(a.buf) {
-			a.buf = a.buf[:n]
-		} else {
-			a.buf = append(a.buf, make([]int, n-len(a.buf))...)
-		}
-	}
-	if p < a.lo {
-		a.lo = p
-	}
-	i := p - a.base
-	if a.buf[i] > math.MaxInt-q {
-		return false
-	}
-	a.buf[i] += q
-	return true
+// acc collects one SKU's records while reading.
+type acc struct {
+	sku   *SKU
+	recs  []rec
+	total int // the sum of the quantities, at most maxExact
 }
 
 // Read reads a demand history in CSV from r; name is the file name used in
 // errors. The header names the columns, in any order and any letter case:
-// sku, date (YYYY-MM-DD) and quantity, or sku, period (an integer) and
-// quantity; other columns are ignored. When both date and period are
-// present, date is used. Dates are summed into periods of p; integer
-// periods are taken as they are.
+// sku, date (YYYY-MM-DD, in the years MinYear to MaxYear) and quantity, or
+// sku, period (a whole number) and quantity; other columns are ignored.
+// When both date and period are present, date is used. Dates are summed
+// into periods of p; integer periods are taken as they are.
 //
 // Rows for the same SKU and period are summed. A row that cannot be used
-// (an empty sku, an unreadable date or period, a quantity that is not a
-// whole number >= 0, a date more than MaxSpan periods away from the other
-// rows) does not stop the read: it is recorded as a *RowError
-// against its SKU, or in History.Errors when the sku cell is empty. A
-// missing header or column, or a CSV syntax error, fails the whole read.
+// (an empty sku or one holding a line break, an unreadable or out-of-range
+// date or period, a quantity that is not a whole number >= 0 below 2^53,
+// a quantity that would take the SKU's total to 2^53) does not stop the
+// read: it is recorded as a *RowError against its SKU, or in
+// History.Errors when the sku cell is unusable. Rows far from the bulk of
+// their SKU's rows are left out and listed in SKU.LeftOut (the rule is in
+// the package documentation). Numbers follow one rule: a plain decimal
+// (sign, digits, fraction, exponent), no underscores, hexadecimal, inf or
+// nan.
 //
-// Memory is proportional to the history: one integer per SKU and period
-// spanned.
+// A missing header or column, a CSV syntax error, a read error, or series
+// that would hold more than MaxCells periods in all fail the whole read;
+// such errors name the file and a line. Memory is proportional to the rows
+// read plus the periods of the series, which are counted before they are
+// allocated.
 func Read(r io.Reader, name string, p Period) (*History, error) {
 	cr := csv.NewReader(r)
 	cr.FieldsPerRecord = -1
 	cr.ReuseRecord = true
 	header, err := cr.Read()
 	if err == io.EOF {
-		return nil, fmt.Errorf("%s: empty file, want a header with columns sku, date and quantity: %w", name, ErrMissingColumn)
+		return nil, fmt.Errorf("%s:1: empty file, want a header line with columns %s: %w", name, historyColumns, ErrMissingColumn)
 	}
 	if err != nil {
-		return nil, csvErr(name, err)
+		return nil, csvErr(name, 1, err)
 	}
-	col := map[string]int{}
-	for i, h := range header {
-		if i == 0 {
-			h = strings.TrimPrefix(h, "\ufeff")
-		}
-		h = strings.ToLower(strings.TrimSpace(h))
-		if _, dup := col[h]; dup && (h == "sku" || h == "date" || h == "period" || h == "quantity") {
-			return nil, fmt.Errorf("%s:1: column %q appears twice", name, h)
-		}
-		col[h] = i
+	cols, err := readHeader(name, header)
+	if err != nil {
+		return nil, err
 	}
-	skuCol, ok := col["sku"]
-	if !ok {
-		return nil, fmt.Errorf("%s:1: %w \"sku\"", name, ErrMissingColumn)
-	}
-	qCol, ok := col["quantity"]
-	if !ok {
-		return nil, fmt.Errorf("%s:1: %w \"quantity\"", name, ErrMissingColumn)
-	}
-	tCol, ok := col["date"]
-	tName := "date"
-	if !ok {
-		if tCol, ok = col["period"]; !ok {
-			return nil, fmt.Errorf("%s:1: %w \"date\" (or an integer \"period\")", name, ErrMissingColumn)
-		}
-		tName, p = "period", Index
+	if cols.timeName == "period" {
+		p = Index
 	}
 	if p < Day || p > Index {
-		return nil, fmt.Errorf("%s: %v: want day, week or month", name, p)
+		return nil, fmt.Errorf("%s:1: period %v: want day, week or month", name, p)
 	}
 
 	h := &History{File: name, Period: p}
-	accs := map[string]*accum{}
-	var order []*accum
-	var last *accum // rows usually come grouped by SKU
-	haveLast := false
-	lo, hi := 0, 0 // the periods spanned so far
-	need := max(skuCol, qCol, tCol)
+	accs := map[string]*acc{}
+	var order []*acc
+	var last *acc // rows usually come grouped by SKU
+	line := 1
 	for {
-		rec, err := cr.Read()
+		row, err := cr.Read()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return nil, csvErr(name, err)
+			return nil, csvErr(name, line+1, err)
 		}
 		h.Rows++
-		line, _ := cr.FieldPos(0)
+		line, _ = cr.FieldPos(0)
 		field := func(i int) string {
-			if i < len(rec) {
-				return strings.TrimSpace(rec[i])
+			if i < len(row) {
+				return strings.TrimSpace(row[i])
 			}
 			return ""
 		}
-		sku := field(skuCol)
-		if sku == "" {
-			h.Errors = append(h.Errors, &RowError{name, line, "sku", "", "want a non-empty SKU"})
+		sku := field(cols.sku)
+		if sku == "" || hasLineBreak(sku) {
+			want := "want a non-empty SKU"
+			if sku != "" {
+				want = "want a SKU without line breaks (CR or LF)"
+			}
+			h.Errors = append(h.Errors, &RowError{name, line, "sku", strings.Clone(sku), want})
 			continue
 		}
 		a := last
 		if a == nil || a.sku.SKU != sku {
 			a = accs[sku]
 			if a == nil {
-				a = &accum{sku: &SKU{SKU: strings.Clone(sku)}}
+				a = &acc{sku: &SKU{SKU: strings.Clone(sku)}}
 				accs[a.sku.SKU] = a
 				order = append(order, a)
 			}
@@ -209,99 +175,83 @@ func Read(r io.Reader, name string, p Period) (*History, error) {
 		bad := func(f, v, want string) {
 			a.sku.Errors = append(a.sku.Errors, &RowError{name, line, f, strings.Clone(v), want})
 		}
-		if len(rec) <= need {
+		if len(row) <= cols.need {
 			// A short row: name the first missing field.
-			tWant := "want a date YYYY-MM-DD"
-			if tName == "period" {
-				tWant = "want an integer period number"
-			}
-			for _, c := range []struct {
-				i    int
-				f, w string
-			}{{tCol, tName, tWant}, {qCol, "quantity", "want a whole number >= 0"}} {
-				if c.i >= len(rec) {
-					bad(c.f, "", c.w)
-					break
-				}
+			short := fmt.Sprintf(" (the row has %d fields, the header %d)", len(row), cols.width)
+			switch {
+			case cols.time >= len(row):
+				bad(cols.timeName, "", cols.timeWant()+short)
+			default:
+				bad("quantity", "", "want a whole number >= 0"+short)
 			}
 			continue
 		}
-		var per int
-		ts := field(tCol)
-		if tName == "date" {
-			y, m, d, ok := parseDate(ts)
-			if !ok {
-				bad("date", ts, "want a date YYYY-MM-DD")
-				continue
-			}
-			per = periodOf(p, y, m, d)
+		ts := field(cols.time)
+		t, want := cols.timeOf(ts)
+		if want != "" {
+			bad(cols.timeName, ts, want)
+			continue
+		}
+		qs := field(cols.qty)
+		q, want := quantityOf(qs)
+		if want != "" {
+			bad("quantity", qs, want)
+			continue
+		}
+		if a.total+q >= maxExact {
+			bad("quantity", qs, fmt.Sprintf("want a quantity that keeps the SKU's total below %d (2^53); it is %d before this row", maxExact, a.total))
+			continue
+		}
+		a.total += q
+		if n := len(a.recs); n > 0 && a.recs[n-1].t == t {
+			a.recs[n-1].q += q
+			a.recs[n-1].rows++
 		} else {
-			n, err := strconv.Atoi(ts)
-			if err != nil || n < -1<<40 || n > 1<<40 {
-				bad("period", ts, "want an integer period number")
-				continue
-			}
-			per = n
+			a.recs = append(a.recs, rec{t: t, q: q, line: line, rows: 1})
 		}
-		qs := field(qCol)
-		q, ok := parseQuantity(qs)
-		if !ok {
-			bad("quantity", qs, "want a whole number >= 0")
-			continue
-		}
-		if haveLast && (max(hi, per)-min(lo, per) >= MaxSpan) {
-			bad(tName, ts, fmt.Sprintf("want a %s within %d %ss of the other rows", tName, MaxSpan, p))
-			continue
-		}
-		if !a.add(per, q) {
-			bad("quantity", qs, "want a total that fits in an integer")
-			continue
-		}
-		a.sku.Records++
-		if !haveLast {
-			lo, hi, haveLast = per, per, true
-		}
-		lo, hi = min(lo, per), max(hi, per)
-		h.Last = hi
 	}
-	h.SKUs = make([]*SKU, len(order))
-	for i, a := range order {
-		s := a.sku
-		if a.seen {
-			s.Start = a.lo
-			s.Demand = make([]int, h.Last-a.lo+1)
-			copy(s.Demand, a.buf[a.lo-a.base:])
-		}
-		a.buf = nil
-		h.SKUs[i] = s
+	if err := h.build(order, cols); err != nil {
+		return nil, err
 	}
 	return h, nil
 }
 
-// parseQuantity reads a whole number >= 0; a decimal point followed only by
-// zeros ("12.0") is accepted, as spreadsheets write whole numbers so.
-func parseQuantity(s string) (int, bool) {
-	if i := strings.IndexByte(s, '.'); i >= 0 {
-		if i == 0 || strings.Trim(s[i+1:], "0") != "" {
-			return 0, false
+// quantityOf reads a quantity: a whole number >= 0 below 2^53, by the
+// rule of parseNumber ("12.0" and "1.2e1" are 12). It returns what is
+// wanted when the cell is unusable.
+func quantityOf(s string) (int, string) {
+	const want = "want a whole number >= 0"
+	if n := len(s); n > 0 && n <= 15 {
+		// The common case, plain digits, without the float path.
+		v := 0
+		for i := 0; i < n; i++ {
+			c := s[i]
+			if c < '0' || c > '9' {
+				v = -1
+				break
+			}
+			v = v*10 + int(c-'0')
 		}
-		s = s[:i]
+		if v >= 0 {
+			return v, ""
+		}
 	}
-	if s == "" || s[0] == '-' {
-		return 0, false
+	v, err := parseNumber(s)
+	switch {
+	case err != nil || v < 0 || v != math.Trunc(v):
+		return 0, want
+	case v >= maxExact:
+		return 0, fmt.Sprintf("%s below %d (2^53)", want, maxExact)
 	}
-	n, err := strconv.ParseUint(strings.TrimPrefix(s, "+"), 10, 63)
-	if err != nil {
-		return 0, false
-	}
-	return int(n), true
+	return int(v), ""
 }
 
-// csvErr names the file in an encoding/csv error.
-func csvErr(name string, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		return fmt.Errorf("%s:%d:%d: %w", name, pe.Line, pe.Column, pe.Err)
+// hasLineBreak reports whether s holds a CR or an LF.
+func hasLineBreak(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if s[i] == '\n' || s[i] == '\r' {
+			return true
+		}
 	}
-	return fmt.Errorf("%s: %w", name, err)
+	return false
 }

@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"ergostock/inventory"
+	"ergostock/inventory/history"
 	"ergostock/policies"
 )
 
@@ -88,56 +89,45 @@ var itemColumns = []string{
 //
 // The returned error is for the file as a whole: a missing header or
 // required column, a column named twice, a CSV syntax error or a read
-// error. Errors of single rows are in Item.Err, as *LineError values that
-// wrap an *inventory.FieldError where one column is at fault.
+// error; it names the file and a line. Errors of single rows are in
+// Item.Err, as *LineError values that wrap an *inventory.FieldError where
+// one column is at fault. A row with an empty SKU, or a SKU holding a line
+// break, is still an item (with an error), so that positions are kept.
+//
+// Numbers follow one rule (parseNumber): a plain decimal with an optional
+// sign, fraction and exponent; underscores, hexadecimal, inf and nan are
+// refused. Whole-number columns (lead_time, current_*) take such a number
+// when it is whole ("2", "2.0", "2e0") and below 2^53 in magnitude. unmet
+// and policy ignore letter case.
 func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, error) {
 	cr := csv.NewReader(r)
 	cr.FieldsPerRecord = -1
 	cr.ReuseRecord = true
 	header, err := cr.Read()
 	if err == io.EOF {
-		return nil, fmt.Errorf("%s: empty file, want a header with columns %s: %w",
+		return nil, fmt.Errorf("%s:1: empty file, want a header line with columns %s: %w",
 			name, strings.Join(itemColumns[:requiredColumnsNo], ", "), ErrMissingColumn)
 	}
 	if err != nil {
-		return nil, csvErr(name, err)
+		return nil, csvErr(name, 1, err)
 	}
-	col := make(map[string]int, len(itemColumns))
-	for i, h := range header {
-		if i == 0 {
-			h = strings.TrimPrefix(h, "\ufeff")
-		}
-		h = strings.ToLower(strings.TrimSpace(h))
-		if _, dup := col[h]; dup && isItemColumn(h) {
-			return nil, fmt.Errorf("%s:1: column %q appears twice", name, h)
-		}
-		col[h] = i
-	}
-	for _, c := range itemColumns[:requiredColumnsNo] {
-		if _, ok := col[c]; !ok {
-			return nil, fmt.Errorf("%s:1: %w %q (the header names %s)", name, ErrMissingColumn, c, quoteList(header))
-		}
-	}
-	idx := make([]int, len(itemColumns))
-	for i, c := range itemColumns {
-		if j, ok := col[c]; ok {
-			idx[i] = j
-		} else {
-			idx[i] = -1
-		}
+	idx, err := itemHeader(name, header)
+	if err != nil {
+		return nil, err
 	}
 
 	var items []Item
 	first := make(map[string]int) // sku -> line of its first row
+	line := 1
 	for index := 0; ; index++ {
 		rec, err := cr.Read()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			return nil, csvErr(name, err)
+			return nil, csvErr(name, line+1, err)
 		}
-		line, _ := cr.FieldPos(0)
+		line, _ = cr.FieldPos(0)
 		cell := func(c int) string {
 			if j := idx[c]; j >= 0 && j < len(rec) {
 				return strings.TrimSpace(rec[j])
@@ -146,7 +136,8 @@ func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, err
 		}
 		sku := cell(0)
 		var dupOf int
-		if sku != "" {
+		breaks := strings.ContainsAny(sku, "\r\n")
+		if sku != "" && !breaks {
 			if l, seen := first[sku]; seen {
 				dupOf = l
 			} else {
@@ -158,10 +149,12 @@ func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, err
 		}
 		it := Item{Index: index, File: name, Line: line, SKU: strings.Clone(sku)}
 		switch {
-		case len(rec) != len(header):
-			it.Err = fmt.Errorf("%d fields, want %d as in the header", len(rec), len(header))
 		case sku == "":
 			it.Err = &inventory.FieldError{Field: colSKU, Want: "a non-empty SKU"}
+		case breaks:
+			it.Err = &inventory.FieldError{Field: colSKU, Value: sku, Want: "a SKU without line breaks (CR or LF)"}
+		case len(rec) != len(header):
+			it.Err = fmt.Errorf("%d fields, want %d as in the header (sku %q)", len(rec), len(header), sku)
 		case dupOf > 0:
 			it.Err = &inventory.FieldError{Field: colSKU, Value: sku, Want: fmt.Sprintf("a SKU given once (it is first given on line %d)", dupOf)}
 		default:
@@ -173,6 +166,41 @@ func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, err
 		items = append(items, it)
 	}
 	return items, nil
+}
+
+// itemHeader finds the columns of the items file in the header: idx[i]
+// is the field of itemColumns[i], -1 when absent.
+func itemHeader(name string, header []string) ([]int, error) {
+	col := make(map[string]int, len(itemColumns))
+	for i, h := range header {
+		if i == 0 {
+			h = strings.TrimPrefix(h, "\ufeff")
+		}
+		h = strings.ToLower(strings.TrimSpace(h))
+		if j, dup := col[h]; dup && isItemColumn(h) {
+			return nil, fmt.Errorf("%s:1: column %q appears twice (fields %d and %d), want each column once", name, h, j+1, i+1)
+		}
+		col[h] = i
+	}
+	for _, c := range itemColumns[:requiredColumnsNo] {
+		if _, ok := col[c]; !ok {
+			want := strings.Join(itemColumns[:requiredColumnsNo], ", ")
+			if d, ok := history.ForeignDelimiter(header); ok {
+				return nil, fmt.Errorf("%s:1: %w %q: the header %q looks %s-delimited; want comma-separated columns %s (and optional ones)",
+					name, ErrMissingColumn, c, strings.TrimPrefix(header[0], "\ufeff"), d, want)
+			}
+			return nil, fmt.Errorf("%s:1: %w %q (the header names %s; want columns %s)", name, ErrMissingColumn, c, quoteList(header), want)
+		}
+	}
+	idx := make([]int, len(itemColumns))
+	for i, c := range itemColumns {
+		if j, ok := col[c]; ok {
+			idx[i] = j
+		} else {
+			idx[i] = -1
+		}
+	}
+	return idx, nil
 }
 
 func isItemColumn(h string) bool {
@@ -187,18 +215,93 @@ func isItemColumn(h string) bool {
 func quoteList(h []string) string {
 	q := make([]string, len(h))
 	for i, s := range h {
-		q[i] = strconv.Quote(strings.TrimSpace(s))
+		q[i] = strconv.Quote(strings.TrimSpace(strings.TrimPrefix(s, "\ufeff")))
 	}
 	return strings.Join(q, ", ")
 }
 
-// csvErr names the file in an encoding/csv error.
-func csvErr(name string, err error) error {
+// csvErr names the file in an encoding/csv error and says what the CSV
+// syntax wants; line is the line reached, for errors without a position.
+func csvErr(name string, line int, err error) error {
 	var pe *csv.ParseError
 	if errors.As(err, &pe) {
-		return fmt.Errorf("%s:%d:%d: %w", name, pe.Line, pe.Column, pe.Err)
+		want := ""
+		switch {
+		case errors.Is(pe.Err, csv.ErrQuote):
+			want = `; want a quoted field closed by " and each " inside it doubled`
+		case errors.Is(pe.Err, csv.ErrBareQuote):
+			want = `; want a field holding " enclosed in quotes, with the " doubled`
+		}
+		return fmt.Errorf("%s:%d:%d: %w%s", name, pe.Line, pe.Column, pe.Err, want)
 	}
-	return fmt.Errorf("%s: %w", name, err)
+	return fmt.Errorf("%s:%d: %w", name, line, err)
+}
+
+// maxWhole is 2^53: whole-number cells must be below it in magnitude, so
+// that they are exact in a float64 and fit an int everywhere.
+const maxWhole = 1 << 53
+
+var errNumber = errors.New("want a plain decimal number")
+
+// parseNumber reads a number in the one form the project's files accept: a
+// plain decimal with an optional sign, digits with an optional fraction
+// (at least one digit in all) and an optional exponent, such as 12, -3,
+// 0.25, .5, 1e6 or 2.5E-3. Underscores, hexadecimal, "inf", "nan",
+// spaces and overflow to infinity are refused.
+//
+// It stands in for inventory.ParseNumber, the shared form of this rule,
+// until that lands.
+func parseNumber(s string) (float64, error) {
+	i, n := 0, len(s)
+	if i < n && (s[i] == '+' || s[i] == '-') {
+		i++
+	}
+	digits := 0
+	for ; i < n && s[i] >= '0' && s[i] <= '9'; i++ {
+		digits++
+	}
+	if i < n && s[i] == '.' {
+		for i++; i < n && s[i] >= '0' && s[i] <= '9'; i++ {
+			digits++
+		}
+	}
+	if digits == 0 {
+		return 0, errNumber
+	}
+	if i < n && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		if i < n && (s[i] == '+' || s[i] == '-') {
+			i++
+		}
+		exp := 0
+		for ; i < n && s[i] >= '0' && s[i] <= '9'; i++ {
+			exp++
+		}
+		if exp == 0 {
+			return 0, errNumber
+		}
+	}
+	if i != n {
+		return 0, errNumber
+	}
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsInf(v, 0) {
+		return 0, errNumber
+	}
+	return v, nil
+}
+
+// parseWhole reads a whole number by the rule of parseNumber; big is true
+// when the cell is a whole number too large in magnitude (>= 2^53).
+func parseWhole(s string) (n int, big bool, ok bool) {
+	v, err := parseNumber(s)
+	if err != nil || v != math.Trunc(v) {
+		return 0, false, false
+	}
+	if math.Abs(v) >= maxWhole {
+		return 0, true, false
+	}
+	return int(v), false, true
 }
 
 // parseItem fills it from the row's cells; cell(i) is the trimmed cell of
@@ -217,20 +320,18 @@ func parseItem(it *Item, cell func(int) string) error {
 		if s == "" && optional {
 			return 0
 		}
-		v, err := strconv.ParseFloat(s, 64)
+		v, err := parseNumber(s)
 		if err != nil {
 			return math.NaN()
 		}
 		return v
 	}
-	if s := raw[colLeadTime]; s != "" {
-		if l, err := strconv.Atoi(s); err == nil {
-			sys.LeadTime = l
-		} else {
-			sys.LeadTime = -1
-		}
-	} else {
-		sys.LeadTime = -1
+	sys.LeadTime = -1
+	if l, big, ok := parseWhole(raw[colLeadTime]); ok {
+		sys.LeadTime = l
+	} else if big {
+		return &inventory.FieldError{Field: colLeadTime, Value: raw[colLeadTime],
+			Want: fmt.Sprintf("a whole number of periods >= 0 below %d (2^53)", maxWhole)}
 	}
 	sys.Holding = num(colHolding, false)
 	sys.Shortage = num(colShortage, false)
@@ -267,7 +368,7 @@ func parseItem(it *Item, cell func(int) string) error {
 		it.Kind = k
 	}
 	if s := raw[colMinFillRate]; s != "" {
-		f, err := strconv.ParseFloat(s, 64)
+		f, err := parseNumber(s)
 		if err != nil || !(f >= 0 && f < 1) {
 			return &inventory.FieldError{Field: colMinFillRate, Value: s, Want: "a fraction in [0, 1)"}
 		}
@@ -316,9 +417,13 @@ func parseCurrent(raw map[string]string, mode inventory.Mode) (*policies.Policy,
 		if s == "" {
 			continue
 		}
-		n, err := strconv.Atoi(s)
-		if err != nil {
-			return nil, &inventory.FieldError{Field: c, Value: s, Want: "a whole number"}
+		n, big, ok := parseWhole(s)
+		if !ok {
+			want := "a whole number"
+			if big {
+				want = fmt.Sprintf("a whole number below %d (2^53) in magnitude", maxWhole)
+			}
+			return nil, &inventory.FieldError{Field: c, Value: s, Want: want}
 		}
 		v[i], has[i] = n, true
 	}
