@@ -3,6 +3,7 @@ package inventory
 import (
 	"math"
 	"strconv"
+	"strings"
 )
 
 // Mode says what happens to demand that cannot be served at once.
@@ -54,11 +55,12 @@ func (s System) Validate() error {
 	return nil
 }
 
-// ParseMode reads "backorder" or "lost".
+// ParseMode reads "backorder" or "lost", in any case and with surrounding
+// spaces ignored: the one rule of the command line and the items file.
 func ParseMode(v string) (Mode, error) {
-	switch Mode(v) {
+	switch m := Mode(strings.ToLower(strings.TrimSpace(v))); m {
 	case Backorder, Lost:
-		return Mode(v), nil
+		return m, nil
 	}
 	return "", &FieldError{Field: "unmet", Value: v, Want: "backorder or lost"}
 }

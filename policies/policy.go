@@ -2,6 +2,8 @@ package policies
 
 import (
 	"fmt"
+	"math"
+	"strconv"
 
 	"ergostock/inventory"
 )
@@ -76,6 +78,10 @@ func (p Policy) Validate(mode inventory.Mode) error {
 	case SNQ:
 		if p.OrderMultiple < 1 {
 			return fmt.Errorf("order multiple %d: want >= 1", p.OrderMultiple)
+		}
+		if p.ReorderPoint > math.MaxInt-p.OrderMultiple {
+			return &SizeError{Chain: "highest position s+Q of " + p.String(), Bound: float64(p.ReorderPoint) + float64(p.OrderMultiple),
+				Limit: math.MaxInt, What: "units", Input: "reorder_point", Value: strconv.Itoa(p.ReorderPoint), LimitField: "the int range"}
 		}
 		if mode == inventory.Lost && p.ReorderPoint < -1 {
 			return fmt.Errorf("reorder point %d: want >= -1 in lost mode (inventory position never falls below 0)", p.ReorderPoint)
