@@ -49,8 +49,35 @@ func (s System) Validate() error {
 	default:
 		return &FieldError{Field: "unmet", Value: string(s.Mode), Want: "backorder or lost"}
 	}
-	if m := s.Demand.Mean(); !(m > 0) || math.IsInf(m, 0) {
-		return &FieldError{Field: "demand", Value: s.Demand.String(), Want: "a distribution with a positive, finite mean"}
+	return checkRepresentable(s.Demand)
+}
+
+// checkRepresentable refuses a demand law that double precision cannot
+// carry: one whose computed mean is not positive and finite, or whose mass
+// away from 0, P(D >= 1), rounds to nothing although its mean is positive
+// (a negbin with a huge variance, a discretised gamma or normal with a
+// mean far below a unit): every figure would then come from a tail that
+// the tables cannot see. The message says which case applies.
+func checkRepresentable(d Distribution) error {
+	m := d.Mean()
+	up := d.Tail(1)
+	if math.IsNaN(m) || math.IsInf(m, 0) || m < 0 {
+		return &FieldError{Field: "demand", Value: d.String(), Want: "a distribution with a positive, finite mean, not " + ftoa(m)}
+	}
+	switch d.(type) {
+	case Normal, Gamma:
+		if !(m > 0) || !(up > 0) {
+			return &FieldError{Field: "demand", Value: d.String(),
+				Want: "a law that keeps some demand after rounding to whole units: this one puts all its mass at 0 in double precision (P(D >= 1) = " + ftoa(up) + ", mean of the rounded law " + ftoa(m) + "); plan in smaller units so the mean is not far below one unit"}
+		}
+	default:
+		if !(m > 0) {
+			return &FieldError{Field: "demand", Value: d.String(), Want: "a distribution with a positive mean (this one is always 0)"}
+		}
+		if !(up > 0) {
+			return &FieldError{Field: "demand", Value: d.String(),
+				Want: "a law whose mass away from 0 double precision can hold: this one has mean " + ftoa(m) + " but P(D >= 1) rounds to 0, so its mean lies in a tail too thin and too far out to tabulate (for negbin the variance is too large for the mean)"}
+		}
 	}
 	return nil
 }

@@ -1,7 +1,6 @@
 package policies
 
 import (
-	"fmt"
 	"math"
 
 	"ergostock/inventory"
@@ -81,8 +80,11 @@ func (mo *boModel) snqSearch(d inventory.Distribution, fl floors) (Policy, Searc
 		minDQ    float64
 	)
 	for Q = 1; ; Q++ {
-		if Q >= maxLevel {
-			return Policy{}, Search{}, fmt.Errorf("s-nQ search: order multiple above %d", maxLevel)
+		if Q >= mo.levelCap() {
+			return Policy{}, Search{}, mo.capErr("s-nQ search", "order multiple", float64(Q))
+		}
+		if err := mo.tick(); err != nil {
+			return Policy{}, Search{}, err
 		}
 		rMin := (Q + gD - 1) / gD
 		if isFinite(bestCost) && lowBound(rMin) >= bestCost {
@@ -154,7 +156,7 @@ func (mo *boModel) snqSearch(d inventory.Distribution, fl floors) (Policy, Searc
 			} else {
 				for !feasible(s + 1) {
 					s++
-					if s-sU >= maxLevel {
+					if s-sU >= mo.levelCap() {
 						return Policy{}, Search{}, noneMeets(fl, map[string][2]int{"reorder_point": {sU, s}, "order_multiple": {Q, Q}})
 					}
 				}

@@ -44,7 +44,7 @@ func (e *SizeError) Message(name func(field string) string) string {
 	if lim == "" {
 		lim = "max_states"
 	}
-	if e.Input == "" {
+	if e.Input == "" && e.Reason == "" {
 		// The form of the lost-sales chain, which names no input.
 		if e.Counted {
 			return fmt.Sprintf("%s chain has more than %d reachable %s (the a-priori bound is %.0f; raise --max-states, or lower the order-up-to level or the lead time)",
@@ -54,11 +54,13 @@ func (e *SizeError) Message(name func(field string) string) string {
 			e.Chain, e.Bound, e.What, e.Limit)
 	}
 	var b strings.Builder
-	b.WriteString(name(e.Input))
-	if e.Value != "" {
-		b.WriteString(" " + e.Value)
+	if e.Input != "" {
+		b.WriteString(name(e.Input))
+		if e.Value != "" {
+			b.WriteString(" " + e.Value)
+		}
+		b.WriteString(": ")
 	}
-	b.WriteString(": ")
 	if e.Reason != "" {
 		b.WriteString(e.Reason + ", so ")
 	}
