@@ -99,7 +99,7 @@ func Parse(spec string) (Distribution, error) {
 		}
 		x, err := ParseNumber(v)
 		if err != nil {
-			return fail(k + " a finite plain decimal number (as 9, 0.5 or 1e3; no underscores, hex, inf or nan), not " + strconv.Quote(v))
+			return fail(k + " a finite number, not " + strconv.Quote(v) + " (plain decimal, as 9, 0.5 or 1e3; no underscores, hex, inf or nan)")
 		}
 		vals[k] = x
 	}

@@ -68,7 +68,7 @@ func checkRepresentable(d Distribution) error {
 	case Normal, Gamma:
 		if !(m > 0) || !(up > 0) {
 			return &FieldError{Field: "demand", Value: d.String(),
-				Want: "a law that keeps some demand after rounding to whole units: this one puts all its mass at 0 in double precision (P(D >= 1) = " + ftoa(up) + ", mean of the rounded law " + ftoa(m) + "); plan in smaller units so the mean is not far below one unit"}
+				Want: "a law that keeps some demand after rounding to whole units: this one puts all its mass at 0 in double precision (P(D >= 1) = " + ftoa(up) + ", mean of the rounded law " + ftoa(m) + "); plan in smaller units so the mean is not far below one unit", Err: ErrLimit}
 		}
 	default:
 		if !(m > 0) {
@@ -76,7 +76,7 @@ func checkRepresentable(d Distribution) error {
 		}
 		if !(up > 0) {
 			return &FieldError{Field: "demand", Value: d.String(),
-				Want: "a law whose mass away from 0 double precision can hold: this one has mean " + ftoa(m) + " but P(D >= 1) rounds to 0, so its mean lies in a tail too thin and too far out to tabulate (for negbin the variance is too large for the mean)"}
+				Want: "a law whose mass away from 0 double precision can hold: this one has mean " + ftoa(m) + " but P(D >= 1) rounds to 0, so its mean lies in a tail too thin and too far out to tabulate (for negbin the variance is too large for the mean)", Err: ErrLimit}
 		}
 	}
 	return nil

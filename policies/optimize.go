@@ -1,7 +1,6 @@
 package policies
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"strconv"
@@ -206,7 +205,7 @@ const ServiceResolution = floorTol
 // ErrLimit is wrapped by the errors of inputs refused because they lie
 // beyond what the evaluation can resolve or hold (not because they are
 // malformed): a command reports them with exit status 1.
-var ErrLimit = errors.New("beyond the limits of the evaluation")
+var ErrLimit = inventory.ErrLimit
 
 // checkOrderQuantity refuses, before any table is built, an s-S or s-nQ
 // search whose order quantity must be wider than the state limit: the

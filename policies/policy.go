@@ -80,8 +80,8 @@ func (p Policy) Validate(mode inventory.Mode) error {
 			return fmt.Errorf("order multiple %d: want >= 1", p.OrderMultiple)
 		}
 		if p.ReorderPoint > math.MaxInt-p.OrderMultiple {
-			return &SizeError{Chain: "highest position s+Q of " + p.String(), Bound: float64(p.ReorderPoint) + float64(p.OrderMultiple),
-				Limit: math.MaxInt, What: "units", Input: "reorder_point", Value: strconv.Itoa(p.ReorderPoint), LimitField: "the int range"}
+			return &inventory.FieldError{Field: "reorder_point", Value: strconv.Itoa(p.ReorderPoint),
+				Want: fmt.Sprintf("a reorder point whose highest position s + Q stays within the int range (at most %d for Q = %d)", math.MaxInt-p.OrderMultiple, p.OrderMultiple)}
 		}
 		if mode == inventory.Lost && p.ReorderPoint < -1 {
 			return fmt.Errorf("reorder point %d: want >= -1 in lost mode (inventory position never falls below 0)", p.ReorderPoint)
