@@ -1,6 +1,5 @@
 package policies
 
-
 // zfResult is the outcome of the Zheng-Federgruen search.
 type zfResult struct {
 	s, S     int
