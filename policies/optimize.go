@@ -136,6 +136,9 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 	if err := checkDemand(sys.Demand, limit); err != nil {
 		return nil, err
 	}
+	if err := checkCostScale(sys); err != nil {
+		return nil, err
+	}
 	if opt.MaxEvaluations < 0 {
 		return nil, fmt.Errorf("evaluation cap %d: want a count >= 1 (0 for the default %d)", opt.MaxEvaluations, DefaultMaxEvaluations)
 	}
@@ -194,6 +197,30 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	}
 	sr.Evaluated++
 	return &Optimum{Evaluation: *ev, Search: sr}, nil
+}
+
+// checkCostScale refuses cost rates whose costs would overflow float64 in
+// the search: the one-period costs h E[(y-X)^+] + b E[(X-y)^+] over the
+// levels searched reach about max(h, b) times the span of the lead-time
+// demand, (L+1) E[D] + 10 sd + 1, and the search adds up to millions of
+// them. It names the larger rate.
+func checkCostScale(sys inventory.System) error {
+	n := float64(sys.LeadTime) + 1
+	d := sys.Demand
+	scale := n*d.Mean() + 10*math.Sqrt(n*d.Variance()) + 1
+	field, rate := "holding_cost", sys.Holding
+	if sys.Shortage > rate {
+		field, rate = "shortage_cost", sys.Shortage
+	}
+	if sys.OrderCost > rate {
+		field, rate = "order_cost", sys.OrderCost
+	}
+	if rate*scale*1e12 <= math.MaxFloat64 {
+		return nil
+	}
+	return &inventory.FieldError{Field: field, Value: strconv.FormatFloat(rate, 'g', -1, 64),
+		Want: fmt.Sprintf("cost rates whose costs fit a float64 in the search: the rate times the span of lead-time demand (about %.3g units) times 1e12 must stay below 1.8e308", scale),
+		Err:  ErrOverflow}
 }
 
 // ServiceResolution is the finest service requirement Optimize accepts:
