@@ -26,8 +26,14 @@ func TestRefusedBeforeAllocation(t *testing.T) {
 		run   func() error
 		input string // SizeError.Input
 	}{
-		{"S=2e9", func() error { _, err := Evaluate(p9, Policy{Kind: BaseStock, OrderUpTo: 2_000_000_000}, Options{}); return err }, "order_up_to"},
-		{"S=MaxInt", func() error { _, err := Evaluate(p9, Policy{Kind: BaseStock, OrderUpTo: math.MaxInt}, Options{}); return err }, "order_up_to"},
+		{"S=2e9", func() error {
+			_, err := Evaluate(p9, Policy{Kind: BaseStock, OrderUpTo: 2_000_000_000}, Options{})
+			return err
+		}, "order_up_to"},
+		{"S=MaxInt", func() error {
+			_, err := Evaluate(p9, Policy{Kind: BaseStock, OrderUpTo: math.MaxInt}, Options{})
+			return err
+		}, "order_up_to"},
 		{"s near MaxInt, Q=5", func() error {
 			_, err := Evaluate(p9, Policy{Kind: SNQ, ReorderPoint: 9223372036854775000, OrderMultiple: 5}, Options{})
 			return err
@@ -36,12 +42,18 @@ func TestRefusedBeforeAllocation(t *testing.T) {
 			_, err := Evaluate(p9, Policy{Kind: SS, ReorderPoint: math.MinInt / 2, OrderUpTo: math.MaxInt / 2}, Options{})
 			return err
 		}, "order_up_to"},
-		{"S-s over the limit", func() error { _, err := Evaluate(p9, Policy{Kind: SS, ReorderPoint: 0, OrderUpTo: 1001}, Options{MaxStates: 1000}); return err }, "order_up_to"},
+		{"S-s over the limit", func() error {
+			_, err := Evaluate(p9, Policy{Kind: SS, ReorderPoint: 0, OrderUpTo: 1001}, Options{MaxStates: 1000})
+			return err
+		}, "order_up_to"},
 		{"poisson 1e9", func() error { _, err := Optimize(big(1e9), SS, SearchOptions{}); return err }, "demand"},
 		{"poisson 1e9 base-stock", func() error { _, err := Optimize(big(1e9), BaseStock, SearchOptions{}); return err }, "demand"},
 		{"K=1e15", func() error { _, err := Optimize(withK(1e15), SS, SearchOptions{}); return err }, "order_cost"},
 		{"K=1e15 s-nQ", func() error { _, err := Optimize(withK(1e15), SNQ, SearchOptions{}); return err }, "order_cost"},
-		{"wide support", func() error { _, err := Evaluate(big(1e6), Policy{Kind: BaseStock, OrderUpTo: 1e6}, Options{MaxStates: 1000}); return err }, "demand"},
+		{"wide support", func() error {
+			_, err := Evaluate(big(1e6), Policy{Kind: BaseStock, OrderUpTo: 1e6}, Options{MaxStates: 1000})
+			return err
+		}, "demand"},
 	} {
 		err := c.run()
 		var se *SizeError
