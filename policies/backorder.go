@@ -286,6 +286,13 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		FlowBalance: math.Abs(ordered.Value() - mean),
 	}
 	if opt.Levels {
+		if xl1 != nil {
+			xhi := xl1.Bound(convolutionTail)
+			if w := float64(len(c.pi)) * (float64(xhi) + 1); w > maxLevelsWork {
+				return nil, &SizeError{Chain: "distribution of net inventory", Bound: w, Limit: int(maxLevelsWork), What: "multiply-adds",
+					Reason: fmt.Sprintf("%v has %d positions and lead-time demand spans %d units", p, len(c.pi), xhi+1), LimitField: "levels work limit"}
+			}
+		}
 		e.Levels = backorderLevels(c, xl1)
 	}
 	return e, nil
@@ -335,6 +342,10 @@ func checkLossTable(p Policy, x inventory.Distribution, limit int) error {
 	return &SizeError{Chain: "loss tables of lead-time demand for " + p.String(), Bound: n, Limit: limit, What: "entries",
 		Input: field, Value: strconv.Itoa(value), Bytes: n * bytesPerPosition}
 }
+
+// maxLevelsWork bounds the multiply-adds of backorderLevels (states times
+// the span of lead-time demand; some seconds of work).
+const maxLevelsWork = 1e10
 
 // solvePosition builds and solves the inventory-position chain of p; it
 // also returns the loss table of one period's demand on 0..top-s.

@@ -74,8 +74,9 @@ func (e *SizeError) Message(name func(field string) string) string {
 
 // limitUnit is the unit of the limit for a count of what.
 func limitUnit(what string) string {
-	if what == "transitions" {
-		return "transitions"
+	switch what {
+	case "transitions", "multiply-adds":
+		return what
 	}
 	return "states"
 }
