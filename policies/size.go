@@ -75,7 +75,7 @@ func (e *SizeError) Message(name func(field string) string) string {
 // limitUnit is the unit of the limit for a count of what.
 func limitUnit(what string) string {
 	switch what {
-	case "transitions", "multiply-adds":
+	case "transitions", "multiply-adds", "operations":
 		return what
 	}
 	return "states"
