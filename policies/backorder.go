@@ -24,6 +24,15 @@ type positionChain struct {
 	// stride is 1, or for s-nQ the index g of the subgroup of positions
 	// reachable from top: state i is then Y = top - i*g.
 	stride int
+	n      int // states (m is nil when solved without a matrix)
+}
+
+// states returns the number of states of the chain.
+func (c *positionChain) states() int {
+	if c.m != nil {
+		return c.m.Len()
+	}
+	return c.n
 }
 
 // ip returns the inventory position of state i.
@@ -233,7 +242,15 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		return nil, fmt.Errorf("%v: %w", p, err)
 	}
 
-	c, dtab, err := solvePosition(dist, p, opt)
+	var (
+		c    *positionChain
+		dtab lossTable
+	)
+	if m := opt.Chain.Method; p.Kind != SNQ && (m == "" || m == chain.MethodAuto) {
+		c, dtab, err = solveRenewal(dist, p, opt)
+	} else {
+		c, dtab, err = solvePosition(dist, p, opt)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -280,7 +297,7 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	e := &Evaluation{
 		Policy:      p,
 		Figures:     f,
-		States:      c.m.Len(),
+		States:      c.states(),
 		Diagnostics: c.diag,
 		Neglected:   max(c.negl, inventory.Neglected(dist), neglL, neglL1, tL.neglected, tL1.neglected, dtab.neglected),
 		FlowBalance: math.Abs(ordered.Value() - mean),
