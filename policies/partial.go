@@ -135,7 +135,14 @@ const lowerNegligible = 1e-300
 // part left out. If the terms decay too slowly to finish in tailSumCap
 // steps, it falls back to the identity E[(X-y)^+] = E[X] - y + E[(y-X)^+]
 // with below = E[(from-X)^+].
+//
+// When from lies below the mean the identity is used at once: both terms
+// mu - from and below are positive, so nothing cancels, and the tails
+// between from and the mean (O(mean) of them) are not summed one by one.
 func tailSum(x inventory.Distribution, from int, mu, below float64) (sum, neglected float64) {
+	if float64(from) < mu {
+		return mu - float64(from) + below, 0
+	}
 	// A truncated convolution counts its neglected mass in every tail;
 	// where that mass lies is unknown, so it is left out here and
 	// reported with the evaluation.
