@@ -15,6 +15,11 @@ const (
 	Lost      Mode = "lost"
 )
 
+// MaxLeadTime is the longest lead time a System may have, in periods: far
+// beyond any plan, and small enough that L + 1 and L times a demand mean
+// stay exact.
+const MaxLeadTime = 1_000_000_000
+
 // System is a single item at a single location under periodic review; see
 // the package documentation for the order of events within a period.
 type System struct {
@@ -33,8 +38,8 @@ func (s System) Validate() error {
 	if s.Demand == nil {
 		return &FieldError{Field: "demand", Want: "a demand distribution (see Parse)"}
 	}
-	if s.LeadTime < 0 {
-		return &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime), Want: "a whole number of periods >= 0"}
+	if s.LeadTime < 0 || s.LeadTime > MaxLeadTime {
+		return &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime), Want: "a whole number of periods from 0 to 1000000000"}
 	}
 	for _, c := range []struct {
 		name string

@@ -212,10 +212,12 @@ func gcd(a, b int) int {
 //	E[min(D, (y - X_L)^+)] = E[D] - (E[(X_{L+1} - y)^+] - E[(X_L - y)^+]),
 //
 // by D - min(D, a^+) = (D - a^+)^+ = (X_{L+1} - y)^+ - (X_L - y)^+ (check
-// the cases X_L >= y and X_L < y), whichever of the two differences is the
-// smaller: the unserved part is then a difference of two small tail sums
-// of closed-form tails, each accurate to its last digits, and the fill rate
-// is 1 - unserved/E[D] to round-off.
+// the cases X_L >= y and X_L < y), at the positions y above E[X_L]: the
+// unserved part is there a difference of two tail sums of closed-form tails
+// (partial.go), each accurate to its last digits, and the fill rate is
+// 1 - unserved/E[D] to round-off. At or below E[X_L] (where the served
+// part is not near E[D], and far below 0 where E[(X-y)^+] = E[X] - y
+// rounds away E[X]) the direct difference is kept.
 func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation, error) {
 	s, top := p.Levels()
 	n := top - s
@@ -255,6 +257,10 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		return nil, err
 	}
 	lo := s + 1
+	meanL := 0.0
+	if xl != nil {
+		meanL = xl.Mean()
+	}
 	tL := newLossTable(xl, lo, top)
 	tL1 := newLossTable(xl1, lo, top)
 
@@ -272,7 +278,7 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		// neither subtracts nearly equal numbers (see the doc comment).
 		direct := max(tL.below[k]-tL1.below[k], 0)
 		missed := max(tL1.above[k]-tL.above[k], 0)
-		if missed <= direct {
+		if float64(y) > meanL {
 			fullW.Add(w)
 			short.Add(w * missed)
 		} else {

@@ -65,6 +65,10 @@ func (p Policy) Levels() (s, top int) {
 func (p Policy) Validate(mode inventory.Mode) error {
 	switch p.Kind {
 	case BaseStock:
+		if p.OrderUpTo == math.MinInt {
+			return &inventory.FieldError{Field: "order_up_to", Value: strconv.Itoa(p.OrderUpTo),
+				Want: fmt.Sprintf("an order-up-to level above %d (base-stock S orders when the position is at most S - 1)", math.MinInt)}
+		}
 		if mode == inventory.Lost && p.OrderUpTo < 0 {
 			return fmt.Errorf("order-up-to level %d: want >= 0 in lost mode", p.OrderUpTo)
 		}

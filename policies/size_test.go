@@ -173,3 +173,22 @@ func TestSizeErrorMessage(t *testing.T) {
 		t.Errorf("Error = %q", got)
 	}
 }
+
+// TestFarBelowZero checks levels near the bottom of the int range: nothing
+// is served (fill rate 0, stockout 1), where E[(X-y)^+] = E[X] - y rounds
+// E[X] away and the unserved-demand form of the fill rate would give 1.
+func TestFarBelowZero(t *testing.T) {
+	sys := optSystem(optPoisson(t, 9), 2, 0.4, 12, 0)
+	for _, p := range []Policy{{Kind: BaseStock, OrderUpTo: math.MinInt + 1}, {Kind: SS, ReorderPoint: math.MinInt, OrderUpTo: math.MinInt + 3}, {Kind: BaseStock, OrderUpTo: -2_000_000_000}} {
+		e, err := Evaluate(sys, p, Options{})
+		if err != nil {
+			t.Fatalf("%v: %v", p, err)
+		}
+		if f := e.Figures; f.FillRate != 0 || f.StockoutProbability != 1 || f.MeanOnHand != 0 {
+			t.Errorf("%v: fill %g stockout %g on hand %g, want 0, 1, 0", p, f.FillRate, f.StockoutProbability, f.MeanOnHand)
+		}
+	}
+	if _, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: math.MinInt}, Options{}); err == nil {
+		t.Error("S = MinInt: no error")
+	}
+}

@@ -86,6 +86,9 @@ func TestEngineRefusals(t *testing.T) {
 		{ev("--order-up-to", "12", "--max-states", "1e10"), 2, []string{"--max-states 1e10:", "2147483647"}},
 		{ev("--order-up-to", "12", "--max-states", "-1"), 2, []string{"--max-states -1:"}},
 		{ev("--order-up-to", "12", "--lead-time", "99999999999999999999"), 2, []string{"--lead-time 99999999999999999999:"}},
+		{ev("--order-up-to", "12", "--lead-time", "4294967297"), 2, []string{"--lead-time 4294967297:", "from 0 to 1000000000"}},
+		{ev("--order-up-to", "12", "--lead-time", "9223372036854775807"), 2, []string{"--lead-time 9223372036854775807:", "from 0 to 1000000000"}},
+		{ev("--order-up-to", "-9223372036854775808"), 2, []string{"--order-up-to -9223372036854775808:"}},
 	} {
 		code, out, errs := runSafe(t, c.args...)
 		ok := code == c.code && out == "" && strings.Count(errs, "\n") == 1 && strings.HasPrefix(errs, "ergostock: ")
