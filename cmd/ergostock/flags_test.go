@@ -57,7 +57,7 @@ func TestEngineRefusals(t *testing.T) {
 		{opt("poisson:mean=9", "--order-cost", "1e15", "--policy", "s-nQ"), 1, []string{"--order-cost 1e15:", "economic order quantity"}},
 		{opt("gamma:mean=1e-9,sd=1"), 1, []string{"--demand gamma:mean=1e-09,sd=1:", "puts all its mass at 0"}},
 		{opt("poisson:mean=1e7"), 1, []string{"--demand poisson:mean=1e+07:", "--max-states"}},
-		{[]string{"evaluate", "--demand", "normal:mean=100,sd=30", "--holding-cost", "1", "--shortage-cost", "9", "--order-up-to", "300", "--lead-time", "4294967297"}, 1, []string{"--demand normal:mean=100,sd=30:", "4294967297-period sum"}},
+		{[]string{"evaluate", "--demand", "normal:mean=100,sd=30", "--holding-cost", "1", "--shortage-cost", "9", "--order-up-to", "300", "--lead-time", "400000000"}, 1, []string{"--demand normal:mean=100,sd=30:", "400000000-period sum"}},
 		{opt("poisson:mean=9", "--lead-time", "1000000000"), 1, []string{"--demand poisson:mean=9:", "1000000001 periods", "--max-states"}},
 		{opt("pmf:0=0.5,1000000=0.5", "--order-cost", "50", "--policy", "s-nQ"), 1, []string{"--demand pmf:0=0.5,1000000=0.5:", "plan in units of 1000000"}},
 		{opt("poisson:mean=9", "--holding-cost", "1e-300", "--order-cost", "1"), 1, []string{"--order-cost 1:", "economic order quantity"}},
