@@ -38,7 +38,10 @@ func (s System) Validate() error {
 	if s.Demand == nil {
 		return &FieldError{Field: "demand", Want: "a demand distribution (see Parse)"}
 	}
-	if s.LeadTime < 0 || s.LeadTime > MaxLeadTime {
+	if s.LeadTime < 0 {
+		return &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime), Want: "a whole number of periods >= 0"}
+	}
+	if s.LeadTime > MaxLeadTime {
 		return &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime), Want: "a whole number of periods from 0 to 1000000000"}
 	}
 	for _, c := range []struct {
@@ -77,7 +80,7 @@ func checkRepresentable(d Distribution) error {
 		}
 	default:
 		if !(m > 0) {
-			return &FieldError{Field: "demand", Value: d.String(), Want: "a distribution with a positive mean (this one is always 0)"}
+			return &FieldError{Field: "demand", Value: d.String(), Want: "a distribution with a positive, finite mean"}
 		}
 		if !(up > 0) {
 			return &FieldError{Field: "demand", Value: d.String(),
