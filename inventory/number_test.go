@@ -2,6 +2,8 @@ package inventory
 
 import (
 	"errors"
+	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -91,4 +93,33 @@ func TestUnrepresentable(t *testing.T) {
 			t.Errorf("%s: err = %v, want a demand error containing %q", c.spec, err, c.want)
 		}
 	}
+}
+
+// FuzzParseNumber checks the rule against strconv: what ParseNumber
+// accepts is made of digits, signs, one point and an exponent mark only,
+// and reads as strconv.ParseFloat reads it; ParseInt agrees with
+// ParseNumber on the whole numbers it accepts.
+func FuzzParseNumber(f *testing.F) {
+	for _, s := range []string{"9", "-0.5", "1e3", "9_000", "0x10", "inf", ".5", "5.", "1e400", "9223372036854775807", "2.0"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		x, err := ParseNumber(s)
+		if err != nil {
+			if _, ierr := ParseInt(s); ierr == nil {
+				t.Fatalf("ParseInt(%q) accepts what ParseNumber refuses", s)
+			}
+			return
+		}
+		if strings.Trim(s, "0123456789+-.eE") != "" {
+			t.Fatalf("ParseNumber(%q) accepted a character outside the rule", s)
+		}
+		y, serr := strconv.ParseFloat(s, 64)
+		if serr != nil || x != y {
+			t.Fatalf("ParseNumber(%q) = %v, strconv %v, %v", s, x, y, serr)
+		}
+		if i, err := ParseInt(s); err == nil && float64(i) != x && math.Abs(x) < 1<<53 {
+			t.Fatalf("ParseInt(%q) = %d, ParseNumber %v", s, i, x)
+		}
+	})
 }
