@@ -55,8 +55,8 @@ var families = map[string][]string{
 //	pmf:0=P0,1=P1,...          (probabilities summing to 1 within 1e-9)
 //
 // Spaces around names, keys and values are ignored and keys may come in
-// any order; numbers are read by strconv.ParseFloat and must be finite and
-// > 0 (pmf probabilities >= 0). Errors are *FieldError values with Field
+// any order; numbers are read by ParseNumber (plain decimal, finite) and
+// must be > 0 (pmf probabilities >= 0; support points by ParseInt). Errors are *FieldError values with Field
 // "demand" and Value the spec as given.
 func Parse(spec string) (Distribution, error) {
 	fail := func(want string) (Distribution, error) {
@@ -97,9 +97,9 @@ func Parse(spec string) (Distribution, error) {
 		if _, dup := vals[k]; dup {
 			return fail(k + " given once, not twice")
 		}
-		x, err := strconv.ParseFloat(v, 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-			return fail(k + " a finite number, not " + strconv.Quote(v))
+		x, err := ParseNumber(v)
+		if err != nil {
+			return fail(k + " a finite number, not " + strconv.Quote(v) + " (plain decimal, as 9, 0.5 or 1e3; no underscores, hex, inf or nan)")
 		}
 		vals[k] = x
 	}
@@ -141,15 +141,16 @@ func parsePMF(spec, params string) (Distribution, error) {
 		if !ok {
 			return fail("pmf:0=P0,1=P1,..., with each point as k=probability, not " + strconv.Quote(strings.TrimSpace(kv)))
 		}
-		i, err := strconv.Atoi(k)
-		if err != nil || i < 0 || i > MaxSupport || strings.HasPrefix(k, "+") {
+		i64, err := ParseInt(k)
+		i := int(i64)
+		if err != nil || i64 < 0 || i64 > MaxSupport {
 			return fail("pmf support points that are whole numbers 0.." + strconv.Itoa(MaxSupport) + ", not " + strconv.Quote(k))
 		}
 		if _, dup := m[i]; dup {
 			return fail("each pmf support point once, not " + strconv.Itoa(i) + " twice")
 		}
-		x, err := strconv.ParseFloat(v, 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) || x < 0 {
+		x, err := ParseNumber(v)
+		if err != nil || x < 0 {
 			return fail("pmf probabilities that are finite numbers >= 0, not " + k + "=" + strconv.Quote(v))
 		}
 		m[i] = x

@@ -1,6 +1,9 @@
 package inventory
 
-import "fmt"
+import (
+	"errors"
+	"fmt"
+)
 
 // FieldError reports an unusable value of one named input. Field is the
 // snake_case name shared by the command-line flags (with dashes) and the
@@ -20,3 +23,9 @@ func (e *FieldError) Error() string {
 }
 
 func (e *FieldError) Unwrap() error { return e.Err }
+
+// ErrLimit is wrapped by the errors of inputs that are well formed but lie
+// beyond what the evaluation can hold or resolve (a law double precision
+// cannot carry, a service floor finer than the figures' accuracy): a
+// command reports them with exit status 1, not as command-line mistakes.
+var ErrLimit = errors.New("beyond the limits of the evaluation")

@@ -78,7 +78,7 @@ func Sum(d Distribution, n int) (Distribution, error) {
 	}
 	if convolutionWork(len(f), n, -1) > MaxConvolution {
 		return nil, &FieldError{Field: "demand", Value: d.String(),
-			Want: fmt.Sprintf("a demand whose %d-period sum needs at most 1e9 operations to tabulate (its table has %d points; use a narrower demand or a shorter lead time)", n, len(f))}
+			Want: fmt.Sprintf("a demand whose %d-period sum needs at most 1e9 operations to tabulate (its table has %d points; use a narrower demand or a shorter lead time)", n, len(f)), Err: ErrLimit}
 	}
 	w := power(f, n, -1)
 	t := newTable(trim(w), 1, -math.Expm1(fn*math.Log1p(-cut)))
@@ -102,7 +102,7 @@ func SumUpTo(d Distribution, n, K int) ([]float64, error) {
 	default:
 		if n > 1 && convolutionWork(K+1, n, K+1) > MaxConvolution {
 			return nil, &FieldError{Field: "demand", Value: d.String(),
-				Want: fmt.Sprintf("a table bound K whose %d-period convolution on 0..K needs at most 1e9 operations, not K = %d", n, K)}
+				Want: fmt.Sprintf("a table bound K whose %d-period convolution on 0..K needs at most 1e9 operations, not K = %d", n, K), Err: ErrLimit}
 		}
 	}
 	out := make([]float64, K+1)
@@ -148,11 +148,11 @@ func factor(d Distribution, n int) (f []float64, cut float64, err error) {
 	b := d.Bound(SumNeglect / float64(n))
 	if convolutionWork(b+1, n, -1) > MaxConvolution {
 		return nil, 0, &FieldError{Field: "demand", Value: d.String(),
-			Want: fmt.Sprintf("a demand whose %d-period sum needs at most 1e9 operations to tabulate (its table has %d points; use a narrower demand or a shorter lead time)", n, b+1)}
+			Want: fmt.Sprintf("a demand whose %d-period sum needs at most 1e9 operations to tabulate (its table has %d points; use a narrower demand or a shorter lead time)", n, b+1), Err: ErrLimit}
 	}
 	if b*n >= maxTable {
 		return nil, 0, &FieldError{Field: "demand", Value: d.String(),
-			Want: fmt.Sprintf("a demand whose sum over %d periods fits a table of %d points", n, maxTable)}
+			Want: fmt.Sprintf("a demand whose sum over %d periods fits a table of %d points", n, maxTable), Err: ErrLimit}
 	}
 	f = make([]float64, b+1)
 	for k := range f {

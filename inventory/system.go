@@ -3,6 +3,7 @@ package inventory
 import (
 	"math"
 	"strconv"
+	"strings"
 )
 
 // Mode says what happens to demand that cannot be served at once.
@@ -13,6 +14,11 @@ const (
 	Backorder Mode = "backorder"
 	Lost      Mode = "lost"
 )
+
+// MaxLeadTime is the longest lead time a System may have, in periods: far
+// beyond any plan, and small enough that L + 1 and L times a demand mean
+// stay exact.
+const MaxLeadTime = 1_000_000_000
 
 // System is a single item at a single location under periodic review; see
 // the package documentation for the order of events within a period.
@@ -35,6 +41,9 @@ func (s System) Validate() error {
 	if s.LeadTime < 0 {
 		return &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime), Want: "a whole number of periods >= 0"}
 	}
+	if s.LeadTime > MaxLeadTime {
+		return &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime), Want: "a whole number of periods from 0 to 1000000000"}
+	}
 	for _, c := range []struct {
 		name string
 		v    float64
@@ -48,17 +57,45 @@ func (s System) Validate() error {
 	default:
 		return &FieldError{Field: "unmet", Value: string(s.Mode), Want: "backorder or lost"}
 	}
-	if m := s.Demand.Mean(); !(m > 0) || math.IsInf(m, 0) {
-		return &FieldError{Field: "demand", Value: s.Demand.String(), Want: "a distribution with a positive, finite mean"}
+	return checkRepresentable(s.Demand)
+}
+
+// checkRepresentable refuses a demand law that double precision cannot
+// carry: one whose computed mean is not positive and finite, or whose mass
+// away from 0, P(D >= 1), rounds to nothing although its mean is positive
+// (a negbin with a huge variance, a discretised gamma or normal with a
+// mean far below a unit): every figure would then come from a tail that
+// the tables cannot see. The message says which case applies.
+func checkRepresentable(d Distribution) error {
+	m := d.Mean()
+	up := d.Tail(1)
+	if math.IsNaN(m) || math.IsInf(m, 0) || m < 0 {
+		return &FieldError{Field: "demand", Value: d.String(), Want: "a distribution with a positive, finite mean, not " + ftoa(m)}
+	}
+	switch d.(type) {
+	case Normal, Gamma:
+		if !(m > 0) || !(up > 0) {
+			return &FieldError{Field: "demand", Value: d.String(),
+				Want: "a law that keeps some demand after rounding to whole units: this one puts all its mass at 0 in double precision (P(D >= 1) = " + ftoa(up) + ", mean of the rounded law " + ftoa(m) + "); plan in smaller units so the mean is not far below one unit", Err: ErrLimit}
+		}
+	default:
+		if !(m > 0) {
+			return &FieldError{Field: "demand", Value: d.String(), Want: "a distribution with a positive, finite mean"}
+		}
+		if !(up > 0) {
+			return &FieldError{Field: "demand", Value: d.String(),
+				Want: "a law whose mass away from 0 double precision can hold: this one has mean " + ftoa(m) + " but P(D >= 1) rounds to 0, so its mean lies in a tail too thin and too far out to tabulate (for negbin the variance is too large for the mean)", Err: ErrLimit}
+		}
 	}
 	return nil
 }
 
-// ParseMode reads "backorder" or "lost".
+// ParseMode reads "backorder" or "lost", in any case and with surrounding
+// spaces ignored: the one rule of the command line and the items file.
 func ParseMode(v string) (Mode, error) {
-	switch Mode(v) {
+	switch m := Mode(strings.ToLower(strings.TrimSpace(v))); m {
 	case Backorder, Lost:
-		return Mode(v), nil
+		return m, nil
 	}
 	return "", &FieldError{Field: "unmet", Value: v, Want: "backorder or lost"}
 }

@@ -50,7 +50,8 @@ func TestParseMode(t *testing.T) {
 		in   string
 		want Mode
 		ok   bool
-	}{{"backorder", Backorder, true}, {"lost", Lost, true}, {"Lost", "", false}, {"", "", false}} {
+	}{{"backorder", Backorder, true}, {"lost", Lost, true}, {"Lost", Lost, true}, {" LOST ", Lost, true},
+		{"BackOrder", Backorder, true}, {"", "", false}, {"lost sales", "", false}} {
 		m, err := ParseMode(c.in)
 		if (err == nil) != c.ok || m != c.want {
 			t.Errorf("ParseMode(%q) = %q, %v", c.in, m, err)

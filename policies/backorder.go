@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 
 	"ergostock/chain"
 	"ergostock/inventory"
@@ -23,13 +24,23 @@ type positionChain struct {
 	// stride is 1, or for s-nQ the index g of the subgroup of positions
 	// reachable from top: state i is then Y = top - i*g.
 	stride int
+	n      int // states (m is nil when solved without a matrix)
+}
+
+// states returns the number of states of the chain.
+func (c *positionChain) states() int {
+	if c.m != nil {
+		return c.m.Len()
+	}
+	return c.n
 }
 
 // ip returns the inventory position of state i.
 func (c *positionChain) ip(i int) int { return c.top - i*c.stride }
 
 // negligibleTransition is the probability below which a transition of the
-// inventory-position chain (or of the lost-sales chain, see buildLost) is
+// inventory-position chain (there relative to P(D >= 1), the probability of
+// leaving a position; or of the lost-sales chain, see buildLost) is
 // not stored unless Options.Exhaustive is set: its mass moves to the
 // restart at top (lost sales: to the lump to on-hand 0), the row stays stochastic, and the
 // largest mass so moved in any row is reported in Evaluation.Neglected.
@@ -193,18 +204,29 @@ func gcd(a, b int) int {
 //	E[ordered/period]    = E[D]  (flow balance)
 //
 // The middle identity for the fill rate is min(D, a^+) = a^+ - (a-D)^+ for
-// a = Y - X_L, with X_{L+1} = X_L + D and D independent of X_L.
+// a = Y - X_L, with X_{L+1} = X_L + D and D independent of X_L. Where
+// little demand goes unserved (y far above the lead-time demand, a slow
+// mover) that difference of two nearly equal expectations loses every
+// digit, so per position the served demand is taken instead from
+//
+//	E[min(D, (y - X_L)^+)] = E[D] - (E[(X_{L+1} - y)^+] - E[(X_L - y)^+]),
+//
+// by D - min(D, a^+) = (D - a^+)^+ = (X_{L+1} - y)^+ - (X_L - y)^+ (check
+// the cases X_L >= y and X_L < y), at the positions y above E[X_L]: the
+// unserved part is there a difference of two tail sums of closed-form tails
+// (partial.go), each accurate to its last digits, and the fill rate is
+// 1 - unserved/E[D] to round-off. At or below E[X_L] (where the served
+// part is not near E[D], and far below 0 where E[(X-y)^+] = E[X] - y
+// rounds away E[X]) the direct difference is kept.
 func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation, error) {
 	s, top := p.Levels()
 	n := top - s
 	dist := sys.Demand
 	mean := dist.Mean()
 
-	c, dtab, err := solvePosition(dist, p, opt)
-	if err != nil {
+	if err := checkPositions(p, opt.MaxStates); err != nil {
 		return nil, err
 	}
-
 	xl, neglL, err := leadTimeDemand(dist, sys.LeadTime)
 	if err != nil {
 		return nil, err
@@ -213,11 +235,36 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	if err != nil {
 		return nil, err
 	}
+	for _, x := range []inventory.Distribution{xl, xl1} {
+		if err := checkLossTable(p, x, opt.MaxStates); err != nil {
+			return nil, err
+		}
+	}
+	if err := ctxErr(opt.Context); err != nil {
+		return nil, fmt.Errorf("%v: %w", p, err)
+	}
+
+	var (
+		c    *positionChain
+		dtab lossTable
+	)
+	if m := opt.Chain.Method; p.Kind != SNQ && (m == "" || m == chain.MethodAuto) {
+		c, dtab, err = solveRenewal(dist, p, opt)
+	} else {
+		c, dtab, err = solvePosition(dist, p, opt)
+	}
+	if err != nil {
+		return nil, err
+	}
 	lo := s + 1
+	meanL := 0.0
+	if xl != nil {
+		meanL = xl.Mean()
+	}
 	tL := newLossTable(xl, lo, top)
 	tL1 := newLossTable(xl1, lo, top)
 
-	var onHand, back, stockout, served, freq, ordered inventory.CompensatedSum
+	var onHand, back, stockout, served, fullW, short, freq, ordered inventory.CompensatedSum
 	for i, w := range c.pi {
 		if w == 0 {
 			continue
@@ -227,13 +274,22 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		onHand.Add(w * tL1.below[k])
 		back.Add(w * tL1.above[k])
 		stockout.Add(w * tL1.over[k])
-		served.Add(w * max(tL.below[k]-tL1.below[k], 0))
+		// Served demand from the smaller of its two exact forms, so that
+		// neither subtracts nearly equal numbers (see the doc comment).
+		direct := max(tL.below[k]-tL1.below[k], 0)
+		missed := max(tL1.above[k]-tL.above[k], 0)
+		if float64(y) > meanL {
+			fullW.Add(w)
+			short.Add(w * missed)
+		} else {
+			served.Add(w * direct)
+		}
 		a := y - s
 		freq.Add(w * dtab.over[a-1])
 		ordered.Add(w * orderedFrom(dist, dtab, p, a, n))
 	}
 	f := inventory.Figures{
-		FillRate:            clamp01(served.Value() / mean),
+		FillRate:            clamp01(fullW.Value() - short.Value()/mean + served.Value()/mean),
 		StockoutProbability: clamp01(stockout.Value()),
 		MeanOnHand:          onHand.Value(),
 		MeanBackorders:      back.Value(),
@@ -247,16 +303,72 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	e := &Evaluation{
 		Policy:      p,
 		Figures:     f,
-		States:      c.m.Len(),
+		States:      c.states(),
 		Diagnostics: c.diag,
 		Neglected:   max(c.negl, inventory.Neglected(dist), neglL, neglL1, tL.neglected, tL1.neglected, dtab.neglected),
 		FlowBalance: math.Abs(ordered.Value() - mean),
 	}
 	if opt.Levels {
+		if xl1 != nil {
+			xhi := xl1.Bound(convolutionTail)
+			if w := float64(len(c.pi)) * (float64(xhi) + 1); w > maxLevelsWork {
+				return nil, &SizeError{Chain: "distribution of net inventory", Bound: w, Limit: int(maxLevelsWork), What: "multiply-adds",
+					Reason: fmt.Sprintf("%v has %d positions and lead-time demand spans %d units", p, len(c.pi), xhi+1), LimitField: "levels work limit"}
+			}
+		}
 		e.Levels = backorderLevels(c, xl1)
 	}
 	return e, nil
 }
+
+// checkPositions refuses, before anything is allocated, an
+// inventory-position chain of more than limit states, naming the level that
+// drives it. The count is computed in float64, so levels near the ends of
+// the int range cannot wrap it.
+func checkPositions(p Policy, limit int) error {
+	var n float64
+	field, value := "order_up_to", p.OrderUpTo
+	switch p.Kind {
+	case BaseStock:
+		return nil
+	case SS:
+		n = float64(p.OrderUpTo) - float64(p.ReorderPoint)
+		if mag(p.ReorderPoint) > mag(p.OrderUpTo) {
+			field, value = "reorder_point", p.ReorderPoint
+		}
+	case SNQ:
+		n = float64(p.OrderMultiple)
+		field, value = "order_multiple", p.OrderMultiple
+	}
+	if n <= float64(limit) {
+		return nil
+	}
+	return &SizeError{Chain: "inventory-position chain of " + p.String(), Bound: n, Limit: limit, What: "states",
+		Input: field, Value: strconv.Itoa(value), Bytes: n * bytesPerPosition}
+}
+
+// checkLossTable refuses, before it is allocated, a loss table of the
+// demand law x over the positions of p wider than limit entries: the table
+// runs from where x has mass down to the reorder point up to the highest
+// position, so a level far above the demand (or far below it) needs one
+// entry per unit in between.
+func checkLossTable(p Policy, x inventory.Distribution, limit int) error {
+	s, top := p.Levels()
+	n := lossEntries(x, s+1, top)
+	if n <= float64(limit) {
+		return nil
+	}
+	field, value := "order_up_to", p.OrderUpTo
+	if p.Kind == SNQ || (p.Kind == SS && mag(p.ReorderPoint) > mag(p.OrderUpTo)) {
+		field, value = "reorder_point", p.ReorderPoint
+	}
+	return &SizeError{Chain: "loss tables of lead-time demand for " + p.String(), Bound: n, Limit: limit, What: "entries",
+		Input: field, Value: strconv.Itoa(value), Bytes: n * bytesPerPosition}
+}
+
+// maxLevelsWork bounds the multiply-adds of backorderLevels (states times
+// the span of lead-time demand; some seconds of work).
+const maxLevelsWork = 1e10
 
 // solvePosition builds and solves the inventory-position chain of p; it
 // also returns the loss table of one period's demand on 0..top-s.
@@ -295,7 +407,10 @@ func solvePosition(dist inventory.Distribution, p Policy, opt Options) (*positio
 			return nil, lossTable{}, fmt.Errorf("%v: %w", p, err)
 		}
 	default:
-		floor := negligibleTransition
+		// Relative to the mass that leaves a position, P(D >= 1): for a slow
+		// mover (P(D >= 1) = 1e-300, say) an absolute floor would fold every
+		// move into the restart and pin the chain at top.
+		floor := negligibleTransition * dist.Tail(1)
 		if opt.Exhaustive {
 			floor = 0
 		}

@@ -2,8 +2,11 @@ package policies
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
+	"sort"
+	"strconv"
 
 	"ergostock/chain"
 	"ergostock/inventory"
@@ -112,10 +115,134 @@ func Evaluate(sys inventory.System, p Policy, opt Options) (*Evaluation, error) 
 	if opt.Chain.Context == nil {
 		opt.Chain.Context = opt.Context
 	}
-	if sys.Mode == inventory.Lost {
-		return evaluateLost(sys, p, opt)
+	if err := checkDemand(sys.Demand, opt.MaxStates); err != nil {
+		return nil, err
 	}
-	return evaluateBackorder(sys, p, opt)
+	var (
+		e   *Evaluation
+		err error
+	)
+	if sys.Mode == inventory.Lost {
+		e, err = evaluateLost(sys, p, opt)
+	} else {
+		e, err = evaluateBackorder(sys, p, opt)
+	}
+	if err != nil {
+		return nil, err
+	}
+	if err := checkFigures(sys, e); err != nil {
+		return nil, err
+	}
+	return e, nil
+}
+
+// ctxErr returns the error of ctx, or nil for a nil or live context.
+func ctxErr(ctx context.Context) error {
+	if ctx == nil {
+		return nil
+	}
+	return ctx.Err()
+}
+
+// mag returns |x| as a float64 (no overflow at math.MinInt).
+func mag(x int) float64 { return math.Abs(float64(x)) }
+
+// SupportEps is the tail probability at which the width of a demand law's
+// support is measured for the state limit (see checkDemand).
+const SupportEps = 1e-12
+
+// checkDemand refuses a demand law whose support is too wide for the state
+// limit: the units between its SupportEps quantile and Bound(SupportEps)
+// (where all but 2e-12 of the mass lies) number more than limit. Every
+// table over the positions a policy visits spans at least that range, so
+// such a law cannot be planned in these units; the message suggests larger
+// ones.
+func checkDemand(d inventory.Distribution, limit int) error {
+	hi := d.Bound(SupportEps)
+	lo := sort.Search(hi+1, func(k int) bool { return d.CDF(k) > SupportEps })
+	if w := span(lo, hi); w > float64(limit) {
+		return &SizeError{Chain: "tables of demand between its 1e-12 quantiles (" + strconv.Itoa(lo) + ".." + strconv.Itoa(hi) + ")",
+			Bound: w, Limit: limit, What: "entries", Input: "demand", Value: d.String(), Bytes: w * bytesPerPosition,
+			Reason: "its support is too wide for the state limit (plan in larger units, e.g. packs of 100)"}
+	}
+	return nil
+}
+
+// checkFigures refuses an evaluation whose figures are not finite or are
+// negative: costs of rates near the float64 range overflow (1e308 times a
+// mean on hand of 10 is +Inf). It names the cost rates, whose size is the
+// only way a valid system reaches an overflow.
+func checkFigures(sys inventory.System, e *Evaluation) error {
+	for _, f := range e.Figures.Fields() {
+		if isFinite(f.Value) && f.Value >= 0 {
+			continue
+		}
+		if costField(sys, f.Name) == "" {
+			return fmt.Errorf("%v: %s is %v, not a finite figure >= 0: %w", e.Policy, f.Label, f.Value, ErrNonFinite)
+		}
+		return &inventory.FieldError{Field: costField(sys, f.Name), Value: costValue(sys, f.Name),
+			Want: fmt.Sprintf("cost rates whose figures fit a float64: %s of %v is %v (keep each rate times its quantity below 1e308)", f.Label, e.Policy, f.Value),
+			Err:  ErrOverflow}
+	}
+	for _, d := range []struct {
+		name string
+		v    float64
+	}{{"residual", e.Diagnostics.Residual}, {"balance", e.Diagnostics.Balance}, {"neglected mass", e.Neglected}, {"flow balance", e.FlowBalance}} {
+		if !isFinite(d.v) {
+			return fmt.Errorf("%v: the solver's %s is %v: %w", e.Policy, d.name, d.v, ErrNonFinite)
+		}
+	}
+	return nil
+}
+
+// ErrNonFinite is wrapped by the error of an evaluation whose physical
+// figures or diagnostics are not finite (a failed solve).
+var ErrNonFinite = errors.New("the evaluation gave a non-finite figure")
+
+// ErrOverflow is wrapped by the errors of figures that overflow.
+var ErrOverflow = errors.New("figures beyond the float64 range")
+
+// costField names the cost rate behind a figure (for messages).
+func costField(sys inventory.System, figure string) string {
+	switch figure {
+	case "holding_cost":
+		return "holding_cost"
+	case "shortage_cost":
+		return "shortage_cost"
+	case "ordering_cost":
+		return "order_cost"
+	case "purchase_cost":
+		return "unit_cost"
+	case "total_cost":
+	default:
+		return ""
+	}
+	// The total: the largest rate.
+	field, v := "holding_cost", sys.Holding
+	for _, c := range []struct {
+		f string
+		v float64
+	}{{"shortage_cost", sys.Shortage}, {"order_cost", sys.OrderCost}, {"unit_cost", sys.UnitCost}} {
+		if c.v > v {
+			field, v = c.f, c.v
+		}
+	}
+	return field
+}
+
+func costValue(sys inventory.System, figure string) string {
+	var v float64
+	switch costField(sys, figure) {
+	case "holding_cost":
+		v = sys.Holding
+	case "shortage_cost":
+		v = sys.Shortage
+	case "order_cost":
+		v = sys.OrderCost
+	case "unit_cost":
+		v = sys.UnitCost
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
 }
 
 // leadTimeDemand returns the law of the demand over n periods (nil for

@@ -11,27 +11,6 @@ import (
 	"ergostock/inventory"
 )
 
-// SizeError reports a chain too large to build under the limit
-// (Options.MaxStates, the --max-states flag of the command).
-type SizeError struct {
-	Chain string  // "lost-sales" or "inventory-position"
-	Bound float64 // upper bound on the count, e.g. C(top+L+1, L+1) states
-	Limit int
-	What  string // "states", "transitions" or "inventory positions"
-	// Counted is set when Bound is not an a-priori bound but the count
-	// reached while enumerating the reachable states, when it passed Limit.
-	Counted bool
-}
-
-func (e *SizeError) Error() string {
-	if e.Counted {
-		return fmt.Sprintf("%s chain has more than %d reachable %s (the a-priori bound is %.0f; raise --max-states, or lower the order-up-to level or the lead time)",
-			e.Chain, e.Limit, e.What, e.Bound)
-	}
-	return fmt.Sprintf("%s chain of up to %.0f %s exceeds the limit of %d (raise --max-states, or lower the order-up-to level or the lead time)",
-		e.Chain, e.Bound, e.What, e.Limit)
-}
-
 // transitionsPerState is how many stored transitions per allowed state the
 // lost-sales chain may hold: memory stays proportional to states times
 // transitions, and this caps the product.

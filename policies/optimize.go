@@ -2,6 +2,8 @@ package policies
 
 import (
 	"fmt"
+	"math"
+	"strconv"
 
 	"ergostock/inventory"
 )
@@ -112,10 +114,30 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 			return nil, &inventory.FieldError{Field: f.name, Value: fmt.Sprint(f.v), Want: "a probability strictly between 0 and 1"}
 		}
 	}
+	if fl.maxStockout != 0 && fl.maxStockout < ServiceResolution {
+		return nil, &inventory.FieldError{Field: "max_stockout_probability", Value: fmt.Sprint(fl.maxStockout),
+			Want: "a ceiling of at least 1e-12: service figures are resolved to about 1e-12 (round-off, folded transitions, truncated lead-time tables), so no policy can be shown to meet a smaller one",
+			Err:  ErrLimit}
+	}
+	if fl.minFill != 0 && fl.minFill > 1-ServiceResolution {
+		return nil, &inventory.FieldError{Field: "min_fill_rate", Value: fmt.Sprint(fl.minFill),
+			Want: "a floor of at most 1 - 1e-12: service figures are resolved to about 1e-12 (round-off, folded transitions, truncated lead-time tables), so no policy can be shown to meet a higher one",
+			Err:  ErrLimit}
+	}
 	switch kind {
 	case BaseStock, SS, SNQ:
 	default:
 		return nil, &inventory.FieldError{Field: "policy", Value: string(kind), Want: "base-stock, s-S or s-nQ"}
+	}
+	limit := opt.Eval.MaxStates
+	if limit <= 0 {
+		limit = DefaultMaxStates
+	}
+	if err := checkDemand(sys.Demand, limit); err != nil {
+		return nil, err
+	}
+	if err := checkCostScale(sys); err != nil {
+		return nil, err
 	}
 	if opt.MaxEvaluations < 0 {
 		return nil, fmt.Errorf("evaluation cap %d: want a count >= 1 (0 for the default %d)", opt.MaxEvaluations, DefaultMaxEvaluations)
@@ -147,7 +169,10 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 // optimizeBackorder runs the exact backorder searches and evaluates the
 // optimum on the chain.
 func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOptions) (*Optimum, error) {
-	mo, err := newBOModel(sys)
+	if err := checkOrderQuantity(sys, kind, opt.Eval.MaxStates); err != nil {
+		return nil, err
+	}
+	mo, err := newBOModelOpt(sys, opt.Eval)
 	if err != nil {
 		return nil, err
 	}
@@ -174,6 +199,67 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	return &Optimum{Evaluation: *ev, Search: sr}, nil
 }
 
+// checkCostScale refuses cost rates whose costs would overflow float64 in
+// the search: the one-period costs h E[(y-X)^+] + b E[(X-y)^+] over the
+// levels searched reach about max(h, b) times the span of the lead-time
+// demand, (L+1) E[D] + 10 sd + 1, and the search adds up to millions of
+// them. It names the larger rate.
+func checkCostScale(sys inventory.System) error {
+	n := float64(sys.LeadTime) + 1
+	d := sys.Demand
+	scale := n*d.Mean() + 10*math.Sqrt(n*d.Variance()) + 1
+	field, rate := "holding_cost", sys.Holding
+	if sys.Shortage > rate {
+		field, rate = "shortage_cost", sys.Shortage
+	}
+	if sys.OrderCost > rate {
+		field, rate = "order_cost", sys.OrderCost
+	}
+	if rate*scale*1e12 <= math.MaxFloat64 {
+		return nil
+	}
+	return &inventory.FieldError{Field: field, Value: strconv.FormatFloat(rate, 'g', -1, 64),
+		Want: fmt.Sprintf("cost rates whose costs fit a float64 in the search: the rate times the span of lead-time demand (about %.3g units) times 1e12 must stay below 1.8e308", scale),
+		Err:  ErrOverflow}
+}
+
+// ServiceResolution is the finest service requirement Optimize accepts:
+// a stockout ceiling below it, or a fill-rate floor above 1 minus it, is
+// refused (ErrLimit), since the figures that would confirm it carry errors
+// of that order (floorTol).
+const ServiceResolution = floorTol
+
+// ErrLimit is wrapped by the errors of inputs refused because they lie
+// beyond what the evaluation can resolve or hold (not because they are
+// malformed): a command reports them with exit status 1.
+var ErrLimit = inventory.ErrLimit
+
+// checkOrderQuantity refuses, before any table is built, an s-S or s-nQ
+// search whose order quantity must be wider than the state limit: the
+// economic order quantity with planned backorders,
+//
+//	EOQ = sqrt(2 K E[D] (h + b) / (h b))
+//
+// (F. W. Harris 1913; the backorder form in Hadley and Whitin 1963, ch. 4,
+// from memory), which the optimal S - s (or Q) approaches as K grows. It
+// names the order cost, and gives the mean demand and holding cost.
+func checkOrderQuantity(sys inventory.System, kind Kind, limit int) error {
+	if kind == BaseStock || sys.OrderCost == 0 {
+		return nil
+	}
+	if limit <= 0 {
+		limit = DefaultMaxStates
+	}
+	h, b, k, mu := sys.Holding, sys.Shortage, sys.OrderCost, sys.Demand.Mean()
+	eoq := math.Sqrt(2*k*mu/h) * math.Sqrt((h+b)/b)
+	if !(eoq > float64(limit)) {
+		return nil
+	}
+	return &SizeError{Chain: string(kind) + " search", Bound: eoq, Limit: limit, What: "units of order quantity",
+		Input: "order_cost", Value: strconv.FormatFloat(k, 'g', -1, 64), Bytes: eoq * bytesPerEntry,
+		Reason: fmt.Sprintf("with mean demand %.6g and holding cost %.6g it makes the economic order quantity sqrt(2 K E[D] (h+b)/(h b)) about %.3g units", mu, h, eoq)}
+}
+
 // baseStock returns the critical fractile, raised to the smallest level
 // meeting the floors.
 func (mo *boModel) baseStock(fl floors) (Policy, Search, error) {
@@ -188,7 +274,7 @@ func (mo *boModel) baseStock(fl floors) (Policy, Search, error) {
 		if fl.meets(fill, so) {
 			break
 		}
-		if S-lo >= maxLevel {
+		if S-lo >= mo.levelCap() {
 			return Policy{}, Search{}, noneMeets(fl, map[string][2]int{"order_up_to": {lo, S}})
 		}
 		S++

@@ -172,8 +172,11 @@ func (mo *boModel) ssConstrained(fl floors, start zfResult) (constrained, error)
 			best.SHi = S
 			break
 		}
-		if S0-Slo >= maxLevel {
-			return best, fmt.Errorf("s-S search under the floor %v: order-up-to level above %d", fl, S)
+		if S0-Slo >= mo.levelCap() {
+			return best, mo.capErr(fmt.Sprintf("s-S search under the floor %v", fl), "order-up-to level", float64(S))
+		}
+		if err := mo.tick(); err != nil {
+			return best, err
 		}
 		if best.work > floorWork {
 			return best, fmt.Errorf("s-S search under the floor %v: stopped at order-up-to level %d after %.3g operations without proving the optimum (orders this large relative to demand are beyond the exact constrained search; try s-nQ)", fl, S, float64(best.work))
@@ -375,8 +378,8 @@ func (t *trail) walkMin(ystar int, computed *int) (int, error) {
 		}
 	} else {
 		for {
-			if S-s >= maxLevel {
-				return 0, fmt.Errorf("s-S search under a floor: reorder point below %d for order-up-to level %d: no optimum in range", s, S)
+			if S-s >= mo.levelCap() {
+				return 0, mo.capErr("s-S search under a floor", "width S - s", float64(S-s))
 			}
 			mo.ensureM(S - s + 1)
 			v += mo.m[S-s] * mo.G(s)

@@ -1,6 +1,7 @@
 package policies
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -281,12 +282,21 @@ func TestFloorsSSLarge(t *testing.T) {
 	}
 }
 
-// TestFloorExtreme checks that the sweep ends, meeting the floor, for a
-// floor at the largest float64 below 1 (met only where the fill rate
-// rounds to 1) and for a stockout ceiling of 1e-15.
+// TestFloorExtreme checks that the sweep ends, meeting the floor, for the
+// finest floors accepted (fill rate 1 - 1e-12, stockout ceiling 1e-12), and
+// that finer ones (the largest float64 below 1, a ceiling of 1e-15 or
+// 1e-16) are refused with ErrLimit: the figures that would confirm them
+// carry errors of order floorTol = 1e-12, so a policy claimed to meet them
+// could miss them.
 func TestFloorExtreme(t *testing.T) {
 	sys := optSystem(optPoisson(t, 10), 0, 1, 9, 64)
-	for _, fl := range []floors{{minFill: math.Nextafter(1, 0)}, {maxStockout: 1e-15}} {
+	for _, fl := range []floors{{minFill: math.Nextafter(1, 0)}, {maxStockout: 1e-15}, {maxStockout: 1e-16}} {
+		_, err := Optimize(sys, SS, SearchOptions{MinFillRate: fl.minFill, MaxStockout: fl.maxStockout})
+		if !errors.Is(err, ErrLimit) {
+			t.Errorf("%v: err = %v, want ErrLimit", fl, err)
+		}
+	}
+	for _, fl := range []floors{{minFill: 1 - 1e-12}, {maxStockout: 1e-12}} {
 		o, err := Optimize(sys, SS, SearchOptions{MinFillRate: fl.minFill, MaxStockout: fl.maxStockout})
 		if err != nil {
 			t.Errorf("%v: %v", fl, err)

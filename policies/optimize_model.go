@@ -1,6 +1,7 @@
 package policies
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -116,11 +117,54 @@ type boModel struct {
 	g, fr, s []float64 // G(y), fill(y), so(y)
 	// Prefix sums: pg[i] = sum_{k<i} g[k], likewise pfr and ps.
 	pg, pfr, ps []float64
+
+	limit int             // the state limit: widest S - s and level range searched
+	ctx   context.Context // nil: none
+	ticks int             // loop steps since the last look at ctx
 }
 
-// newBOModel builds the tables of sys in backorder mode.
-func newBOModel(sys inventory.System) (*boModel, error) {
+// levelCap is the widest range of levels a search may walk: maxLevel, or
+// the state limit if smaller (the tables grow with the range).
+func (mo *boModel) levelCap() int { return min(maxLevel, max(mo.limit, 1)) }
+
+// capErr reports a search that would walk past levelCap.
+func (mo *boModel) capErr(search, what string, v float64) error {
+	return &SizeError{Chain: search + "'s tables", Bound: v, Limit: mo.levelCap(), What: "entries",
+		Reason: fmt.Sprintf("%s: the %s reaches %s without an optimum in range", search, what, count(v))}
+}
+
+// tick returns the context's error every 1024 calls (nil otherwise or
+// without a context): the searches' loops call it once a step.
+func (mo *boModel) tick() error {
+	if mo.ctx == nil {
+		return nil
+	}
+	mo.ticks++
+	if mo.ticks&1023 != 0 {
+		return nil
+	}
+	if err := mo.ctx.Err(); err != nil {
+		return fmt.Errorf("search stopped: %w", err)
+	}
+	return nil
+}
+
+// newBOModel builds the tables of sys in backorder mode under the default
+// limits.
+func newBOModel(sys inventory.System) (*boModel, error) { return newBOModelOpt(sys, Options{}) }
+
+// newBOModelOpt builds the tables of sys in backorder mode. The tables of
+// demand run from 0 to where its tail is below kernelEps; they are refused
+// with a *SizeError naming the demand (and the lead time) before they are
+// allocated when they would exceed opt.MaxStates entries, and every level
+// the searches visit is kept within opt.MaxStates of the others (see
+// levelCap). opt.Context, when not nil, is checked in the searches' loops.
+func newBOModelOpt(sys inventory.System, opt Options) (*boModel, error) {
 	d := sys.Demand
+	limit := opt.MaxStates
+	if limit <= 0 {
+		limit = DefaultMaxStates
+	}
 	x1d, n1, err := leadTimeDemand(d, sys.LeadTime+1)
 	if err != nil {
 		return nil, err
@@ -129,7 +173,21 @@ func newBOModel(sys inventory.System) (*boModel, error) {
 	if err != nil {
 		return nil, err
 	}
+	b1 := 1.0
+	if x1d != nil {
+		b1 = float64(x1d.Bound(kernelEps)) + 1
+	}
+	if b := max(b1, float64(d.Bound(kernelEps))+1); b > float64(limit) {
+		field, value, what := "demand", d.String(), "demand"
+		if sys.LeadTime > 0 {
+			what = fmt.Sprintf("demand over the lead time plus one period (%d periods)", sys.LeadTime+1)
+		}
+		return nil, &SizeError{Chain: "search tables", Bound: b, Limit: limit, What: "entries",
+			Input: field, Value: value, Bytes: b * bytesPerEntry,
+			Reason: "the search tabulates " + what + " from 0 to its 1e-17 tail (plan in larger units, e.g. packs of 100)"}
+	}
 	mo := &boModel{
+		limit: limit, ctx: opt.Context,
 		h: sys.Holding, b: sys.Shortage, k: sys.OrderCost, c: sys.UnitCost,
 		mu: d.Mean(), x1: newCumTable(x1d), x0: newCumTable(x0d),
 		negl: n1 + n0,
@@ -212,11 +270,11 @@ func (mo *boModel) fractile() (int, error) {
 	r := mo.b / (mo.b + mo.h)
 	lo, hi := 0, 1
 	for mo.x1.cdf(hi) < r {
-		if hi >= maxLevel || hi >= len(mo.x1.f) {
+		if hi >= mo.levelCap() || hi >= len(mo.x1.f) {
 			return 0, &inventory.FieldError{Field: "shortage_cost", Value: fmt.Sprint(mo.b),
 				Want: fmt.Sprintf("a shortage cost whose critical fractile b/(b+h) = %.17g lies within the demand's support (P(X <= %d) = %.17g); keep b/h below about 1e15", r, hi, mo.x1.cdf(hi))}
 		}
-		lo, hi = hi, min(2*hi, maxLevel)
+		lo, hi = hi, min(2*hi, mo.levelCap())
 	}
 	for lo < hi {
 		mid := lo + (hi-lo)/2

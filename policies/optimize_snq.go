@@ -22,6 +22,11 @@ func (mo *boModel) supportGCD() int {
 	return max(g, 1)
 }
 
+// snqWork caps the additions the s-nQ search spends on its windows (about
+// a second): with demand on a lattice of step gD > 1 a window of an order
+// multiple Q sums Q/gcd(Q, gD) positions one by one.
+const snqWork = 500_000_000
+
 // snqSearch finds the cheapest s-nQ policy in backorder mode, exactly.
 //
 // Cost. Under s-nQ the inventory position after review, started at s+Q,
@@ -74,6 +79,7 @@ func (mo *boModel) snqSearch(d inventory.Distribution, fl floors) (Policy, Searc
 		bestCost = math.Inf(1)
 		best     Policy
 		computed int
+		work     int // additions spent on the windows, capped at snqWork
 		sU       = ystar - 1
 		sF       = ystar - 1
 		Q        int
@@ -81,8 +87,11 @@ func (mo *boModel) snqSearch(d inventory.Distribution, fl floors) (Policy, Searc
 		minDQ    float64
 	)
 	for Q = 1; ; Q++ {
-		if Q >= maxLevel {
-			return Policy{}, Search{}, fmt.Errorf("s-nQ search: order multiple above %d", maxLevel)
+		if Q >= mo.levelCap() {
+			return Policy{}, Search{}, mo.capErr("s-nQ search", "order multiple", float64(Q))
+		}
+		if err := mo.tick(); err != nil {
+			return Policy{}, Search{}, err
 		}
 		rMin := (Q + gD - 1) / gD
 		if isFinite(bestCost) && lowBound(rMin) >= bestCost {
@@ -102,6 +111,16 @@ func (mo *boModel) snqSearch(d inventory.Distribution, fl floors) (Policy, Searc
 			}
 			order /= float64(r)
 		}
+		if work > snqWork {
+			return Policy{}, Search{}, &SizeError{Chain: "s-nQ search", Bound: float64(work), Limit: snqWork, What: "operations",
+				Input: "demand", Value: d.String(), LimitField: "the search's work limit",
+				Reason: fmt.Sprintf("the s-nQ search reached order multiple %d after %.3g operations without proving the optimum (demand values share the factor %d, so each order multiple's positions are summed one by one: plan in units of %d, or use s-S)", Q, float64(work), gD, gD)}
+		}
+		if g == 1 {
+			work++
+		} else {
+			work += r
+		}
 		window := func(s int) (cost, fill, so float64) {
 			computed++
 			if g == 1 {
@@ -110,6 +129,7 @@ func (mo *boModel) snqSearch(d inventory.Distribution, fl floors) (Policy, Searc
 				return mo.k*order + cost/fr, fill / fr, so / fr
 			}
 			mo.ensureY(s+Q-(r-1)*g, s+Q)
+			work += r
 			for i := range r {
 				k := s + Q - i*g - mo.glo
 				cost += mo.g[k]
@@ -154,7 +174,7 @@ func (mo *boModel) snqSearch(d inventory.Distribution, fl floors) (Policy, Searc
 			} else {
 				for !feasible(s + 1) {
 					s++
-					if s-sU >= maxLevel {
+					if s-sU >= mo.levelCap() {
 						return Policy{}, Search{}, noneMeets(fl, map[string][2]int{"reorder_point": {sU, s}, "order_multiple": {Q, Q}})
 					}
 				}

@@ -1,7 +1,5 @@
 package policies
 
-import "fmt"
-
 // zfResult is the outcome of the Zheng-Federgruen search.
 type zfResult struct {
 	s, S     int
@@ -48,8 +46,11 @@ func (mo *boModel) zhengFedergruen() (zfResult, error) {
 	r.computed++
 	for num/den > mo.G(s) {
 		n := S0 - s
-		if n >= maxLevel {
-			return r, fmt.Errorf("s-S search: reorder point below %d: no optimum in range", s)
+		if n >= mo.levelCap() {
+			return r, mo.capErr("s-S search", "width S - s", float64(n))
+		}
+		if err := mo.tick(); err != nil {
+			return r, err
 		}
 		mo.ensureM(n + 1)
 		num += mo.m[n] * mo.G(s)
@@ -82,8 +83,11 @@ func (mo *boModel) zhengFedergruen() (zfResult, error) {
 	c0 := (mo.k + phi[S0-base]) / mo.cm[S0-s]
 	S := S0 + 1
 	for ; mo.G(S) <= c0; S++ {
-		if S-ystar >= maxLevel {
-			return r, fmt.Errorf("s-S search: order-up-to level above %d: no optimum in range", S)
+		if S-s >= mo.levelCap() {
+			return r, mo.capErr("s-S search", "width S - s", float64(S-s))
+		}
+		if err := mo.tick(); err != nil {
+			return r, err
 		}
 		mo.ensureM(S - s + 1)
 		phi = append(phi, next(S))

@@ -1,6 +1,7 @@
 package policies
 
 import (
+	"math"
 	"sort"
 
 	"ergostock/inventory"
@@ -56,10 +57,7 @@ func newLossTable(x inventory.Distribution, lo, hi int) lossTable {
 	// Start the running sums at k0 <= lo, the largest point with
 	// k0 P(X < k0) <= 1e-300, so E[(k0-X)^+] <= 1e-300 is taken as 0 and a
 	// table far above 0 costs O(hi - k0), not O(hi).
-	k0 := 0
-	if lo > 0 {
-		k0 = max(sort.Search(lo+1, func(k int) bool { return float64(k)*x.CDF(k-1) > lowerNegligible })-1, 0)
-	}
+	k0 := lossStart(x, lo)
 	m := h - k0 + 1
 	pmf := make([]float64, m) // P(X = k0 + i)
 	for i := range pmf {
@@ -107,6 +105,27 @@ func newLossTable(x inventory.Distribution, lo, hi int) lossTable {
 	return t
 }
 
+// lossStart returns the point k0 <= lo where newLossTable starts its running
+// sums: the largest k0 with k0 P(X < k0) <= lowerNegligible (0 for lo <= 0).
+func lossStart(x inventory.Distribution, lo int) int {
+	if lo <= 0 || x == nil {
+		return 0
+	}
+	lo = min(lo, math.MaxInt-1)
+	return max(sort.Search(lo+1, func(k int) bool { return float64(k)*x.CDF(k-1) > lowerNegligible })-1, 0)
+}
+
+// lossEntries returns the float64 entries newLossTable(x, lo, hi) would
+// allocate per array, computed in float64: the range lo..hi plus the
+// running sums from lossStart(x, lo) to max(hi, 0).
+func lossEntries(x inventory.Distribution, lo, hi int) float64 {
+	n := span(lo, max(hi, lo))
+	if x == nil {
+		return n
+	}
+	return n + span(lossStart(x, lo), max(hi, 0))
+}
+
 // lowerNegligible bounds the mass E[(k0-X)^+] that a loss table starting
 // at k0 > 0 takes as 0.
 const lowerNegligible = 1e-300
@@ -116,7 +135,14 @@ const lowerNegligible = 1e-300
 // part left out. If the terms decay too slowly to finish in tailSumCap
 // steps, it falls back to the identity E[(X-y)^+] = E[X] - y + E[(y-X)^+]
 // with below = E[(from-X)^+].
+//
+// When from lies below the mean the identity is used at once: both terms
+// mu - from and below are positive, so nothing cancels, and the tails
+// between from and the mean (O(mean) of them) are not summed one by one.
 func tailSum(x inventory.Distribution, from int, mu, below float64) (sum, neglected float64) {
+	if float64(from) < mu {
+		return mu - float64(from) + below, 0
+	}
 	// A truncated convolution counts its neglected mass in every tail;
 	// where that mass lies is unknown, so it is left out here and
 	// reported with the evaluation.

@@ -54,3 +54,18 @@ func TestLossTableAgainstInventory(t *testing.T) {
 		}
 	}
 }
+
+// TestLossTableBelowMean checks a loss table that ends far below the mean:
+// E[(X-y)^+] = E[X] - y + E[(y-X)^+] (the loss identity; Zipkin 2000,
+// appendix C, from memory), where E[(y-X)^+] is below 1e-300 for Poisson
+// means of 5e4 and 1e6 at y <= 10, so E[(X-y)^+] = E[X] - y exactly.
+func TestLossTableBelowMean(t *testing.T) {
+	for _, m := range []float64{5e4, 1e6} {
+		tab := newLossTable(poisson(t, m), 0, 10)
+		for y := 0; y <= 10; y++ {
+			if got, want := tab.above[y], m-float64(y); got != want {
+				t.Errorf("mean %g: E[(X-%d)^+] = %.17g, want %.17g", m, y, got, want)
+			}
+		}
+	}
+}

@@ -2,6 +2,8 @@ package policies
 
 import (
 	"fmt"
+	"math"
+	"strconv"
 
 	"ergostock/inventory"
 )
@@ -63,6 +65,10 @@ func (p Policy) Levels() (s, top int) {
 func (p Policy) Validate(mode inventory.Mode) error {
 	switch p.Kind {
 	case BaseStock:
+		if p.OrderUpTo == math.MinInt {
+			return &inventory.FieldError{Field: "order_up_to", Value: strconv.Itoa(p.OrderUpTo),
+				Want: fmt.Sprintf("an order-up-to level above %d (base-stock S orders when the position is at most S - 1)", math.MinInt)}
+		}
 		if mode == inventory.Lost && p.OrderUpTo < 0 {
 			return fmt.Errorf("order-up-to level %d: want >= 0 in lost mode", p.OrderUpTo)
 		}
@@ -76,6 +82,10 @@ func (p Policy) Validate(mode inventory.Mode) error {
 	case SNQ:
 		if p.OrderMultiple < 1 {
 			return fmt.Errorf("order multiple %d: want >= 1", p.OrderMultiple)
+		}
+		if p.ReorderPoint > math.MaxInt-p.OrderMultiple {
+			return &inventory.FieldError{Field: "reorder_point", Value: strconv.Itoa(p.ReorderPoint),
+				Want: fmt.Sprintf("a reorder point whose highest position s + Q stays within the int range (at most %d for Q = %d)", math.MaxInt-p.OrderMultiple, p.OrderMultiple)}
 		}
 		if mode == inventory.Lost && p.ReorderPoint < -1 {
 			return fmt.Errorf("reorder point %d: want >= -1 in lost mode (inventory position never falls below 0)", p.ReorderPoint)

@@ -26,7 +26,7 @@ func evaluateCommand() *cli.Command {
 		// A flag that does not parse is a one-line usage error, without the
 		// help text on stdout.
 		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
-			return usageErr("evaluate: %v (see --help)", err)
+			return parseErr("evaluate", err)
 		},
 		Action: func(c *cli.Context) error {
 			for _, name := range required {
@@ -75,6 +75,11 @@ func unrequire(flags []cli.Flag) []string {
 				names = append(names, f.Name)
 			}
 		case *cli.IntFlag:
+			if f.Required {
+				f.Required = false
+				names = append(names, f.Name)
+			}
+		case *cli.GenericFlag:
 			if f.Required {
 				f.Required = false
 				names = append(names, f.Name)

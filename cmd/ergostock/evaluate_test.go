@@ -166,7 +166,7 @@ func TestEvaluateBadInput(t *testing.T) {
 		{base("--unmet", "later", "--order-up-to", "5"), 2, "--unmet"},
 		{base("--reorder-point", "3"), 2, "--reorder-point"},
 		{base(), 2, "no policy"},
-		{base("--order-up-to", "30", "--lead-time", "4", "--unmet", "lost", "--max-states", "1000"), 2, "--max-states"},
+		{base("--order-up-to", "30", "--lead-time", "4", "--unmet", "lost", "--max-states", "1000"), 1, "--max-states"},
 		{base("--order-up-to", "30", "--lead-time", "4", "--unmet", "lost", "--max-states", "0"), 2, "--max-states"},
 		{base("--order-up-to", "5", "extra"), 2, "unexpected argument"},
 		{[]string{"--holding-cost", "1", "--shortage-cost", "9", "--order-up-to", "5"}, 2, "--demand: required"},

@@ -6,6 +6,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
+	"regexp"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -19,52 +22,182 @@ import (
 func systemFlags() []cli.Flag {
 	return []cli.Flag{
 		&cli.StringFlag{Name: "demand", Usage: "demand per period, e.g. poisson:mean=4, negbin:mean=4,var=9, normal:mean=40,sd=8, gamma:mean=5,sd=4, pmf:0=0.2,1=0.5,2=0.3", Required: true},
-		&cli.IntFlag{Name: "lead-time", Usage: "lead time L in whole periods (>= 0)", Value: 0},
-		&cli.Float64Flag{Name: "holding-cost", Usage: "holding cost h per unit on hand per period", Required: true},
-		&cli.Float64Flag{Name: "shortage-cost", Usage: "shortage cost b per unit backordered per period, or per unit of lost demand", Required: true},
-		&cli.Float64Flag{Name: "order-cost", Usage: "fixed cost K per order", Value: 0},
-		&cli.Float64Flag{Name: "unit-cost", Usage: "purchase cost c per unit ordered", Value: 0},
-		&cli.StringFlag{Name: "unmet", Usage: "what happens to demand not served at once: backorder or lost", Value: "backorder"},
-		&cli.IntFlag{Name: "max-states", Usage: "largest chain to build, in states (lost-sales chains grow fast with the lead time)", Value: policies.DefaultMaxStates},
+		intFlag("lead-time", "lead time L in whole periods (>= 0)", 0),
+		floatFlag("holding-cost", "holding cost h per unit on hand per period (required)", false),
+		floatFlag("shortage-cost", "shortage cost b per unit backordered per period, or per unit of lost demand (required)", false),
+		floatFlag("order-cost", "fixed cost K per order", false),
+		floatFlag("unit-cost", "purchase cost c per unit ordered", false),
+		&cli.StringFlag{Name: "unmet", Usage: "what happens to demand not served at once: backorder or lost (any case)", Value: "backorder"},
+		intFlag("max-states", "largest chain to build, in states (lost-sales chains grow fast with the lead time)", policies.DefaultMaxStates),
 	}
 }
 
 // policyFlags name a policy's levels (evaluate, simulate).
 func policyFlags() []cli.Flag {
 	return []cli.Flag{
-		&cli.IntFlag{Name: "reorder-point", Usage: "reorder point s: order when inventory position <= s"},
-		&cli.IntFlag{Name: "order-up-to", Usage: "order-up-to level S (alone: base-stock S)"},
-		&cli.IntFlag{Name: "order-multiple", Usage: "order multiple Q (with --reorder-point: s-nQ)"},
+		intFlag("reorder-point", "reorder point s: order when inventory position <= s", 0),
+		intFlag("order-up-to", "order-up-to level S (alone: base-stock S)", 0),
+		intFlag("order-multiple", "order multiple Q (with --reorder-point: s-nQ)", 0),
 	}
+}
+
+// number is the value of a numeric flag, read by the one number rule of
+// inventory.ParseNumber (or ParseInt): plain decimal with an optional sign,
+// fraction and exponent; no underscores, hex, inf or nan. It keeps the
+// text as typed, for messages. Its String is the number in a form that
+// the cli package's Int and Float64 read back exactly.
+type number struct {
+	isInt bool
+	f     float64
+	i     int64
+	typed string
+}
+
+func (n *number) Set(s string) error {
+	t := strings.TrimSpace(s)
+	var err error
+	if n.isInt {
+		n.i, err = inventory.ParseInt(t)
+		if err == nil && int64(int(n.i)) != n.i {
+			err = &inventory.NumberError{Value: t, Err: inventory.ErrNumberRange}
+		}
+	} else {
+		n.f, err = inventory.ParseNumber(t)
+	}
+	switch {
+	case err == nil:
+		n.typed = t
+		return nil
+	case errors.Is(err, inventory.ErrNumberSyntax):
+		return errors.New("want a plain decimal number (digits with an optional sign, fraction and exponent, as 12, -0.5 or 1e-3; no underscores, hex, inf or nan)")
+	case errors.Is(err, inventory.ErrNotWhole):
+		return errors.New("want a whole number")
+	case n.isInt:
+		return fmt.Errorf("want a whole number from %d to %d", math.MinInt, math.MaxInt)
+	}
+	return errors.New("want a number within the float64 range (about 1.8e308)")
+}
+
+// flagValueRE matches the flag package's error for a value that does not parse.
+var flagValueRE = regexp.MustCompile(`^invalid value "(.*)" for flag -+([A-Za-z0-9-]+): (.*)$`)
+
+// parseErr is the one-line usage error of command cmd for a flag that does
+// not parse: "--shortage-cost NaN: want a plain decimal number (...)".
+func parseErr(cmd string, err error) error {
+	if m := flagValueRE.FindStringSubmatch(err.Error()); m != nil {
+		return usageErr("--%s %s: %s", m[2], m[1], m[3])
+	}
+	return usageErr("%s: %v (see --help)", cmd, err)
+}
+
+func (n *number) String() string {
+	if n.isInt {
+		return strconv.FormatInt(n.i, 10)
+	}
+	return strconv.FormatFloat(n.f, 'g', -1, 64)
+}
+
+// intFlag is a whole-number flag read by inventory.ParseInt.
+func intFlag(name, usage string, value int) *cli.GenericFlag {
+	return &cli.GenericFlag{Name: name, Usage: usage, Value: &number{isInt: true, i: int64(value)}}
+}
+
+// floatFlag is a number flag read by inventory.ParseNumber.
+func floatFlag(name, usage string, required bool) *cli.GenericFlag {
+	return &cli.GenericFlag{Name: name, Usage: usage, Value: &number{}, Required: required}
+}
+
+var _ cli.Generic = (*number)(nil)
+
+// typed returns the text given for a number flag, or its value printed.
+func typed(c *cli.Context, name string) string {
+	if n, ok := c.Generic(name).(*number); ok {
+		if n.typed != "" {
+			return n.typed
+		}
+		return n.String()
+	}
+	return c.String(name)
+}
+
+// flagName turns a field name ("order_up_to") into its flag
+// ("--order-up-to"); a name with a space is a phrase and passes unchanged.
+func flagName(field string) string {
+	if strings.Contains(field, " ") {
+		return field
+	}
+	return "--" + strings.ReplaceAll(field, "_", "-")
+}
+
+// limitErr is an input refused for its size or a limit: exit status 1.
+func limitErr(format string, a ...any) error {
+	return &exitError{code: 1, err: fmt.Errorf(format, a...)}
+}
+
+// fieldMessage formats a *inventory.FieldError with its flag, using the
+// text typed on the command line when c has that flag.
+func fieldMessage(c *cli.Context, fe *inventory.FieldError) string {
+	name := flagName(fe.Field)
+	value := fe.Value
+	if c != nil && fe.Field != "demand" {
+		if f := strings.TrimPrefix(name, "--"); c.IsSet(f) {
+			value = typed(c, f)
+		}
+	}
+	msg := fmt.Sprintf("%s %s: want %s", name, value, fe.Want)
+	if fe.Err != nil {
+		msg += ": " + fe.Err.Error()
+	}
+	return msg
 }
 
 // flagErr turns a *inventory.FieldError into a message naming the flag.
 func flagErr(err error) error {
 	var fe *inventory.FieldError
 	if errors.As(err, &fe) {
-		msg := fmt.Sprintf("--%s %s: want %s", strings.ReplaceAll(fe.Field, "_", "-"), fe.Value, fe.Want)
-		if fe.Err != nil {
-			msg += ": " + fe.Err.Error()
-		}
-		return usageErr("%s", msg)
+		return usageErr("%s", fieldMessage(nil, fe))
 	}
 	return err
 }
 
-// engineErr reports an error of Evaluate or Optimize: a chain over the
-// state limit is a usage error naming --max-states, an unusable input
-// names its flag (see flagErr), anything else passes through.
+// engineErr is the one mapping of the errors of Evaluate and Optimize to
+// messages and exit statuses (evaluate, optimize, report, simulate): an input refused for its
+// size (a *policies.SizeError), for a limit (policies.ErrLimit) or for
+// figures that overflow (policies.ErrOverflow) names its flag and exits 1;
+// another unusable input names its flag and exits 2 (see flagErr); anything
+// else (a failed solve) passes through, exit 1.
 func engineErr(c *cli.Context, err error) error {
 	var se *policies.SizeError
 	if errors.As(err, &se) {
-		return usageErr("--max-states %d: %v", c.Int("max-states"), err)
+		if se.Input != "" || se.Reason != "" {
+			e := *se
+			if e.Input != "" && e.Input != "demand" && c.IsSet(strings.TrimPrefix(flagName(e.Input), "--")) {
+				e.Value = typed(c, strings.TrimPrefix(flagName(e.Input), "--"))
+			}
+			return limitErr("%s", e.Message(flagName))
+		}
+		return limitErr("--max-states %s: %v", typed(c, "max-states"), err)
 	}
-	return flagErr(err)
+	var fe *inventory.FieldError
+	if errors.As(err, &fe) {
+		if errors.Is(err, inventory.ErrLimit) || errors.Is(err, policies.ErrOverflow) {
+			return limitErr("%s", fieldMessage(c, fe))
+		}
+		return usageErr("%s", fieldMessage(c, fe))
+	}
+	return err
 }
 
 // systemFromFlags builds and validates the system from the shared flags.
 func systemFromFlags(c *cli.Context) (inventory.System, error) {
 	var sys inventory.System
+	// Required, checked here (the report command needs them only for a
+	// one-SKU page).
+	for _, f := range []string{"holding-cost", "shortage-cost"} {
+		if !c.IsSet(f) {
+			return sys, usageErr("--%s: required (see --help)", f)
+		}
+	}
 	d, err := inventory.Parse(c.String("demand"))
 	if err != nil {
 		return sys, flagErr(err)
@@ -83,10 +216,10 @@ func systemFromFlags(c *cli.Context) (inventory.System, error) {
 		Mode:      mode,
 	}
 	if err := sys.Validate(); err != nil {
-		return sys, flagErr(err)
+		return sys, engineErr(c, err)
 	}
-	if c.Int("max-states") < 1 {
-		return sys, usageErr("--max-states %d: want a state count >= 1", c.Int("max-states"))
+	if v := c.Int("max-states"); v < 1 || v > math.MaxInt32 {
+		return sys, usageErr("--max-states %s: want a state count from 1 to %d", typed(c, "max-states"), math.MaxInt32)
 	}
 	return sys, nil
 }
@@ -114,6 +247,10 @@ func policyFromFlags(c *cli.Context, mode inventory.Mode) (policies.Policy, erro
 		return p, usageErr("no policy: give --order-up-to S, or --reorder-point s with --order-up-to S or --order-multiple Q")
 	}
 	if err := p.Validate(mode); err != nil {
+		var fe *inventory.FieldError
+		if errors.As(err, &fe) {
+			return p, usageErr("%s", fieldMessage(c, fe))
+		}
 		return p, usageErr("policy: %v", err)
 	}
 	return p, nil

@@ -18,9 +18,9 @@ import (
 func optimizeCommand() *cli.Command {
 	flags := append(systemFlags(),
 		&cli.StringFlag{Name: "policy", Usage: "policy type to tune: base-stock, s-S or s-nQ", Value: string(policies.SS)},
-		&cli.Float64Flag{Name: "min-fill-rate", Usage: "cheapest policy with fill rate at least F, for F in (0, 1)"},
-		&cli.Float64Flag{Name: "max-stockout-probability", Usage: "cheapest policy with stockout probability at most P, for P in (0, 1)"},
-		&cli.IntFlag{Name: "max-evaluations", Usage: "largest number of chains a lost-sales search evaluates", Value: policies.DefaultMaxEvaluations},
+		floatFlag("min-fill-rate", "cheapest policy with fill rate at least F, for F in (0, 1 - 1e-12]", false),
+		floatFlag("max-stockout-probability", "cheapest policy with stockout probability at most P, for P in [1e-12, 1)", false),
+		intFlag("max-evaluations", "largest number of chains a lost-sales search evaluates", policies.DefaultMaxEvaluations),
 		&cli.BoolFlag{Name: "json", Usage: "print one JSON object instead of the table"},
 	)
 	return &cli.Command{
@@ -28,6 +28,9 @@ func optimizeCommand() *cli.Command {
 		Usage:     "the cheapest policy of a type, exactly where theory allows, under an optional service floor",
 		UsageText: "ergostock optimize --demand SPEC --holding-cost h --shortage-cost b [--lead-time L] [--order-cost K] [--unit-cost c] [--unmet backorder|lost] [--policy base-stock|s-S|s-nQ] [--min-fill-rate F] [--max-stockout-probability P] [--json]",
 		Flags:     flags,
+		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
+			return parseErr("optimize", err)
+		},
 		Action: func(c *cli.Context) error {
 			if c.NArg() > 0 {
 				return usageErr("optimize: unexpected argument %q (every input is a flag)", c.Args().First())
@@ -48,12 +51,16 @@ func optimizeCommand() *cli.Command {
 				}
 				v := c.Float64(f.name)
 				if !(v > 0 && v < 1) || math.IsNaN(v) {
-					return usageErr("--%s %v: want a probability strictly between 0 and 1", f.name, v)
+					msg := ""
+					if v == 1 || v == 0 {
+						msg = fmt.Sprintf(" (it reads as %v in double precision)", v)
+					}
+					return usageErr("--%s %s: want a probability strictly between 0 and 1%s", f.name, typed(c, f.name), msg)
 				}
 				*f.dst = v
 			}
 			if c.Int("max-evaluations") < 1 {
-				return usageErr("--max-evaluations %d: want a count >= 1", c.Int("max-evaluations"))
+				return usageErr("--max-evaluations %s: want a count >= 1", typed(c, "max-evaluations"))
 			}
 			sys, err := systemFromFlags(c)
 			if err != nil {
