@@ -223,7 +223,7 @@ func TestLostOneLeadBrute(t *testing.T) {
 		if e.FlowBalance > 1e-12 {
 			t.Errorf("%v: flow balance off by %.3g", pol, e.FlowBalance)
 		}
-		lc, _, err := solveLost(d, pol, 1, Options{MaxStates: DefaultMaxStates})
+		lc, _, err := solveLost(d, pol, 1, Options{MaxStates: DefaultMaxStates}, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -245,7 +245,7 @@ func TestLostBalance(t *testing.T) {
 		{6, 0, Policy{Kind: SS, ReorderPoint: 4, OrderUpTo: 20}},
 	} {
 		d := poisson(t, c.mean)
-		lc, _, err := solveLost(d, c.pol, c.L, Options{MaxStates: DefaultMaxStates})
+		lc, _, err := solveLost(d, c.pol, c.L, Options{MaxStates: DefaultMaxStates}, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -262,14 +262,14 @@ func TestLostBalance(t *testing.T) {
 
 func TestLostTooLarge(t *testing.T) {
 	sys := lostSystem(poisson(t, 5), 4, 1, 5, 0, 0)
-	_, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: 30}, Options{MaxStates: 100000})
+	_, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: 30}, Options{MaxStates: 10000})
 	var se *SizeError
 	if !errors.As(err, &se) {
 		t.Fatalf("err = %v, want a *SizeError", err)
 	}
-	// The a-priori bound C(35, 5) = 324632 is above the limit, so the
+	// The a-priori bound C(34, 4) = 46376 is above the limit, so the
 	// reachable states are counted, and the count passes the limit.
-	if se.Bound != 324632 || se.Limit != 100000 || !se.Counted || !strings.Contains(err.Error(), "--max-states") {
+	if se.Bound != 46376 || se.Limit != 10000 || !se.Counted || !strings.Contains(err.Error(), "--max-states") {
 		t.Errorf("err = %v", err)
 	}
 	// An absurd level is refused before any allocation.
@@ -285,7 +285,7 @@ func TestLostLongPipeline(t *testing.T) {
 	d := pmf(t, 0.5, 0.3, 0.2)
 	for _, L := range []int{31, 32} {
 		pol := Policy{Kind: BaseStock, OrderUpTo: 3}
-		lc, _, err := solveLost(d, pol, L, Options{MaxStates: DefaultMaxStates})
+		lc, _, err := solveLost(d, pol, L, Options{MaxStates: DefaultMaxStates}, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -386,10 +386,12 @@ func TestLostStartVectors(t *testing.T) {
 
 // TestLostReachableCount: demand of 0 or 1 unit (P(D = 1) = 0.15),
 // base-stock S = 21, L = 3. Each order replaces the last period's sale, 0
-// or 1, so the pipeline holds three values in {0, 1} and on-hand at review
-// is 21 - (o_1 + o_2 + o_3) - (last sale): 2^4 = 16 reachable states
-// (derived by hand). On-hand never reaches 0, so no state with an empty
-// shelf may be built: the lump P(D >= a) is 0 for a >= 2.
+// or 1, so the later orders o_2, o_3 take values in {0, 1} and on-hand
+// after the arrival is a = 21 - (o_2 + o_3) - (last sale): 2^3 = 8
+// reachable states (derived by hand; the chain of the state at review,
+// which also holds o_1, has 2^4 = 16). On-hand never reaches 0, so no
+// state with an empty shelf may be built: the lump P(D >= a) is 0 for
+// a >= 2.
 func TestLostReachableCount(t *testing.T) {
 	sys := inventory.System{Demand: pmf(t, 0.85, 0.15), LeadTime: 3, Holding: 1, Shortage: 9, Mode: inventory.Lost}
 	for _, m := range []chain.Method{"", chain.MethodGaussSeidel} {
@@ -398,8 +400,8 @@ func TestLostReachableCount(t *testing.T) {
 			t.Fatal(err)
 		}
 		// Nothing is ever lost: on-hand stays >= 21 - 4 = 17 > 1.
-		if e.States != 16 || e.Diagnostics.Transient != 0 || e.Figures.MeanLostSales != 0 || math.Abs(e.Figures.FillRate-1) > 1e-13 {
-			t.Errorf("%s: %d states (%d transient), lost %g, fill %g: want 16, 0, 0, 1", m, e.States, e.Diagnostics.Transient, e.Figures.MeanLostSales, e.Figures.FillRate)
+		if e.States != 8 || e.Diagnostics.Transient != 0 || e.Figures.MeanLostSales != 0 || math.Abs(e.Figures.FillRate-1) > 1e-13 {
+			t.Errorf("%s: %d states (%d transient), lost %g, fill %g: want 8, 0, 0, 1", m, e.States, e.Diagnostics.Transient, e.Figures.MeanLostSales, e.Figures.FillRate)
 		}
 	}
 }
@@ -419,9 +421,12 @@ func TestLostReachableCount(t *testing.T) {
 // some solved by Gauss-Seidel; tails are folded on the right (d near a)
 // and, for normal and gamma, also on the left (d near 0: the start state
 // cannot be re-entered, and the chain is rooted elsewhere; the folded
-// chain must then have no transient state). The last case has no lump (P(D >= 3) = 0) and
-// folds into the entry of the largest demand: 3 states exhaustive, 2
-// folded (on hand 1 is reached only by the folded P(D = 2) = 1e-21).
+// chain must then have no transient state). The last two cases were
+// derived by hand on the chain of the state after the arrival, a: with
+// P(D = 2) = 1e-21 and S = 3, the row of a = 3 has no lump (P(D >= 3) = 0)
+// and folds into the entry of the largest demand (3 states either way);
+// with P(D = 1) = 1e-21 and S = 2, a = 1 is reached only by the folded
+// demand 1 from a = 2 (2 states folded, 3 exhaustive).
 func TestLostNegligibleTransitions(t *testing.T) {
 	nb, err := inventory.NewNegBin(4, 12)
 	if err != nil {
@@ -458,7 +463,8 @@ func TestLostNegligibleTransitions(t *testing.T) {
 		{gam, 0, Policy{Kind: SS, ReorderPoint: 20, OrderUpTo: 120}, [2]int{}},
 		{gam, 1, Policy{Kind: BaseStock, OrderUpTo: 120}, [2]int{}},
 		{gam, 2, Policy{Kind: SS, ReorderPoint: 70, OrderUpTo: 160}, [2]int{}},
-		{pmf(t, 0.5, 0.5, 1e-21), 0, Policy{Kind: BaseStock, OrderUpTo: 3}, [2]int{2, 3}},
+		{pmf(t, 0.5, 0.5, 1e-21), 1, Policy{Kind: BaseStock, OrderUpTo: 3}, [2]int{3, 3}},
+		{pmf(t, 0.5, 1e-21, 0.5), 1, Policy{Kind: BaseStock, OrderUpTo: 2}, [2]int{2, 3}},
 	}
 	for _, c := range cases {
 		name := fmt.Sprintf("%v L=%d %v", c.d, c.L, c.p)
@@ -479,7 +485,9 @@ func TestLostNegligibleTransitions(t *testing.T) {
 		if x.Neglected >= f.Neglected {
 			t.Errorf("%s: exhaustive neglected %g, folded %g", name, x.Neglected, f.Neglected)
 		}
-		if f.Diagnostics.NonZeros >= x.Diagnostics.NonZeros {
+		// With L = 0 the successors that order merge into one entry, and
+		// folded transitions may merge with stored ones.
+		if f.Diagnostics.NonZeros > x.Diagnostics.NonZeros || (c.L > 0 && f.Diagnostics.NonZeros == x.Diagnostics.NonZeros) {
 			t.Errorf("%s: %d transitions stored, exhaustive %d: want fewer", name, f.Diagnostics.NonZeros, x.Diagnostics.NonZeros)
 		}
 		if c.states != [2]int{} && (f.States != c.states[0] || x.States != c.states[1]) {
