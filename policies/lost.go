@@ -267,8 +267,10 @@ func (ix *stateIndex) group(o []int32) int {
 }
 
 // lostMemoryLimit is the most memory a lost-sales chain may take, as
-// estimated by lostMemory: 4 GiB, whatever Options.MaxStates allows.
-const lostMemoryLimit = 4 << 30
+// estimated by lostMemory: 2 GiB, whatever Options.MaxStates allows, so
+// that a run stays within a 4 GB cap with the transient copies of growing
+// buffers and the solver's work.
+const lostMemoryLimit = 2 << 30
 
 // Bytes of memory per state, per transition, per index slot and per
 // pipeline group of a lost-sales chain, as lostMemory counts them: a
@@ -302,24 +304,19 @@ func lostMemory(L int, n, nnz, slots, groups float64) float64 {
 }
 
 // LostMemoryError refuses a lost-sales chain whose memory, estimated
-// before or while it is built, passes the limit of 4 GiB. It unwraps to
+// before or while it is built, passes the limit of 2 GiB. It unwraps to
 // a *SizeError (What "bytes of memory"), so callers that map a
 // *SizeError to a refusal for size treat both alike.
 type LostMemoryError struct {
 	LeadTime int
-	States   float64 // states counted or proven (Lower), or estimated
-	Lower    bool    // States is a proven lower bound on the reachable states
-	Bytes    float64 // estimated memory
+	States   float64 // a lower bound on the reachable states: counted, or proven by lostProbe
+	Bytes    float64 // estimated memory of those states and their transitions
 	Size     *SizeError
 }
 
 func (e *LostMemoryError) Error() string {
-	what := "an estimated"
-	if e.Lower {
-		what = "at least"
-	}
-	return fmt.Sprintf("lost-sales chain with lead time %d needs %s %.0f states of %.0f bytes each, %s in all, above the memory limit of 4 GiB (lower the lead time or the order-up-to level)",
-		e.LeadTime, what, e.States, lostStateBytes(e.LeadTime), formatBytes(e.Bytes))
+	return fmt.Sprintf("lost-sales chain with lead time %d needs at least %.0f states of %.0f bytes each with their transitions, an estimated %s, above the memory limit of %s (lower the lead time or the order-up-to level)",
+		e.LeadTime, e.States, lostStateBytes(e.LeadTime), formatBytes(e.Bytes), formatBytes(lostMemoryLimit))
 }
 
 func (e *LostMemoryError) Unwrap() error { return e.Size }
@@ -338,8 +335,8 @@ func formatBytes(b float64) string {
 	return fmt.Sprintf("%.1f %s", b, units[u])
 }
 
-func memoryError(L int, states float64, lower bool, bytes float64) error {
-	return &LostMemoryError{LeadTime: L, States: states, Lower: lower, Bytes: bytes,
+func memoryError(L int, states, bytes float64) error {
+	return &LostMemoryError{LeadTime: L, States: states, Bytes: bytes,
 		Size: &SizeError{Chain: "lost-sales", Bound: bytes, Limit: lostMemoryLimit, What: "bytes of memory", Counted: true}}
 }
 
@@ -427,30 +424,6 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 	}
 	// keep reports whether the transition of demand d is stored.
 	keep := func(d int) bool { return d < len(pmf) && pmf[d] > 0 && pmf[d] >= floor }
-	// The first chain of a search is sized from the a-priori bound (the
-	// reachable count for base-stock; s-S and s-nQ reach far fewer
-	// states), later ones from the chain built before (a neighbour).
-	hint := w.last + w.last/4
-	if hint == 0 {
-		hint = 1 << 12
-		if p.Kind == BaseStock && bound <= float64(opt.MaxStates) && bound*perState <= lostMemoryLimit/4 {
-			hint = int(bound)
-		}
-	}
-	c := &lostChain{L: L, top: top, k: k}
-	w.tuples = slices.Grow(w.tuples[:0], k*hint)
-	w.avail, w.groups, w.rowPtr = w.avail[:0], w.groups[:0], append(w.rowPtr[:0], 0)
-	w.order, w.ordFreq, w.ordQty = w.order[:0], w.ordFreq[:0], w.ordQty[:0]
-	ix := &w.ix
-	ix.reset(top, k-1, hint/max(top, 1)+1)
-	ix.slots = slices.Grow(ix.slots, hint)
-
-	// memory estimates the bytes of the chain so far with states growing
-	// to n, counted at the capacity of the buffers that grow.
-	memory := func(n, nnz int) float64 {
-		return lostMemory(L, float64(max(n, cap(w.avail))), float64(nnz), float64(cap(ix.slots)), float64(ix.groups()))
-	}
-
 	// A row is fixed by a (on hand after the arrival) and the group g of
 	// the next pipeline: demand d < a with P(D = d) > 0 leads to on-hand
 	// a - d, the lump P(D >= a) to 0. The first pass enumerates the states
@@ -473,9 +446,9 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 	// when a few thousand states pass it, prove first that the chain has
 	// that many (the probe costs O(need) time and memory).
 	if perState > lostMemoryLimit {
-		return nil, memoryError(L, 1, true, perState)
+		return nil, memoryError(L, 1, perState)
 	}
-	if need := lostMemoryLimit/perState + 1; need <= lostProbeMax && bound > need {
+	if need := math.Floor(lostMemoryLimit/perState) + 1; need <= lostProbeMax && bound > need {
 		need = min(need, float64(opt.MaxStates)+1)
 		seen, err := lostProbe(dtab, p, top, L, keep, folded, int(need), opt)
 		if err != nil {
@@ -485,8 +458,40 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 			if float64(seen) > float64(opt.MaxStates) {
 				return nil, &SizeError{Chain: "lost-sales", Bound: bound, Limit: opt.MaxStates, What: "states", Counted: true}
 			}
-			return nil, memoryError(L, float64(seen), true, lostMemory(L, float64(seen), float64(seen), 0, 0))
+			return nil, memoryError(L, float64(seen), lostMemory(L, float64(seen), float64(seen), 0, 0))
 		}
+	}
+
+	// The first chain of a search is sized from the a-priori bound (the
+	// reachable count for base-stock; s-S and s-nQ reach far fewer
+	// states), later ones from the chain built before (a neighbour).
+	hint := w.last + w.last/4
+	if hint == 0 {
+		hint = 1 << 12
+		if p.Kind == BaseStock && bound <= float64(opt.MaxStates) {
+			hint = int(bound)
+		}
+	}
+	hint = min(hint, int(lostMemoryLimit/perState/4)+1)
+	c := &lostChain{L: L, top: top, k: k}
+	w.tuples = slices.Grow(w.tuples[:0], k*hint)
+	w.avail, w.groups, w.rowPtr = w.avail[:0], w.groups[:0], append(w.rowPtr[:0], 0)
+	w.order, w.ordFreq, w.ordQty = w.order[:0], w.ordFreq[:0], w.ordQty[:0]
+	ix := &w.ix
+	ix.reset(top, k-1, hint/max(top, 1)+1)
+	ix.slots = slices.Grow(ix.slots, hint)
+
+	// memory estimates the bytes of the chain so far with states growing
+	// to n, counted at the capacity of the buffers that grow, and the
+	// transitions and solver vectors they will need.
+	// A group keyed by bytes holds its key too.
+	keyBytes := 0.0
+	if ix.large != nil {
+		keyBytes = float64(k-1) + 16
+	}
+	memory := func(n, nnz int) float64 {
+		g := float64(ix.groups())
+		return lostMemory(L, float64(max(n, cap(w.avail))), float64(nnz), float64(cap(ix.slots)), g) + g*keyBytes
 	}
 
 	// With L = 0, nx[x] = x + Order(x) is the on-hand after the next
@@ -601,8 +606,10 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 			row++
 			if ix.slots[g+y] < 0 {
 				if len(w.tuples)+k > cap(w.tuples) {
-					if n := len(w.tuples)/k + 1; memory(2*n, nnz) > lostMemoryLimit {
-						return nil, memoryError(L, float64(n), false, memory(2*n, nnz))
+					// Growing keeps the old buffer until the copy is made.
+					n := len(w.tuples)/k + 1
+					if m := memory(2*n, nnz) + float64(4*cap(w.tuples)); m > lostMemoryLimit {
+						return nil, memoryError(L, float64(n), m)
 					}
 				}
 				ix.slots[g+y] = int32(len(w.tuples) / k)
@@ -623,13 +630,13 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 		}
 		if i%256 == 255 {
 			if m := memory(len(w.tuples)/k, nnz); m > lostMemoryLimit {
-				return nil, memoryError(L, float64(len(w.tuples)/k), false, m)
+				return nil, memoryError(L, float64(len(w.tuples)/k), m)
 			}
 		}
 	}
 	n := len(w.tuples) / k
 	if m := memory(n, nnz); m > lostMemoryLimit {
-		return nil, memoryError(L, float64(n), false, m)
+		return nil, memoryError(L, float64(n), m)
 	}
 	c.tuples, c.avail, c.order = w.tuples, w.avail, w.order
 	w.col, w.val = grow(w.col, nnz), grow(w.val, nnz)
@@ -730,12 +737,12 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 // lostProbeMax is the largest number of states lostProbe is asked to
 // find: it is run only when so few states pass the memory limit (a
 // pipeline of about a thousand periods or more).
-const lostProbeMax = 1 << 20
+const lostProbeMax = 1 << 22
 
 // lostProbe returns how many distinct states a seeded random walk of the
 // lost-sales chain visits from its root (the root of buildLost, reached as
 // it is when P(D = 0) is not stored), stopping at need states or after
-// 4 need + 1024 periods. Each period draws a stored transition, so every
+// 8 need + 1024 periods. Each period draws a stored transition, so every
 // state visited is one buildLost would build: the count is a lower bound
 // on the chain's states. States are told apart by a 64-bit polynomial hash
 // of the tuple, rolled in O(1) per period over a ring of the pipeline; two
@@ -800,7 +807,7 @@ func lostProbe(dtab lossTable, p Policy, top, L int, keep func(int) bool, folded
 	}
 	rng := rand.New(rand.NewPCG(20261202, uint64(L)))
 	seen := make(map[uint64]struct{}, min(need, 1<<16))
-	steps := 4*need + 1024
+	steps := 8*need + 1024
 	for t := 0; t < steps && len(seen) < need; t++ {
 		if t%4096 == 4095 && opt.Context != nil {
 			if err := opt.Context.Err(); err != nil {
@@ -894,7 +901,7 @@ func solveLost(dist inventory.Distribution, p Policy, L int, opt Options, w *los
 		return nil, lossTable{}, fmt.Errorf("%v: %w", p, &SizeError{Chain: "lost-sales", Bound: lostBound(top, L), Limit: opt.MaxStates, What: "states"})
 	}
 	if b := lostStateBytes(L); b > lostMemoryLimit {
-		return nil, lossTable{}, fmt.Errorf("%v: %w", p, memoryError(L, 1, true, b))
+		return nil, lossTable{}, fmt.Errorf("%v: %w", p, memoryError(L, 1, b))
 	}
 	if opt.Context != nil {
 		if err := opt.Context.Err(); err != nil {

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"strings"
 	"testing"
 
@@ -520,4 +521,35 @@ func TestLostNegligibleTransitions(t *testing.T) {
 // proportional rescaling of the row; the lump moved it least).
 func foldEqual(got, want float64) bool {
 	return math.Abs(got-want) <= 1e-12*math.Abs(want)+1e-17
+}
+
+// TestLostMemoryRefused: a lead time so long that a few thousand states
+// pass the memory limit is refused before the chain is allocated, with a
+// *LostMemoryError that unwraps to a *SizeError, whatever the state limit
+// (issue 10: --lead-time 1000000 asked for 16 GB, and with --max-states
+// 1e8 crashed after 59 s). A state whose tuple alone passes the limit is
+// refused before the demand table is built.
+func TestLostMemoryRefused(t *testing.T) {
+	sys := lostSystem(poisson(t, 5), 1_000_000, 1, 9, 0, 0)
+	for _, ms := range []int{0, 100_000_000} {
+		var before, after runtime.MemStats
+		runtime.ReadMemStats(&before)
+		_, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: 30}, Options{MaxStates: ms})
+		runtime.ReadMemStats(&after)
+		var me *LostMemoryError
+		var se *SizeError
+		if !errors.As(err, &me) || !errors.As(err, &se) {
+			t.Fatalf("max states %d: err = %v, want a *LostMemoryError and a *SizeError", ms, err)
+		}
+		if msg := err.Error(); !strings.Contains(msg, "lead time 1000000") || !strings.Contains(msg, "2.0 GiB") || strings.Contains(msg, "\n") {
+			t.Errorf("message %q: want one line naming the lead time and the limit", msg)
+		}
+		if got := after.TotalAlloc - before.TotalAlloc; got > 64<<20 {
+			t.Errorf("max states %d: %d bytes allocated before the refusal, want under 64 MiB", ms, got)
+		}
+	}
+	huge := lostSystem(poisson(t, 5), 1<<30, 1, 9, 0, 0)
+	if _, err := Evaluate(huge, Policy{Kind: BaseStock, OrderUpTo: 3}, Options{}); !errors.As(err, new(*LostMemoryError)) {
+		t.Errorf("lead time 2^30: err = %v, want a *LostMemoryError", err)
+	}
 }
