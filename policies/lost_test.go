@@ -1,6 +1,7 @@
 package policies
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -551,5 +552,25 @@ func TestLostMemoryRefused(t *testing.T) {
 	huge := lostSystem(poisson(t, 5), 1<<30, 1, 9, 0, 0)
 	if _, err := Evaluate(huge, Policy{Kind: BaseStock, OrderUpTo: 3}, Options{}); !errors.As(err, new(*LostMemoryError)) {
 		t.Errorf("lead time 2^30: err = %v, want a *LostMemoryError", err)
+	}
+}
+
+// TestLostSearchRefusesEarly: a base-stock search whose start (the
+// backorder optimum for b - c) has a chain over the state limit stops at
+// once with the reason, a *SizeError, instead of trying level after level
+// (issue 10: Poisson 20, L = 6 ran 2 minutes and 1 GB before giving up).
+// A done context stops a search with the context's error.
+func TestLostSearchRefusesEarly(t *testing.T) {
+	sys := lostSystem(poisson(t, 20), 6, 1, 9, 0, 0)
+	o, err := Optimize(sys, BaseStock, SearchOptions{Eval: Options{MaxStates: 20000}})
+	var se *SizeError
+	if !errors.As(err, &se) || !strings.Contains(err.Error(), "scan starts at") {
+		t.Fatalf("optimum %v, err = %v: want a *SizeError naming the start", o, err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	_, err = Optimize(lostOptCase(t), SS, SearchOptions{Eval: Options{Context: ctx}})
+	if !errors.Is(err, context.Canceled) {
+		t.Errorf("err = %v, want context.Canceled", err)
 	}
 }
