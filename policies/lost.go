@@ -354,6 +354,7 @@ type lostWork struct {
 	folded, acc                  []float64
 	touched                      []int32
 	nx, oq                       []int32
+	kd                           []int
 	mark                         []int
 	sortBuf                      []entry
 	ix                           stateIndex
@@ -433,6 +434,14 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 	w.folded = grow(w.folded, top+2) // folded[a] = sum of P(D = d), d < a, 0 < P(D = d) < floor
 	npos, folded := w.npos, w.folded
 	npos[0], folded[0] = 0, 0
+	// kd lists the stored demands below top+1, in increasing order.
+	w.kd = w.kd[:0]
+	for d := 0; d <= top && d < len(pmf); d++ {
+		if keep(d) {
+			w.kd = append(w.kd, d)
+		}
+	}
+	kd := w.kd
 	for a := 1; a <= top+1; a++ {
 		npos[a], folded[a] = npos[a-1], folded[a-1]
 		switch d := a - 1; {
@@ -590,13 +599,17 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 		// (numbering on-hand upwards instead took 25 times the sweeps on
 		// an s-S chain).
 		row := 0
-		for d := 0; d <= a; d++ {
-			x := a - d
+		lump := a == 0 || dtab.over[a-1] > 0 // else demand never empties the shelf from a
+		for j := 0; j <= len(kd); j++ {
+			var x int
 			switch {
-			case x > 0 && !keep(d):
+			case j < len(kd) && kd[j] < a:
+				x = a - kd[j]
+			case lump:
+				x, j = 0, len(kd)
+			default:
+				j = len(kd)
 				continue
-			case x == 0 && a > 0 && !(dtab.over[a-1] > 0):
-				continue // demand never empties the shelf from a
 			}
 			y := target(x, c)
 			if mark[y] == i+1 {
@@ -678,17 +691,20 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 		// numbered by it comes out sorted.
 		last := -1
 		var freq, qty float64 // L = 0: the next review's order, from the exact pmf
-		for d := 0; d < a && d < len(pmf); d++ {
-			if L == 0 && pmf[d] > 0 {
-				if q := w.oq[a-d]; q > 0 {
+		if L == 0 {
+			for d := 0; d < a && d < len(pmf); d++ {
+				if q := w.oq[a-d]; q > 0 && pmf[d] > 0 {
 					freq += pmf[d]
 					qty += pmf[d] * float64(q)
 				}
 			}
-			if keep(d) {
-				add(a-d, pmf[d])
-				last = a - d
+		}
+		for _, d := range kd {
+			if d >= a {
+				break
 			}
+			add(a-d, pmf[d])
+			last = a - d
 		}
 		fold := folded[a]
 		var lump float64
