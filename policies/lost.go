@@ -1033,3 +1033,9 @@ func evaluateLostIn(sys inventory.System, p Policy, opt Options, w *lostWork) (*
 	}
 	return e, nil
 }
+
+// LostStateBound returns C(top+k, k), k = max(L, 1): the most states the
+// lost-sales chain of a policy with highest position top and lead time L
+// can have (the chain of the state after the arrival; see lostChain).
+// s-S and s-nQ policies with large orders reach far fewer.
+func LostStateBound(top, L int) float64 { return lostBound(top, L) }
