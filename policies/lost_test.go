@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"strings"
 	"testing"
 
@@ -572,5 +573,34 @@ func TestLostSearchRefusesEarly(t *testing.T) {
 	_, err = Optimize(lostOptCase(t), SS, SearchOptions{Eval: Options{Context: ctx}})
 	if !errors.Is(err, context.Canceled) {
 		t.Errorf("err = %v, want context.Canceled", err)
+	}
+}
+
+// TestLostWorkReuse: chains built one after another in one lostWork, as a
+// search builds them (larger, smaller, other kinds), give exactly the
+// figures of chains built afresh (common practice: a reused buffer must
+// not leak state from one build into the next).
+func TestLostWorkReuse(t *testing.T) {
+	for _, L := range []int{0, 1, 2, 3} {
+		sys := lostSystem(poisson(t, 4), L, 1, 9, 5, 2)
+		opt := Options{MaxStates: DefaultMaxStates, Levels: true}
+		var w lostWork
+		for _, p := range []Policy{
+			{Kind: BaseStock, OrderUpTo: 14}, {Kind: SS, ReorderPoint: 3, OrderUpTo: 25},
+			{Kind: BaseStock, OrderUpTo: 6}, {Kind: SNQ, ReorderPoint: 5, OrderMultiple: 9},
+			{Kind: SS, ReorderPoint: -1, OrderUpTo: 4}, {Kind: BaseStock, OrderUpTo: 18},
+		} {
+			got, err := evaluateLostIn(sys, p, opt, &w)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want, err := evaluateLost(sys, p, opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got.Figures != want.Figures || got.States != want.States || !slices.Equal(got.Levels.P, want.Levels.P) {
+				t.Errorf("L=%d %v: reused %+v (%d states), fresh %+v (%d states)", L, p, got.Figures, got.States, want.Figures, want.States)
+			}
+		}
 	}
 }
