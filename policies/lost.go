@@ -758,7 +758,9 @@ const lostProbeMax = 1 << 22
 // lostProbe returns how many distinct states a seeded random walk of the
 // lost-sales chain visits from its root (the root of buildLost, reached as
 // it is when P(D = 0) is not stored), stopping at need states or after
-// 8 need + 1024 periods. Each period draws a stored transition, so every
+// 8 need + 1024 periods, or once 4 n + 1024 periods in a row found no
+// new state (n those seen: a small chain). Each period draws a stored
+// transition, so every
 // state visited is one buildLost would build: the count is a lower bound
 // on the chain's states. States are told apart by a 64-bit polynomial hash
 // of the tuple, rolled in O(1) per period over a ring of the pipeline; two
@@ -824,13 +826,20 @@ func lostProbe(dtab lossTable, p Policy, top, L int, keep func(int) bool, folded
 	rng := rand.New(rand.NewPCG(20261202, uint64(L)))
 	seen := make(map[uint64]struct{}, min(need, 1<<16))
 	steps := 8*need + 1024
+	fresh := 0 // the last period that found a new state
 	for t := 0; t < steps && len(seen) < need; t++ {
 		if t%4096 == 4095 && opt.Context != nil {
 			if err := opt.Context.Err(); err != nil {
 				return 0, fmt.Errorf("sizing the lost-sales chain: %w", err)
 			}
 		}
-		seen[h*0xbf58476d1ce4e5b9^uint64(a)] = struct{}{}
+		key := h*0xbf58476d1ce4e5b9 ^ uint64(a)
+		if _, ok := seen[key]; !ok {
+			seen[key] = struct{}{}
+			fresh = t
+		} else if t-fresh > 4*len(seen)+1024 {
+			break // a small chain: the walk keeps revisiting it
+		}
 		// Draw the on-hand x left by this period's demand among the
 		// stored transitions from a: d < a with keep(d), or the lump.
 		x := 0

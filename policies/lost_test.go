@@ -604,3 +604,21 @@ func TestLostWorkReuse(t *testing.T) {
 		}
 	}
 }
+
+// TestLostLongPipelineSmallChain: a lead time of 400 with an s-S policy
+// that keeps at most one order in the pipeline (s = 0, S = 10, demand 0
+// or 1) has a small chain although its a-priori bound is astronomical:
+// the memory probe must give up on it and the chain be built. On hand is
+// 1..10 with nothing on order (10 states), or 0 with the order of 10 at
+// one of the L positions, due in 0..L-1 periods (400 states): 410 states
+// (derived by hand). Units ordered = units served (common practice).
+func TestLostLongPipelineSmallChain(t *testing.T) {
+	sys := lostSystem(pmf(t, 0.5, 0.5), 400, 1, 9, 5, 0)
+	e, err := Evaluate(sys, Policy{Kind: SS, ReorderPoint: 0, OrderUpTo: 10}, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if e.States != 410 || e.FlowBalance > 1e-12 || e.Diagnostics.Residual > tight {
+		t.Errorf("%d states (want 410), flow balance %g, residual %g", e.States, e.FlowBalance, e.Diagnostics.Residual)
+	}
+}
