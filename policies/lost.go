@@ -350,7 +350,6 @@ type lostWork struct {
 	rowPtr                       []int
 	col                          []int32
 	val                          []float64
-	npos                         []int
 	folded, acc                  []float64
 	touched                      []int32
 	nx, oq                       []int32
@@ -430,10 +429,9 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 	// a - d, the lump P(D >= a) to 0. The first pass enumerates the states
 	// (and counts each row's transitions); the second writes the rows into
 	// arrays of the exact size.
-	w.npos = grow(w.npos, top+2)     // npos[a] = #{d < a : keep(d)}
 	w.folded = grow(w.folded, top+2) // folded[a] = sum of P(D = d), d < a, 0 < P(D = d) < floor
-	npos, folded := w.npos, w.folded
-	npos[0], folded[0] = 0, 0
+	folded := w.folded
+	folded[0] = 0
 	// kd lists the stored demands below top+1, in increasing order.
 	w.kd = w.kd[:0]
 	for d := 0; d <= top && d < len(pmf); d++ {
@@ -443,17 +441,15 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 	}
 	kd := w.kd
 	for a := 1; a <= top+1; a++ {
-		npos[a], folded[a] = npos[a-1], folded[a-1]
-		switch d := a - 1; {
-		case keep(d):
-			npos[a]++
-		case d < len(pmf) && pmf[d] > 0:
+		folded[a] = folded[a-1]
+		if d := a - 1; !keep(d) && d < len(pmf) && pmf[d] > 0 {
 			folded[a] += pmf[d]
 		}
 	}
 	// A state passes the memory limit alone: refuse at once. Otherwise,
-	// when a few thousand states pass it, prove first that the chain has
-	// that many (the probe costs O(need) time and memory).
+	// when a few million states or fewer pass it (a long pipeline), prove
+	// first that the chain has that many (the probe costs O(need) time
+	// and memory, not the chain's).
 	if perState > lostMemoryLimit {
 		return nil, memoryError(L, 1, perState)
 	}
