@@ -93,7 +93,7 @@ func TestOptimizeRefused(t *testing.T) {
 		{[]string{"--max-stockout-probability", "-0.5"}, 2, "--max-stockout-probability"},
 		{[]string{"--policy", "min-max"}, 2, "--policy"},
 		{[]string{"--holding-cost", "0"}, 2, "--holding-cost"},
-		{[]string{"--unmet", "lost", "--lead-time", "3", "--max-states", "10"}, 2, "--max-states 10: no policy within reorder_point"},
+		{[]string{"--unmet", "lost", "--lead-time", "3", "--max-states", "10"}, 2, "--max-states 10: lost-sales search: the compass search starts at"},
 	} {
 		args := append(append([]string{}, optClassic...), c.args...)
 		code, out, errs := optRun(args...)
