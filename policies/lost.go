@@ -1,10 +1,12 @@
 package policies
 
 import (
+	"context"
 	"encoding/binary"
 	"fmt"
 	"math"
 	"math/big"
+	"math/rand/v2"
 	"slices"
 
 	"ergostock/chain"
@@ -26,53 +28,105 @@ const indexSlotsPerState = 16
 // each, unless Options.Chain names a method.
 const lostDenseStates = 300
 
-// lostChain is the chain of the state at review, before ordering, in lost
-// mode: on-hand x and the outstanding orders o_1..o_L (o_1 the oldest, due
-// this period). Order q = p.Order(x + sum o). With L = 0 the order arrives at
-// once; with L >= 1 o_1 arrives and q joins the end of the pipeline. With
-// a = on-hand after the arrival, demand d leaves (a - d)^+ on hand and loses
-// (d - a)^+. Only the states reachable from (top, 0, ..., 0) are built.
+// lostChain is the lost-sales chain of the state after the arrival. With
+// L >= 1 the state at the review of period t is z = (a, o_2, ..., o_L): a
+// the stock on hand once the order due this period, o_1, has arrived
+// (a = x + o_1, x the on-hand at the review) and o_2..o_L the later
+// orders (o_2 due next period); with L = 0 it is z = (a), the stock on
+// hand once the order just placed has arrived. Only the states reachable
+// from (top, 0, ..., 0) are built.
+//
+// The chain of z is exact, and one dimension smaller than that of the
+// state at review s = (x, o_1, ..., o_L) of the event order (review,
+// receive, demand; SPEC section 1). Proof. (i) z is Markov: with L >= 1
+// the inventory position at the review is x + o_1 + ... + o_L = a + o_2 +
+// ... + o_L, a function of z, so the order q = Order(a + o_2 + ... + o_L)
+// is one too; demand D leaves (a - D)^+ on hand, and next period's order
+// o_2 arrives, so
+//
+//	z' = ((a - D)^+ + o_2, o_3, ..., o_L, q)    (L >= 2),
+//	z' = (a - D)^+ + q                          (L = 1),
+//	z' = x' + Order(x'),  x' = (a - D)^+        (L = 0),
+//
+// a function of z and this period's demand alone, which is independent of
+// the past: z' = f(z, D). (ii) z = phi(s) with phi(x, o_1, ..., o_L) =
+// (x + o_1, o_2, ..., o_L) (L = 0: phi(x) = x + Order(x)), so the chain
+// of z is the image of the chain of s: the image of a stationary law of s
+// is a stationary law of z, and the states reachable from (top, 0, ..., 0)
+// map onto those reachable from phi(top, 0, ..., 0) = (top, 0, ..., 0).
+// (iii) Every figure of SPEC section 2 is E[g(z, D)] with D independent of
+// z: on-hand at the end of the period (a - D)^+, lost sales (D - a)^+,
+// a stockout 1{D > a}, units served min(D, a), and, with L >= 1, the order
+// q = Order(a + o_2 + ... + o_L) of the review; with L = 0 the order of
+// the next review, q' = Order((a - D)^+), whose stationary law is that of
+// the order of this review. So both chains give the same numbers, from
+// C(top+k, k) states at most (k = max(L, 1): tuples of k non-negative
+// integers with sum <= top) instead of C(top+L+1, L+1): 46,376 instead of
+// 324,632 for L = 4, top = 30, and top+1 instead of (top+1)(top+2)/2 for
+// L = 1. TestLostPostArrivalMatchesReview checks every figure against the
+// chain of s to 1e-12.
 type lostChain struct {
 	L, top int
-	tuples []int32 // state i is tuples[i*(L+1) : (i+1)*(L+1)] = x, o_1..o_L
+	k      int     // components of a state: max(L, 1)
+	tuples []int32 // state i is tuples[i*k : (i+1)*k] = a, o_2..o_L
 	avail  []int32 // a: on-hand after the arrival, per state
-	order  []int32 // q: quantity ordered at the review, per state
-	m      *chain.CSR
-	pi     []float64
-	diag   chain.Diagnostics
+	// order is the order q of the review, per state (L >= 1); with L = 0,
+	// ordFreq and ordQty hold P(q' > 0) and E[q'] for the order q' of the
+	// next review instead.
+	order           []int32
+	ordFreq, ordQty []float64
+	m               *chain.CSR
+	pi              []float64
+	diag            chain.Diagnostics
 	// negl is the largest probability mass folded into another transition
 	// of the same row (transitions below negligibleTransition; 0 with
 	// Options.Exhaustive).
 	negl float64
 }
 
-// ip returns the inventory position at review (before ordering) of state i.
+// ip returns the sum of the components of state i: the inventory position
+// at the review before ordering (L >= 1), or after ordering (L = 0).
 func (c *lostChain) ip(i int) int {
 	var s int
-	for _, v := range c.tuples[i*(c.L+1) : (i+1)*(c.L+1)] {
+	for _, v := range c.tuples[i*c.k : (i+1)*c.k] {
 		s += int(v)
 	}
 	return s
 }
 
-// lostBound returns C(top+L+1, L+1), the number of tuples (x, o_1..o_L) of
-// non-negative integers with sum <= top, as a float64 (+Inf if it overflows).
+// orders returns P(order > 0) and E[order] of the review of state i (with
+// L = 0, of the next review; see lostChain).
+func (c *lostChain) orders(i int) (freq, qty float64) {
+	if c.L == 0 {
+		return c.ordFreq[i], c.ordQty[i]
+	}
+	if q := c.order[i]; q > 0 {
+		return 1, float64(q)
+	}
+	return 0, 0
+}
+
+// lostBound returns C(top+k, k) with k = max(L, 1), the number of tuples
+// (a, o_2, ..., o_L) of non-negative integers with sum <= top, as a
+// float64 (+Inf if it overflows).
 func lostBound(top, L int) float64 {
 	if top < 0 {
 		return 1
 	}
+	k := max(L, 1)
 	var b big.Int
-	b.Binomial(int64(top+L+1), int64(L+1))
+	b.Binomial(int64(top+k), int64(k))
 	f, _ := new(big.Float).SetInt(&b).Float64()
 	return f
 }
 
-// stateIndex maps state tuples (x, o_1..o_L) to indices in two levels: the
-// pipeline o_1..o_L picks a group (a map keyed by the mixed-radix number of
-// radix top+1 when (top+1)^L fits in 63 bits, else by the tuple's bytes),
-// and within a group on-hand x indexes a slice directly, x <= top - sum(o).
-// All successors of a state share the next pipeline, so building a row
-// costs one map access whatever the number of its transitions.
+// stateIndex maps state tuples (a, o_2..o_L) to indices in two levels: the
+// pipeline o_2..o_L picks a group (a map keyed by the mixed-radix number of
+// radix top+1 when (top+1)^(L-1) fits in 63 bits, else by the tuple's
+// bytes), and within a group on-hand a indexes a slice directly,
+// a <= top - sum(o). All successors of a state share the next pipeline, so
+// building a row costs one map access whatever the number of its
+// transitions.
 type stateIndex struct {
 	top   int
 	radix uint64
@@ -82,46 +136,65 @@ type stateIndex struct {
 	slots []int32 // state index, or -1 for a state not yet seen
 }
 
-func newStateIndex(top, L, hint int) *stateIndex {
-	ix := &stateIndex{top: top, radix: uint64(top) + 1}
-	if float64(L)*math.Log2(float64(top)+1) < 63 {
-		ix.small = make(map[uint64]int32, hint)
-	} else {
-		ix.large = make(map[string]int32, hint)
-	}
+// newStateIndex returns an index for pipelines of n components (n = L-1).
+func newStateIndex(top, n, hint int) *stateIndex {
+	ix := &stateIndex{}
+	ix.reset(top, n, hint)
 	return ix
 }
 
+// reset empties ix for pipelines of n components below top, keeping its
+// storage.
+func (ix *stateIndex) reset(top, n, hint int) {
+	ix.top, ix.radix = top, uint64(top)+1
+	ix.slots = ix.slots[:0]
+	if float64(n)*math.Log2(float64(top)+1) < 63 {
+		ix.large = nil
+		if ix.small == nil {
+			ix.small = make(map[uint64]int32, hint)
+		}
+		clear(ix.small)
+		return
+	}
+	ix.small = nil
+	if ix.large == nil {
+		ix.large = make(map[string]int32, hint)
+	}
+	clear(ix.large)
+}
+
+// groups returns the number of groups in ix.
+func (ix *stateIndex) groups() int { return len(ix.small) + len(ix.large) }
+
 // baseStockStart returns a starting vector for the lost-sales chain of a
 // base-stock policy: the law the state would have if nothing were lost.
-// Then every order replaces one period's demand, so the pipeline o_1..o_L
-// holds L independent demands and on-hand at review is x = S - sum(o) - D'
-// for one more demand D' (0 when that is negative, the lump):
+// Then every order replaces one period's demand, so the later orders
+// o_2..o_L are L-1 independent demands and the inventory position at
+// review, a + o_2 + ... + o_L, is S less one more demand D' (a = 0 when
+// that is negative, the lump):
 //
-//	init(x, o) = prod_k P(D = o_k) * P(D = S - sum(o) - x)   for x > 0,
+//	init(a, o) = prod_k P(D = o_k) * P(D = S - sum(o) - a)   for a > 0,
 //	init(0, o) = prod_k P(D = o_k) * P(D >= S - sum(o)).
 //
-// It only changes the number of sweeps; the answer meets the solver's
-// tolerance from any start. Near the optimum, where little is lost, it is
-// close to the answer (1 sweep instead of 17 for Poisson 8.4, L = 1,
-// S = 60); with heavy losses it can take a few more sweeps than the
-// uniform start (53 instead of 50 for Poisson 6, L = 2, S = 15; mixing in
-// the uniform vector did not help).
+// (With L = 0 the chain has the single state a = S.) It only changes the
+// number of sweeps; the answer meets the solver's tolerance from any start.
 func baseStockStart(c *lostChain, dtab lossTable) []float64 {
 	n := c.m.Len()
-	wd := c.L + 1
+	k := c.k
 	init := make([]float64, n)
 	var mass float64
 	for i := range n {
-		t := c.tuples[i*wd : (i+1)*wd]
+		t := c.tuples[i*k : (i+1)*k]
 		v, r := 1.0, c.top-int(t[0])
 		for _, o := range t[1:] {
 			v *= dtab.pmf[o]
 			r -= int(o)
 		}
 		switch {
-		case t[0] > 0:
+		case t[0] > 0 && r < len(dtab.pmf):
 			v *= dtab.pmf[r]
+		case t[0] > 0:
+			v = 0
 		case r > 0:
 			v *= dtab.over[r-1]
 		}
@@ -172,14 +245,119 @@ func (ix *stateIndex) group(o []int32) int {
 	return int(off)
 }
 
+// lostMemoryLimit is the most memory a lost-sales chain may take, as
+// estimated by lostMemory: 2 GiB, whatever Options.MaxStates allows, so
+// that a run stays within a 4 GB cap with the transient copies of growing
+// buffers and the solver's work.
+const lostMemoryLimit = 2 << 30
+
+// Bytes of memory per state, per transition, per index slot and per
+// pipeline group of a lost-sales chain, as lostMemory counts them: a
+// state holds its k components, a, the order (L >= 1) or two float64
+// order figures (L = 0), its group and its row pointer, and the solver's
+// vectors (the stationary law and about five more of float64, the
+// structural pass); a transition its column and value, twice (the matrix
+// and the transpose that Gauss-Seidel sweeps); a group its map entry.
+const (
+	lostBytesPerStateFixed = 4 + 4 + 4 + 8 + 8 + 6*8 + 16
+	lostBytesPerTransition = 2 * (4 + 8)
+	lostBytesPerSlot       = 4
+	lostBytesPerGroup      = 48
+)
+
+// lostStateBytes returns the bytes per state of a lost-sales chain with
+// lead time L (see lostBytesPerStateFixed).
+func lostStateBytes(L int) float64 {
+	b := float64(4*max(L, 1) + lostBytesPerStateFixed)
+	if L == 0 {
+		b += 16 - 4
+	}
+	return b
+}
+
+// lostMemory returns the estimated bytes of a lost-sales chain of n
+// states, nnz transitions, slots index slots and groups pipelines with
+// lead time L.
+func lostMemory(L int, n, nnz, slots, groups float64) float64 {
+	return n*lostStateBytes(L) + nnz*lostBytesPerTransition + slots*lostBytesPerSlot + groups*lostBytesPerGroup
+}
+
+// LostMemoryError refuses a lost-sales chain whose memory, estimated
+// before or while it is built, passes the limit of 2 GiB. It unwraps to
+// a *SizeError (What "bytes of memory"), so callers that map a
+// *SizeError to a refusal for size treat both alike.
+type LostMemoryError struct {
+	LeadTime int
+	States   float64 // a lower bound on the reachable states: counted, or proven by lostProbe
+	Bytes    float64 // estimated memory of those states and their transitions
+	Size     *SizeError
+}
+
+func (e *LostMemoryError) Error() string {
+	return fmt.Sprintf("lost-sales chain with lead time %d needs at least %.0f states of %.0f bytes each with their transitions, an estimated %s, above the memory limit of %s (lower the lead time or the order-up-to level)",
+		e.LeadTime, e.States, lostStateBytes(e.LeadTime), formatBytes(e.Bytes), formatBytes(lostMemoryLimit))
+}
+
+func (e *LostMemoryError) Unwrap() error { return e.Size }
+
+// formatBytes writes b in the largest binary unit that keeps it >= 1.
+func formatBytes(b float64) string {
+	units := []string{"B", "KiB", "MiB", "GiB", "TiB", "PiB", "EiB"}
+	u := 0
+	for b >= 1024 && u < len(units)-1 {
+		b /= 1024
+		u++
+	}
+	if u == 0 {
+		return fmt.Sprintf("%.0f B", b)
+	}
+	return fmt.Sprintf("%.1f %s", b, units[u])
+}
+
+func memoryError(L int, states, bytes float64) error {
+	return &LostMemoryError{LeadTime: L, States: states, Bytes: bytes,
+		Size: &SizeError{Chain: "lost-sales", Bound: bytes, Limit: lostMemoryLimit, What: "bytes of memory", Counted: true}}
+}
+
+// lostWork holds the buffers of lost-sales chain construction. A search
+// keeps one and builds every chain in it, so that each chain reuses the
+// storage of the last and is sized from it; its zero value is ready.
+// A chain built in it is valid until the next build.
+type lostWork struct {
+	tuples, avail, order, groups []int32
+	ordFreq, ordQty              []float64
+	rowPtr                       []int
+	col                          []int32
+	val                          []float64
+	folded, acc                  []float64
+	touched                      []int32
+	nx, oq                       []int32
+	kd                           []int
+	mark                         []int
+	sortBuf                      []entry
+	ix                           stateIndex
+	// last is the number of states of the last chain built.
+	last int
+}
+
+// grow returns s with room for n elements, reusing its storage.
+func grow[T any](s []T, n int) []T {
+	if cap(s) < n {
+		return make([]T, n)
+	}
+	return s[:n]
+}
+
 // buildLost enumerates the reachable states breadth first, then writes the
 // transitions: from a state with a on hand after the arrival, demand d =
-// 0..a-1 (exact probabilities) leads to a - d on hand, and the lump
-// P(D >= a) from the closed tail to 0 on hand. No demand tail is cut. The
-// root, (top, 0, ..., 0) unless that state cannot be re-entered (see
-// rootSteps), is state 0 and the numbering is breadth-first, which the
-// Gauss-Seidel sweeps and chain.Solve's structural check rely on for speed
-// (not for correctness).
+// 0..a-1 (exact probabilities) leaves a - d on hand, and the lump
+// P(D >= a) from the closed tail leaves 0; the successor's on-hand after
+// the next arrival is that plus o_2 (L >= 2) or the order q (L = 1), or,
+// with L = 0, x' + Order(x') for x' left on hand (successors that
+// coincide are merged). No demand tail is cut. The root, (top, 0, ..., 0)
+// unless that state cannot be re-entered (see rootSteps), is state 0 and
+// the numbering is breadth-first, which the Gauss-Seidel sweeps and
+// chain.Solve's structural check rely on for speed (not for correctness).
 //
 // The 1e-20 rule of the inventory-position chain applies here too: unless
 // opt.Exhaustive is set, a demand d < a with 0 < P(D = d) <
@@ -192,14 +370,21 @@ func (ix *stateIndex) group(o []int32) int {
 // folded: the figures take their per-state expectations from the demand
 // table (see evaluateLost).
 //
-// Memory stays within the limit whichever way: when the a-priori bound
-// C(top+L+1, L+1) on the states (and the bound it implies on transitions)
-// is within it, the chain is built directly; otherwise the reachable chain,
-// usually far smaller than the bound (an s-S policy with large orders keeps
-// at most one or two orders in the pipeline), is enumerated with running
-// counts of states, transitions and index slots, and refused with a
-// *SizeError as soon as one passes its limit.
-func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, error) {
+// Memory stays within the limits whichever way: the reachable chain,
+// usually far smaller than the a-priori bound C(top+k, k) (an s-S policy
+// with large orders keeps at most one or two orders in the pipeline), is
+// enumerated with running counts of states, transitions and index slots,
+// and refused with a *SizeError as soon as one passes its limit or the
+// estimated memory (lostMemory, with the capacity of every growing
+// buffer) would pass lostMemoryLimit. With a very long pipeline, where
+// even a few states pass that limit, a random walk on the chain first
+// proves a lower bound on its states (lostProbe) and refuses before
+// anything of the chain's size is allocated. opt.Context is checked every
+// 4096 states. The chain lives in w (a new lostWork when w is nil).
+func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (*lostChain, error) {
+	if w == nil {
+		w = &lostWork{}
+	}
 	bound := lostBound(top, L)
 	support := 0
 	for _, v := range dtab.pmf {
@@ -209,22 +394,8 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 	}
 	maxTransitions := transitionsPerState * opt.MaxStates
 	maxSlots := indexSlotsPerState * opt.MaxStates
-	w := L + 1
-	// The a-priori bound is the reachable count for base-stock; s-S and
-	// s-nQ reach far fewer states, so a loose bound only seeds the sizes.
-	hint := 1 << 12
-	if bound <= float64(min(opt.MaxStates, 1<<22)) {
-		hint = int(bound)
-	}
-	c := &lostChain{L: L, top: top, tuples: make([]int32, 0, w*hint)}
-	ix := newStateIndex(top, L, hint/max(top, 1)+1)
-	ix.slots = slices.Grow(ix.slots, hint)
-
-	// A row is fixed by a (on hand after the arrival) and the group g of
-	// the next pipeline: demand d < a with P(D = d) > 0 leads to on-hand
-	// a - d, the lump P(D >= a) to 0. The first pass enumerates the states
-	// (and counts each row's transitions, npos[a] + 1); the second writes
-	// the rows into arrays of the exact size.
+	k := max(L, 1)
+	perState := lostStateBytes(L)
 	pmf := dtab.pmf
 	floor := negligibleTransition
 	if opt.Exhaustive {
@@ -232,39 +403,120 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 	}
 	// keep reports whether the transition of demand d is stored.
 	keep := func(d int) bool { return d < len(pmf) && pmf[d] > 0 && pmf[d] >= floor }
-	npos := make([]int, top+2)       // npos[a] = #{d < a : keep(d)}
-	folded := make([]float64, top+2) // folded[a] = sum of P(D = d), d < a, 0 < P(D = d) < floor
+	// A row is fixed by a (on hand after the arrival) and the group g of
+	// the next pipeline: demand d < a with P(D = d) > 0 leads to on-hand
+	// a - d, the lump P(D >= a) to 0. The first pass enumerates the states
+	// (and counts each row's transitions); the second writes the rows into
+	// arrays of the exact size.
+	w.folded = grow(w.folded, top+2) // folded[a] = sum of P(D = d), d < a, 0 < P(D = d) < floor
+	folded := w.folded
+	folded[0] = 0
+	// kd lists the stored demands below top+1, in increasing order.
+	w.kd = w.kd[:0]
+	for d := 0; d <= top && d < len(pmf); d++ {
+		if keep(d) {
+			w.kd = append(w.kd, d)
+		}
+	}
+	kd := w.kd
 	for a := 1; a <= top+1; a++ {
-		npos[a], folded[a] = npos[a-1], folded[a-1]
-		switch d := a - 1; {
-		case keep(d):
-			npos[a]++
-		case d < len(pmf) && pmf[d] > 0:
+		folded[a] = folded[a-1]
+		if d := a - 1; !keep(d) && d < len(pmf) && pmf[d] > 0 {
 			folded[a] += pmf[d]
 		}
 	}
-	rowLen := func(a int) int {
-		if a == 0 || dtab.over[a-1] > 0 {
-			return npos[a] + 1
-		}
-		return npos[a]
+	// A state passes the memory limit alone: refuse at once. Otherwise,
+	// when a few million states or fewer pass it (a long pipeline), prove
+	// first that the chain has that many (the probe costs O(need) time
+	// and memory, not the chain's).
+	if perState > lostMemoryLimit {
+		return nil, memoryError(L, 1, perState)
 	}
-	cur := make([]int32, w)
-	next := make([]int32, w)
-	// step sets next[1:] to the pipeline after the review of state cur
-	// and returns a and the order q.
-	step := func() (a, q int) {
+	if need := math.Floor(lostMemoryLimit/perState) + 1; need <= lostProbeMax && bound > need {
+		need = min(need, float64(opt.MaxStates)+1)
+		seen, err := lostProbe(dtab, p, top, L, keep, folded, int(need), opt)
+		if err != nil {
+			return nil, err
+		}
+		if float64(seen) >= need {
+			if float64(seen) > float64(opt.MaxStates) {
+				return nil, &SizeError{Chain: "lost-sales", Bound: bound, Limit: opt.MaxStates, What: "states", Counted: true}
+			}
+			return nil, memoryError(L, float64(seen), lostMemory(L, float64(seen), float64(seen), 0, 0))
+		}
+	}
+
+	// The first chain of a search is sized from the a-priori bound (the
+	// reachable count for base-stock; s-S and s-nQ reach far fewer
+	// states), later ones from the chain built before (a neighbour).
+	hint := w.last + w.last/4
+	if hint == 0 {
+		hint = 1 << 12
+		if p.Kind == BaseStock && bound <= float64(opt.MaxStates) {
+			hint = int(bound)
+		}
+	}
+	hint = min(hint, int(lostMemoryLimit/perState/4)+1)
+	c := &lostChain{L: L, top: top, k: k}
+	w.tuples = slices.Grow(w.tuples[:0], k*hint)
+	w.avail, w.groups, w.rowPtr = w.avail[:0], w.groups[:0], append(w.rowPtr[:0], 0)
+	w.order, w.ordFreq, w.ordQty = w.order[:0], w.ordFreq[:0], w.ordQty[:0]
+	ix := &w.ix
+	ix.reset(top, k-1, hint/max(top, 1)+1)
+	ix.slots = slices.Grow(ix.slots, hint)
+
+	// memory estimates the bytes of the chain so far with states growing
+	// to n, counted at the capacity of the buffers that grow, and the
+	// transitions and solver vectors they will need.
+	// A group keyed by bytes holds its key too.
+	keyBytes := 0.0
+	if ix.large != nil {
+		keyBytes = float64(k-1) + 16
+	}
+	memory := func(n, nnz int) float64 {
+		g := float64(ix.groups())
+		return lostMemory(L, float64(max(n, cap(w.avail))), float64(nnz), float64(cap(ix.slots)), g) + g*keyBytes
+	}
+
+	// With L = 0, nx[x] = x + Order(x) is the on-hand after the next
+	// arrival and oq[x] = Order(x) the order, for x left on hand.
+	if L == 0 {
+		w.nx, w.oq = grow(w.nx, top+1), grow(w.oq, top+1)
+		for x := range top + 1 {
+			q := p.Order(x)
+			w.nx[x], w.oq[x] = int32(x+q), int32(q)
+		}
+	}
+	nx := w.nx
+	cur := make([]int32, k)
+	next := make([]int32, k)
+	// step sets next[1:] to the pipeline of the successors of state cur and
+	// returns a, the order q of the review (L >= 1) and the amount c that
+	// joins the on-hand x' left by demand in a successor (x' + c, next[1:]).
+	step := func() (a, q, c int) {
+		a = int(cur[0])
+		if L == 0 {
+			return a, 0, 0
+		}
 		var ip int
 		for _, v := range cur {
 			ip += int(v)
 		}
 		q = p.Order(ip)
-		if L == 0 {
-			return int(cur[0]) + q, q
+		if L == 1 {
+			return a, q, q
 		}
 		copy(next[1:], cur[2:])
-		next[L] = int32(q)
-		return int(cur[0]) + int(cur[1]), q
+		next[L-1] = int32(q)
+		return a, q, int(cur[1])
+	}
+	// target returns the on-hand after the next arrival of a successor
+	// that has x on hand at the end of the period.
+	target := func(x, c int) int {
+		if L == 0 {
+			return int(nx[x])
+		}
+		return x + c
 	}
 	// The start state (top, 0, ..., 0) is re-entered only by demand 0
 	// from a = top. When that transition is not stored (P(D = 0) below
@@ -278,7 +530,7 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 	cur[0] = int32(top)
 	if !keep(0) {
 		for range rootSteps(L) {
-			a, _ := step()
+			a, _, c := step()
 			best, x := 0.0, 0
 			for d := 0; d < a && d < len(pmf); d++ {
 				if keep(d) && pmf[d] > best {
@@ -288,42 +540,74 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 			if a > 0 && dtab.over[a-1]+folded[a] > best {
 				x = 0
 			}
-			next[0] = int32(x)
+			next[0] = int32(target(x, c))
 			copy(cur, next)
 		}
 	}
 	ix.slots[ix.group(cur[1:])+int(cur[0])] = 0
-	c.tuples = append(c.tuples, cur...)
+	w.tuples = append(w.tuples, cur...)
 
-	groups := make([]int, 0, hint) // g per state
+	var ctx context.Context = opt.Context
+	// mark[y] tells whether on-hand y after the next arrival is already a
+	// target of the current row: i+1 in the first pass, n+i+1 in the
+	// second (with L = 0 successors can coincide).
+	w.mark = grow(w.mark, top+1)
+	mark := w.mark
+	clear(mark)
 	nnz := 0
-	for i := 0; i < len(c.tuples)/w; i++ {
-		copy(cur, c.tuples[i*w:(i+1)*w])
-		a, q := step()
-		c.avail = append(c.avail, int32(a))
-		c.order = append(c.order, int32(q))
+	for i := 0; i < len(w.tuples)/k; i++ {
+		if ctx != nil && i%4096 == 4095 {
+			if err := ctx.Err(); err != nil {
+				return nil, fmt.Errorf("building the lost-sales chain (%d states so far): %w", i, err)
+			}
+		}
+		copy(cur, w.tuples[i*k:(i+1)*k])
+		a, q, c := step()
+		w.avail = append(w.avail, int32(a))
+		if L > 0 {
+			w.order = append(w.order, int32(q))
+		}
 		g := ix.group(next[1:])
-		groups = append(groups, g)
+		w.groups = append(w.groups, int32(g))
 		// Number new states in the order demand d = 0, 1, ..., then the
 		// lump: breadth-first order, which suits the Gauss-Seidel sweeps
 		// (numbering on-hand upwards instead took 25 times the sweeps on
 		// an s-S chain).
-		for d := 0; d <= a; d++ {
-			x := a - d
+		row := 0
+		lump := a == 0 || dtab.over[a-1] > 0 // else demand never empties the shelf from a
+		for j := 0; j <= len(kd); j++ {
+			var x int
 			switch {
-			case x > 0 && !keep(d):
+			case j < len(kd) && kd[j] < a:
+				x = a - kd[j]
+			case lump:
+				x, j = 0, len(kd)
+			default:
+				j = len(kd)
 				continue
-			case x == 0 && a > 0 && !(dtab.over[a-1] > 0):
-				continue // demand never empties the shelf from a
 			}
-			if ix.slots[g+x] < 0 {
-				ix.slots[g+x] = int32(len(c.tuples) / w)
-				next[0] = int32(x)
-				c.tuples = append(c.tuples, next...)
+			y := target(x, c)
+			if mark[y] == i+1 {
+				continue
+			}
+			mark[y] = i + 1
+			row++
+			if ix.slots[g+y] < 0 {
+				if len(w.tuples)+k > cap(w.tuples) {
+					// Growing keeps the old buffer until the copy is made.
+					n := len(w.tuples)/k + 1
+					if m := memory(2*n, nnz) + float64(4*cap(w.tuples)); m > lostMemoryLimit {
+						return nil, memoryError(L, float64(n), m)
+					}
+				}
+				ix.slots[g+y] = int32(len(w.tuples) / k)
+				next[0] = int32(y)
+				w.tuples = append(w.tuples, next...)
 			}
 		}
-		nnz += rowLen(a)
-		if len(c.tuples)/w > opt.MaxStates {
+		nnz += row
+		w.rowPtr = append(w.rowPtr, nnz)
+		if n := len(w.tuples) / k; n > opt.MaxStates {
 			return nil, &SizeError{Chain: "lost-sales", Bound: bound, Limit: opt.MaxStates, What: "states", Counted: true}
 		}
 		if nnz > maxTransitions {
@@ -332,48 +616,231 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options) (*lostChain, e
 		if len(ix.slots) > maxSlots {
 			return nil, &SizeError{Chain: "lost-sales", Bound: bound, Limit: maxSlots, What: "index slots", Counted: true}
 		}
-	}
-	n := len(c.tuples) / w
-	rowPtr := make([]int, n+1)
-	col := make([]int32, nnz)
-	val := make([]float64, nnz)
-	var buf []entry
-	for i := range n {
-		a, g := int(c.avail[i]), groups[i]
-		// In the order of the first pass, so that a row whose targets were
-		// numbered by it comes out sorted.
-		k, last := rowPtr[i], -1
-		for d := 0; d < a && d < len(pmf); d++ {
-			if keep(d) {
-				col[k], val[k] = ix.slots[g+a-d], pmf[d]
-				last = k
-				k++
+		if i%256 == 255 {
+			if m := memory(len(w.tuples)/k, nnz); m > lostMemoryLimit {
+				return nil, memoryError(L, float64(len(w.tuples)/k), m)
 			}
 		}
+	}
+	n := len(w.tuples) / k
+	if m := memory(n, nnz); m > lostMemoryLimit {
+		return nil, memoryError(L, float64(n), m)
+	}
+	c.tuples, c.avail, c.order = w.tuples, w.avail, w.order
+	w.col, w.val = grow(w.col, nnz), grow(w.val, nnz)
+	col, val, rowPtr := w.col, w.val, w.rowPtr
+	if L == 0 {
+		w.ordFreq, w.ordQty = grow(w.ordFreq, n), grow(w.ordQty, n)
+		c.ordFreq, c.ordQty = w.ordFreq, w.ordQty
+	}
+	// acc[y] gathers the probability of the successor with on-hand y
+	// after the next arrival (merging those that coincide when L = 0).
+	w.acc = grow(w.acc, top+1)
+	acc := w.acc
+	buf := w.sortBuf
+	stamp := w.touched[:0] // the targets of the current row, in order
+	for i := range n {
+		if ctx != nil && i%4096 == 4095 {
+			if err := ctx.Err(); err != nil {
+				return nil, fmt.Errorf("building the lost-sales chain: %w", err)
+			}
+		}
+		a, g := int(c.avail[i]), int(w.groups[i])
+		cc := 0
+		switch {
+		case L == 1:
+			cc = int(c.order[i])
+		case L >= 2:
+			cc = int(w.tuples[i*k+1])
+		}
+		stamp = stamp[:0]
+		add := func(x int, v float64) {
+			y := target(x, cc)
+			if mark[y] != n+i+1 {
+				mark[y] = n + i + 1
+				stamp = append(stamp, int32(y))
+			}
+			acc[y] += v
+		}
+		// In the order of the first pass, so that a row whose targets were
+		// numbered by it comes out sorted.
+		last := -1
+		var freq, qty float64 // L = 0: the next review's order, from the exact pmf
+		if L == 0 {
+			for d := 0; d < a && d < len(pmf); d++ {
+				if q := w.oq[a-d]; q > 0 && pmf[d] > 0 {
+					freq += pmf[d]
+					qty += pmf[d] * float64(q)
+				}
+			}
+		}
+		for _, d := range kd {
+			if d >= a {
+				break
+			}
+			add(a-d, pmf[d])
+			last = a - d
+		}
 		fold := folded[a]
+		var lump float64
 		switch {
 		case a == 0:
-			col[k], val[k] = ix.slots[g], 1
-			k++
+			lump = 1
+			add(0, 1)
 		case dtab.over[a-1] > 0:
 			// A tail within round-off of 1 can come out a hair above it.
-			col[k], val[k] = ix.slots[g], min(dtab.over[a-1]+fold, 1)
-			k++
+			lump = dtab.over[a-1]
+			add(0, min(dtab.over[a-1]+fold, 1))
 		case fold > 0 && last >= 0:
 			// No lump: P(D >= a) = 0, so the stored entries carry almost all
 			// of the row (some P(D = d) >= 1/a) and last exists.
-			val[last] += fold
+			add(last, fold)
+		}
+		if L == 0 {
+			if q := w.oq[0]; q > 0 {
+				freq += lump
+				qty += lump * float64(q)
+			}
+			c.ordFreq[i], c.ordQty[i] = freq, qty
 		}
 		c.negl = max(c.negl, fold)
-		rowPtr[i+1] = k
-		buf = sortRow(col[rowPtr[i]:k], val[rowPtr[i]:k], buf)
+		lo := rowPtr[i]
+		if len(stamp) != rowPtr[i+1]-lo {
+			return nil, fmt.Errorf("building the lost-sales chain: row %d has %d transitions, want %d", i, len(stamp), rowPtr[i+1]-lo)
+		}
+		for j, y := range stamp {
+			// Merged successors (L = 0) can sum to a hair above 1.
+			col[lo+j], val[lo+j] = ix.slots[g+int(y)], min(acc[y], 1)
+			acc[y] = 0
+		}
+		buf = sortRow(col[lo:rowPtr[i+1]], val[lo:rowPtr[i+1]], buf)
 	}
+	w.sortBuf, w.touched = buf, stamp
+	w.last = n
 	m, err := chain.NewCSR(n, rowPtr, col, val)
 	if err != nil {
 		return nil, fmt.Errorf("building the lost-sales chain: %w", err)
 	}
 	c.m = m
 	return c, nil
+}
+
+// lostProbeMax is the largest number of states lostProbe is asked to
+// find: it is run only when so few states pass the memory limit (a
+// pipeline of about a thousand periods or more).
+const lostProbeMax = 1 << 22
+
+// lostProbe returns how many distinct states a seeded random walk of the
+// lost-sales chain visits from its root (the root of buildLost, reached as
+// it is when P(D = 0) is not stored), stopping at need states or after
+// 8 need + 1024 periods, or once 4 n + 1024 periods in a row found no
+// new state (n those seen: a small chain). Each period draws a stored
+// transition, so every
+// state visited is one buildLost would build: the count is a lower bound
+// on the chain's states. States are told apart by a 64-bit polynomial hash
+// of the tuple, rolled in O(1) per period over a ring of the pipeline; two
+// states with the same hash count once, which only lowers the bound.
+// Memory: the ring (4 L bytes) and a set of at most need hashes.
+func lostProbe(dtab lossTable, p Policy, top, L int, keep func(int) bool, folded []float64, need int, opt Options) (int, error) {
+	pmf := dtab.pmf
+	n := max(L-1, 0) // pipeline o_2..o_L
+	ring := make([]int32, n)
+	head, pipe := 0, 0 // ring[head] is o_2; pipe = sum of the pipeline
+	const base = 0x9e3779b97f4a7c15
+	// pow = base^(n-1), the weight of o_2 in the pipeline's hash
+	// h = sum_j ring[head+j mod n] base^(n-1-j).
+	pow := uint64(1)
+	for range max(n-1, 0) {
+		pow *= base
+	}
+	var h uint64
+	a := top
+	// advance moves the walk to the successor that has x on hand at the
+	// end of the period.
+	advance := func(x int) {
+		if L == 0 {
+			a = x + p.Order(x)
+			return
+		}
+		q := p.Order(a + pipe)
+		if n == 0 {
+			a = x + q
+			return
+		}
+		o2 := ring[head]
+		a = x + int(o2)
+		h = (h-uint64(o2)*pow)*base + uint64(q)
+		ring[head] = int32(q)
+		head = (head + 1) % n
+		pipe += q - int(o2)
+	}
+	if !keep(0) {
+		// The root walk of buildLost.
+		for range rootSteps(L) {
+			best, x := 0.0, 0
+			for d := 0; d < a && d < len(pmf); d++ {
+				if keep(d) && pmf[d] > best {
+					best, x = pmf[d], a-d
+				}
+			}
+			if a > 0 && dtab.over[a-1]+folded[a] > best {
+				x = 0
+			}
+			advance(x)
+		}
+	}
+	// cum[d] = sum of the stored P(D = e), e <= d, to draw a demand.
+	cum := make([]float64, min(len(pmf), top+1))
+	var s float64
+	for d := range cum {
+		if keep(d) {
+			s += pmf[d]
+		}
+		cum[d] = s
+	}
+	rng := rand.New(rand.NewPCG(20261202, uint64(L)))
+	seen := make(map[uint64]struct{}, min(need, 1<<16))
+	steps := 8*need + 1024
+	fresh := 0 // the last period that found a new state
+	for t := 0; t < steps && len(seen) < need; t++ {
+		if t%4096 == 4095 && opt.Context != nil {
+			if err := opt.Context.Err(); err != nil {
+				return 0, fmt.Errorf("sizing the lost-sales chain: %w", err)
+			}
+		}
+		key := h*0xbf58476d1ce4e5b9 ^ uint64(a)
+		if _, ok := seen[key]; !ok {
+			seen[key] = struct{}{}
+			fresh = t
+		} else if t-fresh > 4*len(seen)+1024 {
+			break // a small chain: the walk keeps revisiting it
+		}
+		// Draw the on-hand x left by this period's demand among the
+		// stored transitions from a: d < a with keep(d), or the lump.
+		x := 0
+		if m := min(a, len(cum)); m > 0 {
+			lump := dtab.over[a-1] > 0
+			tot := cum[m-1]
+			if lump {
+				tot += dtab.over[a-1]
+			}
+			d, _ := slices.BinarySearch(cum[:m], rng.Float64()*tot)
+			switch {
+			case d < m && keep(d):
+				x = a - d
+			case d < m || !lump:
+				// Round-off at the end of the table: the largest stored
+				// demand below a.
+				for d = m - 1; d > 0 && !keep(d); d-- {
+				}
+				if keep(d) {
+					x = a - d
+				}
+			}
+		}
+		advance(x)
+	}
+	return len(seen), nil
 }
 
 // rootSteps is the number of periods of the most probable demand that
@@ -420,19 +887,29 @@ type entry struct {
 	p float64
 }
 
-// solveLost builds and solves the lost-sales chain of p; it also returns
-// the loss table of one period's demand on 0..top.
-func solveLost(dist inventory.Distribution, p Policy, L int, opt Options) (*lostChain, lossTable, error) {
+// solveLost builds and solves the lost-sales chain of p in w (a new
+// lostWork when w is nil); it also returns the loss table of one period's
+// demand on 0..top.
+func solveLost(dist inventory.Distribution, p Policy, L int, opt Options, w *lostWork) (*lostChain, lossTable, error) {
 	_, top := p.Levels()
 	top = max(top, 0)
 	// Refuse before the demand table (O(top)) or the chain is allocated:
 	// the states at the top level alone number top+1 on-hand levels times
-	// at least one pipeline. Otherwise buildLost counts as it goes.
+	// at least one pipeline, and one state holds L-1 later orders.
+	// Otherwise buildLost counts as it goes.
 	if top >= opt.MaxStates {
 		return nil, lossTable{}, fmt.Errorf("%v: %w", p, &SizeError{Chain: "lost-sales", Bound: lostBound(top, L), Limit: opt.MaxStates, What: "states"})
 	}
+	if b := lostStateBytes(L); b > lostMemoryLimit {
+		return nil, lossTable{}, fmt.Errorf("%v: %w", p, memoryError(L, 1, b))
+	}
+	if opt.Context != nil {
+		if err := opt.Context.Err(); err != nil {
+			return nil, lossTable{}, fmt.Errorf("%v: %w", p, err)
+		}
+	}
 	dtab := newLossTable(dist, 0, top)
-	c, err := buildLost(dtab, p, top, L, opt)
+	c, err := buildLost(dtab, p, top, L, opt, w)
 	if err != nil {
 		return nil, dtab, fmt.Errorf("%v: %w", p, err)
 	}
@@ -442,11 +919,12 @@ func solveLost(dist inventory.Distribution, p Policy, L int, opt Options) (*lost
 		copt.Method = chain.MethodGaussSeidel
 	}
 	if copt.Method == chain.MethodGaussSeidel && copt.Init == nil {
-		// Measured: BenchmarkEvaluateLost 29 -> 27 sweeps, the chains of
-		// BenchmarkOptimizeLostBaseStock 19 -> 14-16. (Starting a search's
-		// s-S or s-nQ chain from its predecessor's law, mapped by state,
-		// took 3-4 times the sweeps of the uniform start: those chains
-		// converge in 2-7 sweeps from any start that has no holes.)
+		// Measured on the chain of the state at review: BenchmarkEvaluateLost
+		// 29 -> 27 sweeps, the chains of BenchmarkOptimizeLostBaseStock
+		// 19 -> 14-16. (Starting a search's s-S or s-nQ chain from its
+		// predecessor's law, mapped by state, took 3-4 times the sweeps of
+		// the uniform start: those chains converge in 2-7 sweeps from any
+		// start that has no holes.)
 		if p.Kind == BaseStock {
 			copt.Init = baseStockStart(c, dtab)
 		}
@@ -470,8 +948,10 @@ func solveLost(dist inventory.Distribution, p Policy, L int, opt Options) (*lost
 	return c, dtab, nil
 }
 
-// evaluateLost evaluates p in lost mode. With a the on-hand after the
-// arrival and q the order at review, in the stationary law of the state:
+// evaluateLost evaluates p in lost mode on the chain of the state after
+// the arrival (see lostChain). With a the on-hand after the arrival and q
+// the order of the review, in the stationary law of the state and an
+// independent demand D:
 //
 //	mean_on_hand         = E[(a - D)^+]
 //	mean_lost_sales      = E[(D - a)^+]
@@ -480,11 +960,18 @@ func solveLost(dist inventory.Distribution, p Policy, L int, opt Options) (*lost
 //	order_frequency      = P(q > 0),  mean_order_quantity = E[q | q > 0]
 //	purchase_cost        = c E[q],    shortage_cost = b E[lost]
 //
-// Backorders are 0.
+// (with L = 0, q is the order of the next review, Order((a - D)^+), whose
+// stationary law is the same). Backorders are 0.
 func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, error) {
+	return evaluateLostIn(sys, p, opt, nil)
+}
+
+// evaluateLostIn is evaluateLost with the chain built in w (nil: a new
+// lostWork). The Evaluation keeps no reference to w.
+func evaluateLostIn(sys inventory.System, p Policy, opt Options, w *lostWork) (*Evaluation, error) {
 	dist := sys.Demand
 	mean := dist.Mean()
-	c, dtab, err := solveLost(dist, p, sys.LeadTime, opt)
+	c, dtab, err := solveLost(dist, p, sys.LeadTime, opt, w)
 	if err != nil {
 		return nil, err
 	}
@@ -498,9 +985,9 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 		served.Add(w * max(float64(a)-dtab.below[a], 0)) // E[min(D, a)] = a - E[(a-D)^+]
 		lost.Add(w * dtab.above[a])
 		stockout.Add(w * dtab.over[a])
-		if q := c.order[i]; q > 0 {
-			freq.Add(w)
-			ordered.Add(w * float64(q))
+		if f, q := c.orders(i); f > 0 {
+			freq.Add(w * f)
+			ordered.Add(w * q)
 		}
 	}
 	f := inventory.Figures{
@@ -530,3 +1017,9 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 	}
 	return e, nil
 }
+
+// LostStateBound returns C(top+k, k), k = max(L, 1): the most states the
+// lost-sales chain of a policy with highest position top and lead time L
+// can have (the chain of the state after the arrival; see lostChain).
+// s-S and s-nQ policies with large orders reach far fewer.
+func LostStateBound(top, L int) float64 { return lostBound(top, L) }

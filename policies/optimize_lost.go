@@ -35,12 +35,17 @@ func (a lostCandidate) better(b lostCandidate) bool {
 }
 
 // lostSearch evaluates candidates on the exact lost-sales chain, once each.
+// Every chain is built in work, so that it reuses the buffers of the one
+// before and is sized from it (neighbouring policies have chains of
+// similar size).
 type lostSearch struct {
 	sys   inventory.System
 	opt   SearchOptions
+	eopt  Options // opt.Eval with the defaults of Evaluate applied
 	fl    floors
 	memo  map[Policy]lostCandidate
 	evals int
+	work  lostWork
 }
 
 var errCap = errors.New("evaluation cap reached")
@@ -55,8 +60,17 @@ func (ls *lostSearch) eval(p Policy) (lostCandidate, error) {
 	if ls.evals >= ls.opt.MaxEvaluations {
 		return lostCandidate{}, errCap
 	}
+	if ctx := ls.eopt.Context; ctx != nil {
+		if err := ctx.Err(); err != nil {
+			return lostCandidate{}, fmt.Errorf("lost-sales search stopped after %d evaluations: %w", ls.evals, err)
+		}
+	}
 	ls.evals++
-	ev, err := Evaluate(ls.sys, p, ls.opt.Eval)
+	var ev *Evaluation
+	err := p.Validate(ls.sys.Mode)
+	if err == nil {
+		ev, err = evaluateLostIn(ls.sys, p, ls.eopt, &ls.work)
+	}
 	var c lostCandidate
 	if err != nil {
 		var se *SizeError
@@ -87,7 +101,18 @@ func optimizeLost(sys inventory.System, kind Kind, fl floors, opt SearchOptions)
 	if err != nil {
 		return nil, err
 	}
-	ls := &lostSearch{sys: sys, opt: opt, fl: fl, memo: map[Policy]lostCandidate{}}
+	eopt := opt.Eval
+	if eopt.MaxStates == 0 {
+		eopt.MaxStates = DefaultMaxStates
+	}
+	if eopt.MaxStates < 0 {
+		return nil, fmt.Errorf("state limit %d: want a count >= 1 (0 for the default %d)", eopt.MaxStates, DefaultMaxStates)
+	}
+	eopt.MaxStates = min(eopt.MaxStates, math.MaxInt32)
+	if eopt.Chain.Context == nil {
+		eopt.Chain.Context = eopt.Context
+	}
+	ls := &lostSearch{sys: sys, opt: opt, eopt: eopt, fl: fl, memo: map[Policy]lostCandidate{}}
 	// Under a floor the start is the backorder optimum under the same floor
 	// (backorder service is a guide to lost-sales service, not equal to it).
 	switch kind {
@@ -178,6 +203,15 @@ func (ls *lostSearch) baseStock(mo *boModel, S0 int) (*Optimum, error) {
 		}
 		if err != nil {
 			return false, false, err
+		}
+		if c.err != nil && S == S0 {
+			// The scan starts here and would go on from here: refuse now,
+			// with the reason, rather than try level after level.
+			return false, false, fmt.Errorf("lost-sales base-stock search: the scan starts at the backorder optimum for b - c, order-up-to %d, and its chain is too large: %w", S0, c.err)
+		}
+		if c.err != nil && S > S0 {
+			// Chains only grow with S: no level above can be evaluated.
+			return false, false, nil
 		}
 		if c.better(best) {
 			best = c
@@ -334,6 +368,10 @@ func (ls *lostSearch) pattern(mo *boModel, cs coords, x0 [2]int) (*Optimum, erro
 	}
 	if !ok {
 		return nil, fmt.Errorf("lost-sales search: the starting policy %v could not be evaluated", x)
+	}
+	if cur.err != nil {
+		p, _ := cs.policy(x)
+		return nil, fmt.Errorf("lost-sales search: the compass search starts at the backorder optimum for b - c, %v, and its chain is too large: %w", p, cur.err)
 	}
 	for !capped {
 		bestX, bestC := x, cur

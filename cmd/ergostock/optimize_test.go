@@ -94,7 +94,7 @@ func TestOptimizeRefused(t *testing.T) {
 		{[]string{"--policy", "min-max"}, 2, "--policy"},
 		{[]string{"--holding-cost", "0"}, 2, "--holding-cost"},
 		{[]string{"--unmet", "lost", "--lead-time", "3", "--max-states", "10"}, 1, "the limit is 10 states (--max-states)"},
-		{[]string{"--unmet", "lost", "--lead-time", "3", "--max-states", "50"}, 1, "--max-states 50: no policy within reorder_point"},
+		{[]string{"--unmet", "lost", "--lead-time", "3", "--max-states", "50"}, 1, "--max-states 50: lost-sales search: the compass search starts at"},
 	} {
 		args := append(append([]string{}, optClassic...), c.args...)
 		code, out, errs := optRun(args...)
