@@ -17,7 +17,7 @@ const SwitchSweeps = 300
 
 // switchWindow is the span of sweeps over which the convergence rate is
 // measured.
-const switchWindow = 32
+const switchWindow = 16
 
 // switcher watches the residuals of an iterative method for an automatic
 // solve; a nil *switcher never switches.
@@ -50,7 +50,7 @@ func (s *switcher) check(m Method, it int, r, tol float64) error {
 	if it >= s.limit {
 		return &switchError{m, it, r, fmt.Sprintf("not converged within %d sweeps", s.limit)}
 	}
-	if it < switchWindow+8 || it%8 != 0 {
+	if it < switchWindow+8 || it%4 != 0 {
 		return nil
 	}
 	r0 := s.hist[(it-switchWindow)%len(s.hist)]

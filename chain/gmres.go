@@ -28,8 +28,9 @@ import (
 // projection approach to Markov chains of Philippe, Saad & Stewart
 // (Operations Research 40(6), 1992) and Stewart (Introduction to the
 // Numerical Solution of Markov Chains, 1994, ch. 4). The state fixed is the
-// most probable one of the start vector (state 0 without one), which keeps
-// the right-hand side large.
+// most probable one of the start vector (without one, of the vector after
+// gmresStartSweeps Gauss-Seidel sweeps), which keeps the system well
+// scaled.
 //
 // The answer is accepted on the true residual ||pi P - pi||_1 <= tol, after
 // round-off negatives (components far below the residual) are set to 0;
@@ -37,9 +38,12 @@ import (
 // Gauss-Seidel sweeps finish from the Krylov answer.
 
 const (
-	gmresRestart   = 30
+	gmresRestart   = 50
 	gmresMaxCycles = 400
 	gmresPolish    = 200
+	// gmresStartSweeps is the number of Gauss-Seidel sweeps that give the
+	// start vector when there is none.
+	gmresStartSweeps = 10
 	// gmresMemory caps the Krylov basis (float64s).
 	gmresMemory = 1 << 26
 )
@@ -124,6 +128,11 @@ func gmresSolve(ctx context.Context, c *CSR, tol float64, maxIter int, init []fl
 	n := c.n
 	if n == 1 {
 		return []float64{1}, 0, nil
+	}
+	if init == nil {
+		// A few sweeps find a probable state to fix (fixing a state of
+		// tiny probability makes y huge and the system badly scaled).
+		init, _, _ = gaussSeidel(ctx, c, 0, gmresStartSweeps, nil, nil)
 	}
 	k := 0
 	if init != nil {
@@ -256,6 +265,15 @@ func gmresSolve(ctx context.Context, c *CSR, tol float64, maxIter int, init []fl
 		if beta == 0 || math.IsNaN(beta) {
 			break
 		}
+		// The L1 residual of pi = y / sum y is at most 2 ||r||_1 / sum y
+		// <= 2 sqrt(N) ||r||_2 / sum y (the equation of state k follows
+		// from the others, as the columns of I - P sum to 0), so the cycle
+		// aims at a quarter of the tolerance on that bound.
+		sy := 1.0
+		for _, v := range y {
+			sy += max(v, 0)
+		}
+		target := 0.25 * tol * sy / (2 * math.Sqrt(float64(N)))
 		for i := range r {
 			V[0][i] = r[i] / beta
 		}
@@ -293,7 +311,7 @@ func gmresSolve(ctx context.Context, c *CSR, tol float64, maxIter int, init []fl
 			H[(j+1)*m+j] = 0
 			g[j+1] = -sn[j] * g[j]
 			g[j] = cs[j] * g[j]
-			if math.Abs(g[j+1]) <= 1e-3*beta || h == 0 {
+			if math.Abs(g[j+1]) <= target || h == 0 {
 				j++
 				break
 			}
