@@ -190,7 +190,59 @@ func Read(r io.Reader, name string) (Labeled, error) {
 	if isListHeader(lr.fields) {
 		return readList(lr)
 	}
+	if err := notAListHeader(lr); err != nil {
+		return Labeled{}, err
+	}
 	return readDense(lr)
+}
+
+// notAListHeader refuses a first line that is meant as the header of a
+// from,to,probability list but is misspelt ("from,to,prob",
+// "From State,To State,p", "source,target,probability"), or that is
+// already a transition line ("a,b,0.5": two labels and a probability)
+// because the header is missing. Read would otherwise take it as the state
+// labels of a dense matrix and fail, or worse succeed, on the next lines.
+func notAListHeader(lr *lineReader) error {
+	f := lr.fields
+	if len(f) != 3 || isNumber(f[0]) || isNumber(f[1]) {
+		return nil
+	}
+	if fromish(f[0]) && toish(f[1]) {
+		return lr.errf(lr.line, 0, "header %q looks like the header of a transition list: want exactly from,to,probability (any case), or state labels of a dense matrix", joinFields(f))
+	}
+	if p, err := strconv.ParseFloat(string(f[2]), 64); err == nil && p >= 0 && p <= 1 {
+		return lr.errf(lr.line, 0, "first line %q looks like a transition (two state labels and a probability): a from,to,probability list needs that header on its first line", joinFields(f))
+	}
+	return nil
+}
+
+// letters returns the lower-case letters of b.
+func letters(b []byte) string {
+	out := make([]byte, 0, len(b))
+	for _, c := range bytes.ToLower(b) {
+		if c >= 'a' && c <= 'z' {
+			out = append(out, c)
+		}
+	}
+	return string(out)
+}
+
+func fromish(b []byte) bool {
+	s := letters(b)
+	switch s {
+	case "i", "src", "source", "origin", "start", "state", "current", "fr", "frm", "form":
+		return true
+	}
+	return strings.HasPrefix(s, "from")
+}
+
+func toish(b []byte) bool {
+	s := letters(b)
+	switch s {
+	case "j", "dst", "dest", "destination", "target", "next", "end", "nextstate", "tostate", "too":
+		return true
+	}
+	return strings.HasPrefix(s, "to")
 }
 
 // ReadDense reads a dense matrix: one row a line, comma-separated, with an
@@ -245,6 +297,9 @@ func readDense(lr *lineReader) (Labeled, error) {
 		}
 	}
 	n := len(lr.fields)
+	if n > MaxDenseStates {
+		return Labeled{}, lr.errf(lr.line, 0, "%d cells: a dense matrix of %d states would take %s, limit %d states: give a from,to,probability list instead", n, n, bytesText(8*float64(n)*float64(n)), MaxDenseStates)
+	}
 	if header {
 		seen := make(map[string]int, n)
 		for c, f := range lr.fields {
@@ -279,22 +334,25 @@ func readDense(lr *lineReader) (Labeled, error) {
 		}
 		lastLine = lr.line
 		if len(lr.fields) != n {
-			return Labeled{}, lr.errf(lr.line, 0, "%d cells: want %d, one per state (ragged row)", len(lr.fields), n)
+			return Labeled{}, lr.errf(lr.line, 0, "%d cells: want %d, one per state (ragged row)%s", len(lr.fields), n, listHint(n))
 		}
 		if rows == n {
-			return Labeled{}, lr.errf(lr.line, 0, "row %d: the matrix has %d columns, so want %d rows (square)", rows+1, n, n)
+			return Labeled{}, lr.errf(lr.line, 0, "row %d: the matrix has %d columns, so want %d rows (square)%s", rows+1, n, n, listHint(n))
 		}
 		var s float64
 		for c, f := range lr.fields {
 			p, err := lr.parseProb(f, c+1)
 			if err != nil {
+				if n == 3 && c == 0 && !isNumber(lr.fields[0]) && !isNumber(lr.fields[1]) && isNumber(lr.fields[2]) {
+					return Labeled{}, lr.errf(lr.line, 0, "%q looks like a transition (two state labels and a probability), but the header %q is not from,to,probability: want that header for a transition list, or a row of probabilities for a dense matrix", joinFields(lr.fields), strings.Join(labels, ","))
+				}
 				return Labeled{}, err
 			}
 			s += p
 			data = append(data, p)
 		}
 		if math.Abs(s-1) > RowSumTol {
-			return Labeled{}, lr.errf(lr.line, 0, "row of state %q sums to %.17g: want 1 (within %g)", labels[rows], s, RowSumTol)
+			return Labeled{}, lr.errf(lr.line, 0, "row of state %q sums to %.17g: want 1 (within %g)%s", labels[rows], s, RowSumTol, listHint(n))
 		}
 		rows++
 	}
@@ -302,10 +360,29 @@ func readDense(lr *lineReader) (Labeled, error) {
 		return Labeled{}, lr.errf(headerLine, 0, "a header and no rows: want %d rows", n)
 	}
 	if rows != n {
-		return Labeled{}, lr.errf(lastLine, 0, "%d rows for %d columns: want a square matrix", rows, n)
+		return Labeled{}, lr.errf(lastLine, 0, "%d rows for %d columns: want a square matrix%s", rows, n, listHint(n))
 	}
 	return Labeled{Matrix: &Dense{n: n, data: data}, Labels: labels}, nil
 }
+
+// listHint is added to the shape errors of a dense matrix of 3 columns,
+// which may be a transition list without its header.
+func listHint(n int) string {
+	if n == 3 {
+		return " (a transition list needs the header from,to,probability)"
+	}
+	return ""
+}
+
+// Size limits of the readers, checked before the storage grows past them.
+const (
+	// MaxDenseStates is the most states of a dense file: its storage is
+	// n*n float64, 1 GiB at this size.
+	MaxDenseStates = 11585
+	// MaxListTransitions is the most lines of a from,to,probability list
+	// (about 40 bytes each while reading: 2 GB at this size).
+	MaxListTransitions = 50_000_000
+)
 
 func readList(lr *lineReader) (Labeled, error) {
 	headerLine := lr.line
@@ -319,7 +396,7 @@ func readList(lr *lineReader) (Labeled, error) {
 			return 0, lr.errf(lr.line, col, "empty state label")
 		}
 		if idx.len() == math.MaxInt32-1 {
-			return 0, lr.errf(lr.line, col, "too many states")
+			return 0, lr.errf(lr.line, col, "state %q: too many states (limit %d)", f, math.MaxInt32-1)
 		}
 		k, added := idx.index(f)
 		if added {
@@ -338,7 +415,10 @@ func readList(lr *lineReader) (Labeled, error) {
 			break
 		}
 		if len(lr.fields) != 3 {
-			return Labeled{}, lr.errf(lr.line, 0, "%d fields: want 3 (from,to,probability)", len(lr.fields))
+			return Labeled{}, lr.errf(lr.line, 0, "%d fields %q: want 3 (from,to,probability)", len(lr.fields), joinFields(lr.fields))
+		}
+		if len(ri) == MaxListTransitions {
+			return Labeled{}, lr.errf(lr.line, 0, "more than %d transitions: the list is too large to read (limit %d lines, about %s)", MaxListTransitions, MaxListTransitions, bytesText(40*MaxListTransitions))
 		}
 		// Lines of one row usually come together: reuse the last from.
 		var i int32
