@@ -124,7 +124,8 @@ func TestReadFormatsAgree(t *testing.T) {
 }
 
 func FuzzReadDense(f *testing.F) {
-	for _, s := range []string{"a,b\n0.3,0.7\n1,0\n", "0.5,0.5\n0.5,0.5\n", "1\n", "\"a\",b\n1,0\n0,1\n", "a,b\nNaN,1\n", "", "x\n"} {
+	for _, s := range []string{"a,b\n0.3,0.7\n1,0\n", "0.5,0.5\n0.5,0.5\n", "1\n", "\"a\",b\n1,0\n0,1\n", "a,b\nNaN,1\n", "", "x\n",
+		"0.5,0.5,0\n1e-300,0,1\n0,1,0\n", "a,b,c\n0,1,0\n0,0,1\n1,0,0\n", "from,to,prob\n1,0,0\n0,1,0\n0,0,1\n"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, in string) {
@@ -140,7 +141,9 @@ func FuzzReadDense(f *testing.F) {
 }
 
 func FuzzReadList(f *testing.F) {
-	for _, s := range []string{"from,to,probability\nx,y,1\ny,x,1\n", "from,to,probability\na,a,1\n", "from,to,probability\nx,y,0.5\nx,y,0.5\n", "FROM,TO,PROBABILITY\n\"a,b\",c,1\nc,\"a,b\",1\n"} {
+	for _, s := range []string{"from,to,probability\nx,y,1\ny,x,1\n", "from,to,probability\na,a,1\n", "from,to,probability\nx,y,0.5\nx,y,0.5\n", "FROM,TO,PROBABILITY\n\"a,b\",c,1\nc,\"a,b\",1\n",
+		"from,to,prob\nx,y,1\ny,x,1\n", "a,b,0.5\nb,a,1\n", "x,y,z\na,b,0.5\n", "0,1,1\n1,0,1\n", "p,q,r\n0.1,0.6,0.3\n0.4,0.4,0.2\n0.5,0,0.5\n",
+		"from,to,probability\n0,1,0.5\n0,0,0.5\n1,0,1e-300\n1,1,1\n", "from,to,probability\n1,2,1\n2,3,1\n3,1,1\n"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, in string) {
@@ -176,12 +179,20 @@ func checkReadMatrix(t *testing.T, m Labeled) {
 	if n > 200 {
 		return
 	}
-	r, err := Solve(m, Options{MaxIter: 1000})
-	if err != nil {
-		return
-	}
-	if math.Abs(sum(r.Pi)-1) > 1e-9 {
-		t.Fatalf("pi sums to %v", sum(r.Pi))
+	for _, meth := range []Method{MethodAuto, MethodGaussSeidel, MethodGMRES} {
+		r, err := Solve(m, Options{Method: meth, MaxIter: 1000})
+		if err != nil {
+			if strings.ContainsAny(err.Error(), "\n") {
+				t.Fatalf("multi-line error %q", err)
+			}
+			continue
+		}
+		if k := badEntry(r.Pi); k >= 0 {
+			t.Fatalf("%s: pi[%d] = %v", meth, k, r.Pi[k])
+		}
+		if math.Abs(sum(r.Pi)-1) > 1e-9 {
+			t.Fatalf("%s: pi sums to %v", meth, sum(r.Pi))
+		}
 	}
 }
 

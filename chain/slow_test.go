@@ -1,9 +1,12 @@
 package chain
 
 import (
+	"context"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
+	"time"
 )
 
 // ncdNoGap returns a seeded chain of k blocks of m states, each block a
@@ -211,4 +214,32 @@ func normalPMF(mu, sd float64, k int) []float64 {
 	}
 	pmf[0] = cdf(0.5)
 	return pmf
+}
+
+// A caller's context stops every iterative method between sweeps, and
+// the error wraps the context's.
+func TestContextStopsIterativeMethods(t *testing.T) {
+	ncd := ncdNoGap(20, 50, 4, 1e-4, 3)
+	gap := randomNCD(20, 50, 4, 1e-10, 5)
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	for _, tc := range []struct {
+		m    Method
+		c    *CSR
+		auto bool
+	}{
+		{MethodGaussSeidel, ncd, false}, {MethodPower, ncd, false}, {MethodGMRES, ncd, false},
+		{MethodIAD, gap, false}, {MethodGaussSeidel, ncd, true},
+	} {
+		_, err := Solve(tc.c, Options{Method: tc.m, Context: ctx, Fallback: tc.auto})
+		if !errors.Is(err, context.Canceled) {
+			t.Errorf("%s (fallback %v): err = %v, want one wrapping context.Canceled", tc.m, tc.auto, err)
+		}
+	}
+	dl, cancel2 := context.WithTimeout(context.Background(), 20*time.Millisecond)
+	defer cancel2()
+	_, err := Solve(ncdNoGap(100, 100, 5, 1e-4, 1), Options{Method: MethodGaussSeidel, MaxIter: 1 << 30, Context: dl})
+	if !errors.Is(err, context.DeadlineExceeded) {
+		t.Errorf("deadline: err = %v", err)
+	}
 }
