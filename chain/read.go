@@ -41,29 +41,67 @@ const MaxLineBytes = 1 << 26
 
 // lineReader yields the non-blank lines of an input split into fields.
 type lineReader struct {
-	sc     *bufio.Scanner
+	br     *bufio.Reader
 	line   int
 	fields [][]byte
 	quoted []byte // scratch for unquoted fields
+	long   []byte // scratch for lines longer than the buffer
 	file   string
+	eof    bool
 }
 
 func newLineReader(r io.Reader, file string) *lineReader {
-	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 0, 64*1024), MaxLineBytes)
-	return &lineReader{sc: sc, file: file}
+	return &lineReader{br: bufio.NewReaderSize(r, 64*1024), file: file}
 }
 
 func (lr *lineReader) errf(line, col int, format string, a ...any) error {
 	return &ReadError{File: lr.file, Line: line, Column: col, Err: fmt.Errorf(format, a...)}
 }
 
+// readLine returns the next line without its end (LF or CRLF), as
+// bufio.Scanner's ScanLines does; ok is false at the end of input.
+func (lr *lineReader) readLine() (b []byte, ok bool, err error) {
+	if lr.eof {
+		return nil, false, nil
+	}
+	b, err = lr.br.ReadSlice('\n')
+	if errors.Is(err, bufio.ErrBufferFull) {
+		lr.long = append(lr.long[:0], b...)
+		for errors.Is(err, bufio.ErrBufferFull) {
+			if len(lr.long) > MaxLineBytes {
+				return nil, false, lr.errf(lr.line+1, 0, "line longer than %d bytes", MaxLineBytes)
+			}
+			b, err = lr.br.ReadSlice('\n')
+			lr.long = append(lr.long, b...)
+		}
+		b = lr.long
+	}
+	if len(b) > MaxLineBytes {
+		return nil, false, lr.errf(lr.line+1, 0, "line longer than %d bytes", MaxLineBytes)
+	}
+	switch {
+	case err == io.EOF:
+		lr.eof = true
+		if len(b) == 0 {
+			return nil, false, nil
+		}
+	case err != nil:
+		return nil, false, &ReadError{File: lr.file, Line: lr.line + 1, Err: err}
+	}
+	b = bytes.TrimSuffix(b, []byte("\n"))
+	b = bytes.TrimSuffix(b, []byte("\r"))
+	return b, true, nil
+}
+
 // next advances to the next non-blank line; it returns false at the end of
 // input or on error (then err is set).
 func (lr *lineReader) next() (ok bool, err error) {
-	for lr.sc.Scan() {
+	for {
+		b, ok, err := lr.readLine()
+		if !ok || err != nil {
+			return false, err
+		}
 		lr.line++
-		b := lr.sc.Bytes()
 		if lr.line == 1 {
 			b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf"))
 		}
@@ -75,13 +113,6 @@ func (lr *lineReader) next() (ok bool, err error) {
 		}
 		return true, nil
 	}
-	if err := lr.sc.Err(); err != nil {
-		if errors.Is(err, bufio.ErrTooLong) {
-			return false, lr.errf(lr.line+1, 0, "line longer than %d bytes", MaxLineBytes)
-		}
-		return false, &ReadError{File: lr.file, Line: lr.line + 1, Err: err}
-	}
-	return false, nil
 }
 
 // split cuts a line at commas into trimmed fields. A field may be quoted
@@ -386,66 +417,61 @@ const (
 
 func readList(lr *lineReader) (Labeled, error) {
 	headerLine := lr.line
-	idx := newLabelIndex()
+	idx := newLabels()
 	var firstSeen, firstFrom []int32
 	var ri, ci []int32
 	var vi []float64
 	var li []int32
+	line := 0
 	state := func(f []byte, col int) (int32, error) {
-		if len(f) == 0 {
-			return 0, lr.errf(lr.line, col, "empty state label")
-		}
 		if idx.len() == math.MaxInt32-1 {
-			return 0, lr.errf(lr.line, col, "state %q: too many states (limit %d)", f, math.MaxInt32-1)
+			return 0, lr.errf(line, col, "state %q: too many states (limit %d)", f, math.MaxInt32-1)
 		}
-		k, added := idx.index(f)
+		k, added := idx.index(f, len(ri)+1)
 		if added {
-			firstSeen = append(firstSeen, int32(lr.line))
+			firstSeen = append(firstSeen, int32(line))
 			firstFrom = append(firstFrom, 0)
 		}
 		return k, nil
 	}
 	lastFrom := int32(-1)
-	for {
-		ok, err := lr.next()
-		if err != nil {
-			return Labeled{}, err
-		}
-		if !ok {
-			break
-		}
-		if len(lr.fields) != 3 {
-			return Labeled{}, lr.errf(lr.line, 0, "%d fields %q: want 3 (from,to,probability)", len(lr.fields), joinFields(lr.fields))
-		}
-		if len(ri) == MaxListTransitions {
-			return Labeled{}, lr.errf(lr.line, 0, "more than %d transitions: the list is too large to read (limit %d lines, about %s)", MaxListTransitions, MaxListTransitions, bytesText(40*MaxListTransitions))
-		}
-		// Lines of one row usually come together: reuse the last from.
-		var i int32
-		if f := lr.fields[0]; lastFrom >= 0 && bytes.Equal(f, idx.label(lastFrom)) {
-			i = lastFrom
-		} else {
-			i, err = state(f, 1)
-			if err != nil {
-				return Labeled{}, err
+	var prevFrom []byte
+	err := parseListLines(lr, func(c *listChunk) error {
+		for t, p := range c.p {
+			line = int(c.line[t])
+			if len(ri) == MaxListTransitions {
+				return lr.errf(line, 0, "more than %d transitions: the list is too large to read (limit %d lines, about %s)", MaxListTransitions, MaxListTransitions, bytesText(40*MaxListTransitions))
 			}
-			lastFrom = i
+			from := c.lab[c.off[2*t]:c.off[2*t+1]]
+			to := c.lab[c.off[2*t+1]:c.off[2*t+2]]
+			// Lines of one row usually come together: reuse the last from.
+			var i int32
+			if lastFrom >= 0 && bytes.Equal(from, prevFrom) {
+				i = lastFrom
+			} else {
+				var err error
+				if i, err = state(from, 1); err != nil {
+					return err
+				}
+				lastFrom = i
+				prevFrom = append(prevFrom[:0], from...)
+			}
+			j, err := state(to, 2)
+			if err != nil {
+				return err
+			}
+			if firstFrom[i] == 0 {
+				firstFrom[i] = int32(line)
+			}
+			ri = append(ri, i)
+			ci = append(ci, j)
+			vi = append(vi, p)
+			li = append(li, int32(line))
 		}
-		j, err := state(lr.fields[1], 2)
-		if err != nil {
-			return Labeled{}, err
-		}
-		p, err := lr.parseProb(lr.fields[2], 3)
-		if err != nil {
-			return Labeled{}, err
-		}
-		if firstFrom[i] == 0 {
-			firstFrom[i] = int32(lr.line)
-		}
-		ri = append(ri, i)
-		ci = append(ci, j)
-		vi = append(vi, p)
-		li = append(li, int32(lr.line))
+		return nil
+	})
+	if err != nil {
+		return Labeled{}, err
 	}
 	if len(ri) == 0 {
 		return Labeled{}, lr.errf(headerLine, 0, "a header and no transitions: want from,to,probability lines")

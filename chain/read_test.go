@@ -20,6 +20,11 @@ func TestReadGood(t *testing.T) {
 		{"dense quoted", "\"in, service\",\"say \"\"hi\"\"\"\n1,0\n0,1\n", []string{"in, service", `say "hi"`}, [3]float64{0, 0, 1}},
 		{"bom", "\xef\xbb\xbfa,b\n0,1\n1,0\n", []string{"a", "b"}, [3]float64{0, 1, 1}},
 		{"list", "From,TO,Probability\nx,y,1\ny,x,0.4\ny,y,0.6\n", []string{"x", "y"}, [3]float64{1, 1, 0.6}},
+		{"list numbered", "from,to,probability\n7,3,1\n3,7,0.5\n3,3,0.5\n", []string{"7", "3"}, [3]float64{1, 1, 0.5}},
+		{"list numbered then named", "from,to,probability\n1,2,1\n2,x,1\nx,1,1\n", []string{"1", "2", "x"}, [3]float64{2, 0, 1}},
+		{"list prefixed numbers", "from,to,probability\ns10,s2,1\ns2,s10,1\n", []string{"s10", "s2"}, [3]float64{1, 0, 1}},
+		{"list leading zero", "from,to,probability\n1,01,1\n01,1,1\n", []string{"1", "01"}, [3]float64{0, 1, 1}},
+		{"list huge numbers", "from,to,probability\n5,99999999999999999,1\n99999999999999999,5,1\n", []string{"5", "99999999999999999"}, [3]float64{1, 0, 1}},
 		{"list zero entry", "from,to,probability\nx,y,1\ny,x,1\nx,x,0\n", []string{"x", "y"}, [3]float64{0, 1, 1}},
 	} {
 		m, err := Read(strings.NewReader(tc.in), "t.csv")
