@@ -33,19 +33,25 @@ import (
 // scaled.
 //
 // The answer is accepted on the true residual ||pi P - pi||_1 <= tol, after
-// round-off negatives (components far below the residual) are set to 0;
+// round-off negatives (components far below the residual) are set to 0.
+// A restarted cycle that gains less than a factor 10 doubles the restart
+// length (up to gmresMaxRestart, within gmresMemory), the usual cure for
+// the stagnation of restarted GMRES (Saad 2003, ch. 6; from memory);
 // if they are not met after the Krylov cycles, up to gmresPolish
 // Gauss-Seidel sweeps finish from the Krylov answer.
 
 const (
-	gmresRestart   = 50
-	gmresMaxCycles = 400
-	gmresPolish    = 200
+	gmresRestart = 50
+	// gmresMaxRestart is the longest restart cycle: the restart length
+	// doubles from gmresRestart while cycles stagnate.
+	gmresMaxRestart = 800
+	gmresMaxCycles  = 400
+	gmresPolish     = 200
 	// gmresStartSweeps is the number of Gauss-Seidel sweeps that give the
 	// start vector when there is none.
 	gmresStartSweeps = 10
 	// gmresMemory caps the Krylov basis (float64s).
-	gmresMemory = 1 << 26
+	gmresMemory = 1 << 24
 )
 
 // ilu0 is the incomplete LU factorisation of a sparse matrix with the
@@ -201,10 +207,8 @@ func gmresSolve(ctx context.Context, c *CSR, tol float64, maxIter int, init []fl
 			y[i] = s
 		}
 	}
-	m := gmresRestart
-	if (m+1)*N > gmresMemory {
-		m = max(5, gmresMemory/N-1)
-	}
+	mMax := min(gmresMaxRestart, max(5, gmresMemory/N-1))
+	m := min(gmresRestart, mMax)
 	y := make([]float64, N)
 	if init != nil && init[k] > 0 {
 		for s, v := range init {
@@ -215,12 +219,8 @@ func gmresSolve(ctx context.Context, c *CSR, tol float64, maxIter int, init []fl
 	} else {
 		pre.solve(b, y)
 	}
-	V := make([][]float64, m+1)
-	for i := range V {
-		V[i] = make([]float64, N)
-	}
-	H := make([]float64, (m+1)*m) // H[i*m+j]
-	cs, sn, g := make([]float64, m), make([]float64, m), make([]float64, m+1)
+	var V [][]float64 // the Krylov basis, grown as needed
+	var H, cs, sn, g []float64
 	z := make([]float64, N)
 	w := make([]float64, N)
 	r := make([]float64, N)
@@ -242,6 +242,7 @@ func gmresSolve(ctx context.Context, c *CSR, tol float64, maxIter int, init []fl
 	steps := 0
 	best := math.Inf(1)
 	worse := 0
+cycles:
 	for cycle := 0; cycle < gmresMaxCycles && steps < maxIter; cycle++ {
 		if ctx != nil {
 			if err := ctx.Err(); err != nil {
@@ -257,10 +258,27 @@ func gmresSolve(ctx context.Context, c *CSR, tol float64, maxIter int, init []fl
 		if res <= tol {
 			return full, steps, nil
 		}
-		if res < best/2 {
+		switch {
+		case res < best/10:
 			best, worse = res, 0
-		} else if worse++; worse >= 3 {
-			break // the Krylov cycles have reached their floor
+		case m < mMax:
+			// A restarted cycle that gains less than a factor 10 is
+			// stagnating (restarts discard the directions it needs):
+			// double the restart length (see the doc above).
+			m = min(2*m, mMax)
+			best, worse = min(best, res), 0
+		default:
+			best = min(best, res)
+			if worse++; worse >= 3 {
+				break cycles // the Krylov cycles have reached their floor
+			}
+		}
+		if len(V) < m+1 || len(cs) != m {
+			for len(V) < m+1 {
+				V = append(V, make([]float64, N))
+			}
+			H = make([]float64, (m+1)*m) // H[i*m+j]
+			cs, sn, g = make([]float64, m), make([]float64, m), make([]float64, m+1)
 		}
 		if beta == 0 || math.IsNaN(beta) {
 			break

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -221,5 +222,28 @@ func TestReadListManyLabels(t *testing.T) {
 	r := mustSolve(t, m, Options{})
 	if r.Diagnostics.Period != n || math.Abs(r.Pi[17]-1/float64(n)) > 1e-15 {
 		t.Errorf("ring: period %d, pi[17] %v", r.Diagnostics.Period, r.Pi[17])
+	}
+}
+
+// Numbered labels index a table only while the values stay near the
+// number of lines: a few huge numbers cannot make it large (issue 10,
+// size checks before allocation).
+func TestLabelTableBounded(t *testing.T) {
+	l := newLabels()
+	for i, b := range []string{"3", "30000000", "4", "999999999999"} {
+		l.index([]byte(b), i+1)
+	}
+	if l.fast || len(l.table) > 1<<20 {
+		t.Errorf("fast %v, table of %d entries", l.fast, len(l.table))
+	}
+	if got := strings.Join(l.strings(), ","); got != "3,30000000,4,999999999999" {
+		t.Errorf("labels %q", got)
+	}
+	l = newLabels()
+	for i := 0; i < 5000; i++ {
+		l.index([]byte(strconv.Itoa(4999-i)), i+1)
+	}
+	if !l.fast || len(l.table) > 1<<20 {
+		t.Errorf("dense numbers: fast %v, table of %d entries", l.fast, len(l.table))
 	}
 }

@@ -119,6 +119,9 @@ func TestGMRESAgreesWithGTH(t *testing.T) {
 		{"lost sales heavy", lostSales(60, normalPMF(40, 4, 60)), 1e-8},
 		{"lost sales poisson", lostSales(60, poissonPMF(12, 60)), 1e-9},
 		{"random sparse", randomSparse(1500, 4, 9), 1e-10},
+		// Blocks coupled in a cycle: GMRES(50) stagnates at residual 5e-8
+		// and needs the restart length to grow.
+		{"cyclic blocks", cyclicNCD(25, 100, 1e-4), 1e-8},
 	} {
 		g := mustSolve(t, tc.m, Options{Method: MethodGTH})
 		r, err := Solve(tc.m, Options{Method: MethodGMRES})
@@ -242,4 +245,24 @@ func TestContextStopsIterativeMethods(t *testing.T) {
 	if !errors.Is(err, context.DeadlineExceeded) {
 		t.Errorf("deadline: err = %v", err)
 	}
+}
+
+// cyclicNCD returns blocks of size states, each a ring with two chords of
+// uneven weights (down to 0.01, so no magnitude gap), every state sending
+// eps to the same position in the next block: the blocks form a cycle.
+func cyclicNCD(blocks, size int, eps float64) *CSR {
+	b := NewBuilder(blocks * size)
+	for i := 0; i < blocks*size; i++ {
+		blk, l := i/size, i%size
+		w := 0.2 + 0.06*float64(l*7%10)
+		b.Add(i, blk*size+(l+1)%size, w*(1-eps))
+		b.Add(i, blk*size+(l+37)%size, (0.99-w)*(1-eps))
+		b.Add(i, blk*size+(l+61)%size, 0.01*(1-eps))
+		b.Add(i, ((blk+1)%blocks)*size+l, eps)
+	}
+	c, err := b.Build()
+	if err != nil {
+		panic(err)
+	}
+	return c
 }

@@ -248,3 +248,37 @@ func TestChainDriftingBirthDeath(t *testing.T) {
 		t.Errorf("%d states below the subnormal range, residual %g", zeros, v.Residual)
 	}
 }
+
+// A chain on which Gauss-Seidel crawls: 25 blocks of 100 states (a ring
+// with two chords inside each block), each state sending 1e-4 of its mass
+// to the next block, with no gap of three decades between the entries (so
+// no aggregation): auto switches to GMRES and says so, in the table and in
+// --json, and meets the residual target.
+func TestChainFallbackShown(t *testing.T) {
+	const blocks, size, eps = 25, 100, 1e-4
+	var b strings.Builder
+	b.WriteString("from,to,probability\n")
+	for i := 0; i < blocks*size; i++ {
+		blk, l := i/size, i%size
+		w := 0.2 + 0.06*float64(l*7%10) // uneven, so not doubly stochastic
+		fmt.Fprintf(&b, "%d,%d,%.17g\n", i, blk*size+(l+1)%size, w*(1-eps))
+		fmt.Fprintf(&b, "%d,%d,%.17g\n", i, blk*size+(l+37)%size, (0.99-w)*(1-eps))
+		fmt.Fprintf(&b, "%d,%d,%.17g\n", i, blk*size+(l+61)%size, 0.01*(1-eps)) // no gap of three decades down to eps
+		fmt.Fprintf(&b, "%d,%d,%g\n", i, ((blk+1)%blocks)*size+l, eps)
+	}
+	v := chainJSONRun(t, b.String(), "--matrix", "-")
+	if v.Method != "gauss-seidel->gmres" || v.Residual > 1e-13 {
+		t.Errorf("method %q, residual %g", v.Method, v.Residual)
+	}
+	var fb struct {
+		Fallback string `json:"fallback"`
+	}
+	_, out, _ := chainRun(b.String(), "--matrix", "-", "--json")
+	if err := json.Unmarshal([]byte(out), &fb); err != nil || !strings.HasPrefix(fb.Fallback, "gauss-seidel after ") {
+		t.Errorf("fallback %q (%v)", fb.Fallback, err)
+	}
+	code, out, _ := chainRun(b.String(), "--matrix", "-")
+	if code != 0 || !strings.Contains(out, "method      gauss-seidel->gmres") || !strings.Contains(out, "fallback    gauss-seidel after") {
+		t.Errorf("exit %d, table output lacks the fallback:\n%s", code, out[strings.Index(out, "method"):])
+	}
+}
