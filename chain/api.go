@@ -32,11 +32,15 @@ const (
 	// & Stewart 1984) on a nearly completely decomposable chain, with the
 	// blocks found by ncdPartition; it refuses a chain without such blocks.
 	MethodIAD Method = "iad"
+	// MethodGMRES is restarted GMRES with an ILU(0) preconditioner on the
+	// system with one state fixed (see gmresSolve), for slowly mixing
+	// chains; MethodAuto switches to it when Gauss-Seidel crawls.
+	MethodGMRES Method = "gmres"
 )
 
 // Methods lists every method name in a stable order.
 var Methods = []Method{MethodAuto, MethodPower, MethodEigen, MethodDirect,
-	MethodGTH, MethodGaussSeidel, MethodForward, MethodUniform, MethodIAD}
+	MethodGTH, MethodGaussSeidel, MethodForward, MethodUniform, MethodIAD, MethodGMRES}
 
 // ParseMethod returns the Method named s, or an error naming the choices.
 func ParseMethod(s string) (Method, error) {
@@ -59,7 +63,9 @@ const (
 type Options struct {
 	Method Method
 	// Tol is the target of the residual ||pi P - pi||_1 for the iterative
-	// methods (power, gauss-seidel, iad). Zero means DefaultTol.
+	// methods (power, gauss-seidel, iad, gmres). Zero means DefaultTol;
+	// otherwise it must be finite, below 2 and at least MinTol of the
+	// chain (a *TolError otherwise).
 	Tol float64
 	// MaxIter caps the iterations of the iterative methods. Zero means
 	// DefaultMaxIter.
@@ -74,6 +80,13 @@ type Options struct {
 	// it between sweeps and return its error (wrapped) once it is done, so
 	// a caller's deadline or cancellation stops a long solve.
 	Context context.Context
+	// Fallback lets an explicitly chosen gauss-seidel or power solve do
+	// what MethodAuto does when it crawls: after SwitchSweeps sweeps, or
+	// sooner when the residual stalls or falls too slowly, it switches to
+	// banded GTH (when the band is narrow) or GMRES, starting from the
+	// last iterate. Diagnostics.Method then reads "gauss-seidel->gmres"
+	// and Diagnostics.Fallback says why. MethodAuto always falls back.
+	Fallback bool
 }
 
 // Diagnostics accompany every stationary distribution.
@@ -94,6 +107,10 @@ type Diagnostics struct {
 	// Lazy reports that the power method iterated the lazy chain (I+P)/2
 	// because the chain is periodic.
 	Lazy bool `json:"lazy,omitempty"`
+	// Fallback, when not empty, says why the method first tried gave way
+	// to another (Method is then "first->second"): an iterative method
+	// that crawled, or a result with a non-finite or negative component.
+	Fallback string `json:"fallback,omitempty"`
 }
 
 // Result is a stationary distribution with its diagnostics.

@@ -51,34 +51,23 @@ func gthBanded(m Matrix, w int) []float64 {
 		m.Row(i, func(j int, p float64) { a[i*bw+j-i+w] += p })
 	}
 	at := func(i, j int) int { return i*bw + j - i + w }
+	s := make([]float64, n)
 	for k := n - 1; k >= 1; k-- {
 		lo := max(0, k-w)
-		var s float64
-		for j := lo; j < k; j++ {
-			s += a[at(k, j)]
-		}
-		if s == 0 {
-			s = 5e-324 // reducible input; avoid 0/0
-		}
 		rk := a[at(k, lo):at(k, k)]
+		sk := sum(rk)
+		if sk == 0 {
+			sk = 5e-324 // reducible input; avoid 0/0
+		}
+		s[k] = sk
+		for j := range rk {
+			rk[j] /= sk // as in GTH: a normalised row cannot overflow
+		}
 		for i := lo; i < k; i++ {
-			f := a[at(i, k)] / s
-			a[at(i, k)] = f
-			if f == 0 {
-				continue
+			if f := a[at(i, k)]; f != 0 {
+				floats.AddScaled(a[at(i, lo):at(i, k)], f, rk)
 			}
-			floats.AddScaled(a[at(i, lo):at(i, k)], f, rk)
 		}
 	}
-	pi := make([]float64, n)
-	pi[0] = 1
-	for j := 1; j < n; j++ {
-		var s float64
-		for i := max(0, j-w); i < j; i++ {
-			s += pi[i] * a[at(i, j)]
-		}
-		pi[j] = s
-	}
-	normalise(pi)
-	return pi
+	return gthBack(n, func(j int) int { return max(0, j-w) }, func(i, j int) float64 { return a[at(i, j)] }, s)
 }

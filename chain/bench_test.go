@@ -144,3 +144,20 @@ func BenchmarkReadSolveList1e6(b *testing.B) {
 	b.ReportMetric(float64(ms.HeapSys)/(1<<20), "heap-sys-MB")
 	b.ReportMetric(float64(ms.TotalAlloc)/float64(b.N)/(1<<20), "alloc-MB/op")
 }
+
+// Reads the seeded 1e6-state, 5-per-row from,to,probability file (labels
+// s0, s1, ...; 5e6 lines, 177 MB) without solving it.
+func BenchmarkReadList1e6(b *testing.B) {
+	path := writeList(b, 1_000_000, 5)
+	for b.Loop() {
+		f, err := os.Open(path)
+		if err != nil {
+			b.Fatal(err)
+		}
+		m, err := Read(f, path)
+		f.Close()
+		if err != nil || m.Len() != 1_000_000 {
+			b.Fatal(err)
+		}
+	}
+}

@@ -40,6 +40,9 @@
 //     GTH, disaggregate, one block Gauss-Seidel sweep with exact GTH block
 //     solves. The blocks are the strongly connected components left after
 //     dropping the entries below a gap of magnitude (ncdPartition).
+//   - gmres: restarted GMRES with an ILU(0) preconditioner on the system
+//     with one state fixed (Saad & Schultz 1986; Saad 2003; Philippe,
+//     Saad & Stewart 1992), for slowly mixing chains.
 //
 // Power and Gauss-Seidel follow Stewart, Introduction to the Numerical
 // Solution of Markov Chains (Princeton, 1994), ch. 3; they stop when the
@@ -47,7 +50,16 @@
 // residual reached. Auto picks forward, then uniform, then GTH (dense up to
 // AutoDenseStates, banded when the band is narrow), then IAD when the
 // chain has nearly decomposable blocks (at most AutoCoupling of a row's
-// mass leaving its block), then Gauss-Seidel.
+// mass leaving its block), then Gauss-Seidel. An automatic solve whose
+// Gauss-Seidel (or power, or IAD) crawls or stalls switches on its own to
+// GTH when that is cheap, else to GMRES (Diagnostics.Method
+// "gauss-seidel->gmres", Diagnostics.Fallback says why); Options.Fallback
+// does the same for an explicit gauss-seidel or power. No method returns a
+// non-finite or negative probability: the substitutions of GTH and forward
+// run in extended range when float64 would overflow, round-off negatives
+// of direct and eigen are set to 0, and any other bad answer is re-solved
+// by GTH (or Gauss-Seidel), or the solve fails. Options.Tol must lie in
+// [MinTol(m), 2).
 //
 // # Checks
 //

@@ -1,6 +1,7 @@
 package chain
 
 import (
+	"context"
 	"fmt"
 	"math"
 )
@@ -230,7 +231,7 @@ func relChange(x, y []float64) float64 {
 // chain and the block systems are solved subtraction-free, the answer is
 // componentwise accurate where plain Gauss-Seidel is not (its error is of
 // the order of residual / coupling).
-func iad(c *CSR, part partition, tol float64, maxIter int, init []float64) ([]float64, int, error) {
+func iad(ctx context.Context, c *CSR, part partition, tol float64, maxIter int, init []float64) ([]float64, int, error) {
 	n, nb := c.n, part.nb
 	blk := part.block
 	// States by block (counting sort), and the local index of each state.
@@ -325,6 +326,9 @@ func iad(c *CSR, part partition, tol float64, maxIter int, init []float64) ([]fl
 	r := math.Inf(1)
 	var stall stagnation
 	for it := 1; it <= maxIter; it++ {
+		if err := ctxErr(ctx); err != nil {
+			return x, it - 1, fmt.Errorf("iad: stopped after %d iterations: %w", it-1, err)
+		}
 		// 1. Aggregate.
 		clear(agg)
 		for i, b := range blk {
@@ -404,8 +408,8 @@ func iad(c *CSR, part partition, tol float64, maxIter int, init []float64) ([]fl
 			met++
 		}
 		if stall.stuck(r) {
-			return nil, it, fmt.Errorf("iad: %w: residual stagnated at %.3g after %d iterations, want <= %g (round-off floor: raise the tolerance)", ErrNotConverged, stall.best, it, tol)
+			return x, it, fmt.Errorf("iad: %w: residual stagnated at %.3g after %d iterations, want <= %g (round-off floor: raise the tolerance)", ErrNotConverged, stall.best, it, tol)
 		}
 	}
-	return nil, maxIter, fmt.Errorf("iad: %w after %d iterations: residual %.3g, want <= %g (raise the iteration cap or the tolerance)", ErrNotConverged, maxIter, r, tol)
+	return x, maxIter, fmt.Errorf("iad: %w after %d iterations: residual %.3g, want <= %g (raise the iteration cap or the tolerance)", ErrNotConverged, maxIter, r, tol)
 }

@@ -1,6 +1,7 @@
 package chain
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -58,8 +59,42 @@ func forward(m Matrix, name func(int) string) ([]float64, error) {
 	if bad != nil {
 		return nil, bad
 	}
-	normalise(pi)
-	return pi, nil
+	if finiteVector(pi) {
+		normalise(pi)
+		if finiteVector(pi) {
+			return pi, nil
+		}
+	}
+	return forwardX(m), nil
+}
+
+// forwardX is forward substitution in extended range (see xfloat), for a
+// chain whose unnormalised pi overflows float64 (pi_j/pi_0 beyond
+// 2^1023); the pattern has been checked by forward.
+func forwardX(m Matrix) []float64 {
+	n := m.Len()
+	acc := make([]xfloat, n)
+	x := make([]xfloat, n)
+	for i := 0; i < n; i++ {
+		var off float64
+		m.Row(i, func(j int, p float64) {
+			if j != i {
+				off += p
+			}
+		})
+		if i == 0 {
+			x[0] = xfloat{0.5, 1}
+		} else {
+			x[i] = acc[i].div(off)
+		}
+		xi := x[i]
+		m.Row(i, func(j int, p float64) {
+			if j > i && p != 0 {
+				acc[j] = acc[j].add(xi.scale(p))
+			}
+		})
+	}
+	return xnormalise(x)
 }
 
 func normalise(x []float64) {
@@ -81,35 +116,32 @@ func normalise(x []float64) {
 // then pi_0 = 1 and pi_j = sum_{i<j} pi_i a(i,j) / s_j. No subtraction
 // occurs (s_k replaces 1 - a(k,k)), so the result has small componentwise
 // relative error even for nearly decomposable chains (O'Cinneide, Numer.
-// Math. 65, 1993). Work n^3/3 multiply-adds.
+// Math. 65, 1993). Work n^3/3 multiply-adds. The substitution falls back
+// to extended range (gthBack) when the unnormalised pi overflows, so the
+// answer is finite and >= 0 for any irreducible input, its smallest
+// components rounded to subnormals or 0 when that is their true size.
 func GTH(a []float64, n int) []float64 {
+	s := make([]float64, n)
 	for k := n - 1; k >= 1; k-- {
 		rk := a[k*n : k*n+k]
-		s := sum(rk)
-		if s == 0 {
-			s = math.SmallestNonzeroFloat64 // reducible input; avoid 0/0
+		sk := sum(rk)
+		if sk == 0 {
+			sk = math.SmallestNonzeroFloat64 // reducible input; avoid 0/0
+		}
+		s[k] = sk
+		// Row k normalised, a(k,j)/s_k <= 1, so no product overflows
+		// even when s_k is tiny; column k keeps a(i,k) and pi_k is
+		// divided by s_k in the substitution.
+		for j := range rk {
+			rk[j] /= sk
 		}
 		for i := 0; i < k; i++ {
-			ri := a[i*n : i*n+k]
-			f := a[i*n+k] / s
-			a[i*n+k] = f
-			if f == 0 {
-				continue
+			if f := a[i*n+k]; f != 0 {
+				floats.AddScaled(a[i*n:i*n+k], f, rk) // ri += f*rk, gonum's assembly axpy
 			}
-			floats.AddScaled(ri, f, rk) // ri += f*rk, gonum's assembly axpy
 		}
 	}
-	pi := make([]float64, n)
-	pi[0] = 1
-	for j := 1; j < n; j++ {
-		var s float64
-		for i := 0; i < j; i++ {
-			s += pi[i] * a[i*n+j]
-		}
-		pi[j] = s
-	}
-	normalise(pi)
-	return pi
+	return gthBack(n, func(int) int { return 0 }, func(i, j int) float64 { return a[i*n+j] }, s)
 }
 
 // direct solves pi (P - I) = 0 with the last equation replaced by
@@ -185,13 +217,16 @@ func eigen(m Matrix) ([]float64, error) {
 // On a periodic chain the iteration does not converge, so the lazy chain
 // (I + P)/2 is iterated instead: it has the same stationary distribution
 // and is aperiodic.
-func power(c *CSR, lazy bool, tol float64, maxIter int, init []float64) ([]float64, int, error) {
+func power(ctx context.Context, c *CSR, lazy bool, tol float64, maxIter int, init []float64, sw *switcher) ([]float64, int, error) {
 	n := c.n
 	x := startVector(n, init)
 	y := make([]float64, n)
 	r := math.Inf(1)
 	var stall stagnation
 	for it := 1; it <= maxIter; it++ {
+		if err := ctxErr(ctx); err != nil {
+			return x, it - 1, fmt.Errorf("power: stopped after %d iterations: %w", it-1, err)
+		}
 		mulVec(c, x, y)
 		r = 0
 		for j := range y {
@@ -201,7 +236,10 @@ func power(c *CSR, lazy bool, tol float64, maxIter int, init []float64) ([]float
 			return x, it, nil
 		}
 		if stall.stuck(r) {
-			return nil, it, fmt.Errorf("power: %w: residual stagnated at %.3g after %d iterations, want <= %g (raise the tolerance, or use gth)", ErrNotConverged, stall.best, it, tol)
+			return x, it, fmt.Errorf("power: %w: residual stagnated at %.3g after %d iterations, want <= %g (raise the tolerance, or use gth)", ErrNotConverged, stall.best, it, tol)
+		}
+		if err := sw.check(MethodPower, it, r, tol); err != nil {
+			return x, it, err
 		}
 		if lazy {
 			for j := range y {
@@ -211,7 +249,15 @@ func power(c *CSR, lazy bool, tol float64, maxIter int, init []float64) ([]float
 		normalise(y)
 		x, y = y, x
 	}
-	return nil, maxIter, fmt.Errorf("power: %w after %d iterations: residual %.3g, want <= %g (raise the iteration cap or the tolerance, or use gth)", ErrNotConverged, maxIter, r, tol)
+	return x, maxIter, fmt.Errorf("power: %w after %d iterations: residual %.3g, want <= %g (raise the iteration cap or the tolerance, or use gth)", ErrNotConverged, maxIter, r, tol)
+}
+
+// ctxErr returns ctx.Err(), or nil for a nil ctx.
+func ctxErr(ctx context.Context) error {
+	if ctx == nil {
+		return nil
+	}
+	return ctx.Err()
 }
 
 // startVector returns a normalised copy of init (already checked by Solve:
@@ -281,7 +327,7 @@ func transpose(c *CSR) (ptr []int, row []int32, val []float64) {
 // also happens every 16 sweeps, so the round-off of the updates does not
 // accumulate. On nearly completely decomposable chains convergence can be
 // very slow; the error then reports the residual reached.
-func gaussSeidel(c *CSR, tol float64, maxIter int, init []float64) ([]float64, int, error) {
+func gaussSeidel(ctx context.Context, c *CSR, tol float64, maxIter int, init []float64, sw *switcher) ([]float64, int, error) {
 	n := c.n
 	rp, col, val := c.rowPtr, c.col, c.val
 	diag := make([]float64, n) // P(j,j)
@@ -316,6 +362,9 @@ func gaussSeidel(c *CSR, tol float64, maxIter int, init []float64) ([]float64, i
 	r := math.Inf(1)
 	var stall stagnation
 	for it := 1; it <= maxIter; it++ {
+		if err := ctxErr(ctx); err != nil {
+			return x, it - 1, fmt.Errorf("gauss-seidel: stopped after %d sweeps: %w", it-1, err)
+		}
 		for i := 0; i < n; i++ {
 			xi := max(in[i], 0) / off[i]
 			if d := xi - x[i]; d != 0 {
@@ -345,10 +394,13 @@ func gaussSeidel(c *CSR, tol float64, maxIter int, init []float64) ([]float64, i
 			}
 		}
 		if stall.stuck(r) {
-			return nil, it, fmt.Errorf("gauss-seidel: %w: residual stagnated at %.3g after %d sweeps, want <= %g (the round-off floor, or a nearly decomposable chain: raise the tolerance or try --method iad)", ErrNotConverged, stall.best, it, tol)
+			return x, it, fmt.Errorf("gauss-seidel: %w: residual stagnated at %.3g after %d sweeps, want <= %g (the round-off floor, or a nearly decomposable chain: raise the tolerance or try --method iad or gmres)", ErrNotConverged, stall.best, it, tol)
+		}
+		if err := sw.check(MethodGaussSeidel, it, r, tol); err != nil {
+			return x, it, err
 		}
 	}
-	return nil, maxIter, fmt.Errorf("gauss-seidel: %w after %d sweeps: residual %.3g, want <= %g (the chain may be nearly decomposable or slowly mixing: raise the iteration cap or the tolerance, or use gth on up to %d states)", ErrNotConverged, maxIter, r, tol, MaxGTHStates)
+	return x, maxIter, fmt.Errorf("gauss-seidel: %w after %d sweeps: residual %.3g, want <= %g (the chain may be nearly decomposable or slowly mixing: raise the iteration cap or the tolerance, or use gmres, or gth on up to %d states)", ErrNotConverged, maxIter, r, tol, MaxGTHStates)
 }
 
 // residualFrom returns sum_j |in(j) + P(j,j) x_j - x_j|, the residual

@@ -41,29 +41,67 @@ const MaxLineBytes = 1 << 26
 
 // lineReader yields the non-blank lines of an input split into fields.
 type lineReader struct {
-	sc     *bufio.Scanner
+	br     *bufio.Reader
 	line   int
 	fields [][]byte
 	quoted []byte // scratch for unquoted fields
+	long   []byte // scratch for lines longer than the buffer
 	file   string
+	eof    bool
 }
 
 func newLineReader(r io.Reader, file string) *lineReader {
-	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 0, 64*1024), MaxLineBytes)
-	return &lineReader{sc: sc, file: file}
+	return &lineReader{br: bufio.NewReaderSize(r, 64*1024), file: file}
 }
 
 func (lr *lineReader) errf(line, col int, format string, a ...any) error {
 	return &ReadError{File: lr.file, Line: line, Column: col, Err: fmt.Errorf(format, a...)}
 }
 
+// readLine returns the next line without its end (LF or CRLF), as
+// bufio.Scanner's ScanLines does; ok is false at the end of input.
+func (lr *lineReader) readLine() (b []byte, ok bool, err error) {
+	if lr.eof {
+		return nil, false, nil
+	}
+	b, err = lr.br.ReadSlice('\n')
+	if errors.Is(err, bufio.ErrBufferFull) {
+		lr.long = append(lr.long[:0], b...)
+		for errors.Is(err, bufio.ErrBufferFull) {
+			if len(lr.long) > MaxLineBytes {
+				return nil, false, lr.errf(lr.line+1, 0, "line longer than %d bytes", MaxLineBytes)
+			}
+			b, err = lr.br.ReadSlice('\n')
+			lr.long = append(lr.long, b...)
+		}
+		b = lr.long
+	}
+	if len(b) > MaxLineBytes {
+		return nil, false, lr.errf(lr.line+1, 0, "line longer than %d bytes", MaxLineBytes)
+	}
+	switch {
+	case err == io.EOF:
+		lr.eof = true
+		if len(b) == 0 {
+			return nil, false, nil
+		}
+	case err != nil:
+		return nil, false, &ReadError{File: lr.file, Line: lr.line + 1, Err: err}
+	}
+	b = bytes.TrimSuffix(b, []byte("\n"))
+	b = bytes.TrimSuffix(b, []byte("\r"))
+	return b, true, nil
+}
+
 // next advances to the next non-blank line; it returns false at the end of
 // input or on error (then err is set).
 func (lr *lineReader) next() (ok bool, err error) {
-	for lr.sc.Scan() {
+	for {
+		b, ok, err := lr.readLine()
+		if !ok || err != nil {
+			return false, err
+		}
 		lr.line++
-		b := lr.sc.Bytes()
 		if lr.line == 1 {
 			b = bytes.TrimPrefix(b, []byte("\xef\xbb\xbf"))
 		}
@@ -75,13 +113,6 @@ func (lr *lineReader) next() (ok bool, err error) {
 		}
 		return true, nil
 	}
-	if err := lr.sc.Err(); err != nil {
-		if errors.Is(err, bufio.ErrTooLong) {
-			return false, lr.errf(lr.line+1, 0, "line longer than %d bytes", MaxLineBytes)
-		}
-		return false, &ReadError{File: lr.file, Line: lr.line + 1, Err: err}
-	}
-	return false, nil
 }
 
 // split cuts a line at commas into trimmed fields. A field may be quoted
@@ -190,7 +221,59 @@ func Read(r io.Reader, name string) (Labeled, error) {
 	if isListHeader(lr.fields) {
 		return readList(lr)
 	}
+	if err := notAListHeader(lr); err != nil {
+		return Labeled{}, err
+	}
 	return readDense(lr)
+}
+
+// notAListHeader refuses a first line that is meant as the header of a
+// from,to,probability list but is misspelt ("from,to,prob",
+// "From State,To State,p", "source,target,probability"), or that is
+// already a transition line ("a,b,0.5": two labels and a probability)
+// because the header is missing. Read would otherwise take it as the state
+// labels of a dense matrix and fail, or worse succeed, on the next lines.
+func notAListHeader(lr *lineReader) error {
+	f := lr.fields
+	if len(f) != 3 || isNumber(f[0]) || isNumber(f[1]) {
+		return nil
+	}
+	if fromish(f[0]) && toish(f[1]) {
+		return lr.errf(lr.line, 0, "header %q looks like the header of a transition list: want exactly from,to,probability (any case), or state labels of a dense matrix", joinFields(f))
+	}
+	if p, err := strconv.ParseFloat(string(f[2]), 64); err == nil && p >= 0 && p <= 1 {
+		return lr.errf(lr.line, 0, "first line %q looks like a transition (two state labels and a probability): a from,to,probability list needs that header on its first line", joinFields(f))
+	}
+	return nil
+}
+
+// letters returns the lower-case letters of b.
+func letters(b []byte) string {
+	out := make([]byte, 0, len(b))
+	for _, c := range bytes.ToLower(b) {
+		if c >= 'a' && c <= 'z' {
+			out = append(out, c)
+		}
+	}
+	return string(out)
+}
+
+func fromish(b []byte) bool {
+	s := letters(b)
+	switch s {
+	case "i", "src", "source", "origin", "start", "state", "current", "fr", "frm", "form":
+		return true
+	}
+	return strings.HasPrefix(s, "from")
+}
+
+func toish(b []byte) bool {
+	s := letters(b)
+	switch s {
+	case "j", "dst", "dest", "destination", "target", "next", "end", "nextstate", "tostate", "too":
+		return true
+	}
+	return strings.HasPrefix(s, "to")
 }
 
 // ReadDense reads a dense matrix: one row a line, comma-separated, with an
@@ -245,6 +328,9 @@ func readDense(lr *lineReader) (Labeled, error) {
 		}
 	}
 	n := len(lr.fields)
+	if n > MaxDenseStates {
+		return Labeled{}, lr.errf(lr.line, 0, "%d cells: a dense matrix of %d states would take %s, limit %d states: give a from,to,probability list instead", n, n, bytesText(8*float64(n)*float64(n)), MaxDenseStates)
+	}
 	if header {
 		seen := make(map[string]int, n)
 		for c, f := range lr.fields {
@@ -279,22 +365,25 @@ func readDense(lr *lineReader) (Labeled, error) {
 		}
 		lastLine = lr.line
 		if len(lr.fields) != n {
-			return Labeled{}, lr.errf(lr.line, 0, "%d cells: want %d, one per state (ragged row)", len(lr.fields), n)
+			return Labeled{}, lr.errf(lr.line, 0, "%d cells: want %d, one per state (ragged row)%s", len(lr.fields), n, listHint(n))
 		}
 		if rows == n {
-			return Labeled{}, lr.errf(lr.line, 0, "row %d: the matrix has %d columns, so want %d rows (square)", rows+1, n, n)
+			return Labeled{}, lr.errf(lr.line, 0, "row %d: the matrix has %d columns, so want %d rows (square)%s", rows+1, n, n, listHint(n))
 		}
 		var s float64
 		for c, f := range lr.fields {
 			p, err := lr.parseProb(f, c+1)
 			if err != nil {
+				if n == 3 && c == 0 && !isNumber(lr.fields[0]) && !isNumber(lr.fields[1]) && isNumber(lr.fields[2]) {
+					return Labeled{}, lr.errf(lr.line, 0, "%q looks like a transition (two state labels and a probability), but the header %q is not from,to,probability: want that header for a transition list, or a row of probabilities for a dense matrix", joinFields(lr.fields), strings.Join(labels, ","))
+				}
 				return Labeled{}, err
 			}
 			s += p
 			data = append(data, p)
 		}
 		if math.Abs(s-1) > RowSumTol {
-			return Labeled{}, lr.errf(lr.line, 0, "row of state %q sums to %.17g: want 1 (within %g)", labels[rows], s, RowSumTol)
+			return Labeled{}, lr.errf(lr.line, 0, "row of state %q sums to %.17g: want 1 (within %g)%s", labels[rows], s, RowSumTol, listHint(n))
 		}
 		rows++
 	}
@@ -302,70 +391,87 @@ func readDense(lr *lineReader) (Labeled, error) {
 		return Labeled{}, lr.errf(headerLine, 0, "a header and no rows: want %d rows", n)
 	}
 	if rows != n {
-		return Labeled{}, lr.errf(lastLine, 0, "%d rows for %d columns: want a square matrix", rows, n)
+		return Labeled{}, lr.errf(lastLine, 0, "%d rows for %d columns: want a square matrix%s", rows, n, listHint(n))
 	}
 	return Labeled{Matrix: &Dense{n: n, data: data}, Labels: labels}, nil
 }
 
+// listHint is added to the shape errors of a dense matrix of 3 columns,
+// which may be a transition list without its header.
+func listHint(n int) string {
+	if n == 3 {
+		return " (a transition list needs the header from,to,probability)"
+	}
+	return ""
+}
+
+// Size limits of the readers, checked before the storage grows past them.
+const (
+	// MaxDenseStates is the most states of a dense file: its storage is
+	// n*n float64, 1 GiB at this size.
+	MaxDenseStates = 11585
+	// MaxListTransitions is the most lines of a from,to,probability list
+	// (about 40 bytes each while reading: 2 GB at this size).
+	MaxListTransitions = 50_000_000
+)
+
 func readList(lr *lineReader) (Labeled, error) {
 	headerLine := lr.line
-	idx := newLabelIndex()
+	idx := newLabels()
 	var firstSeen, firstFrom []int32
 	var ri, ci []int32
 	var vi []float64
 	var li []int32
+	line := 0
 	state := func(f []byte, col int) (int32, error) {
-		if len(f) == 0 {
-			return 0, lr.errf(lr.line, col, "empty state label")
-		}
 		if idx.len() == math.MaxInt32-1 {
-			return 0, lr.errf(lr.line, col, "too many states")
+			return 0, lr.errf(line, col, "state %q: too many states (limit %d)", f, math.MaxInt32-1)
 		}
-		k, added := idx.index(f)
+		k, added := idx.index(f, len(ri)+1)
 		if added {
-			firstSeen = append(firstSeen, int32(lr.line))
+			firstSeen = append(firstSeen, int32(line))
 			firstFrom = append(firstFrom, 0)
 		}
 		return k, nil
 	}
 	lastFrom := int32(-1)
-	for {
-		ok, err := lr.next()
-		if err != nil {
-			return Labeled{}, err
-		}
-		if !ok {
-			break
-		}
-		if len(lr.fields) != 3 {
-			return Labeled{}, lr.errf(lr.line, 0, "%d fields: want 3 (from,to,probability)", len(lr.fields))
-		}
-		// Lines of one row usually come together: reuse the last from.
-		var i int32
-		if f := lr.fields[0]; lastFrom >= 0 && bytes.Equal(f, idx.label(lastFrom)) {
-			i = lastFrom
-		} else {
-			i, err = state(f, 1)
-			if err != nil {
-				return Labeled{}, err
+	var prevFrom []byte
+	err := parseListLines(lr, func(c *listChunk) error {
+		for t, p := range c.p {
+			line = int(c.line[t])
+			if len(ri) == MaxListTransitions {
+				return lr.errf(line, 0, "more than %d transitions: the list is too large to read (limit %d lines, about %s)", MaxListTransitions, MaxListTransitions, bytesText(40*MaxListTransitions))
 			}
-			lastFrom = i
+			from := c.lab[c.off[2*t]:c.off[2*t+1]]
+			to := c.lab[c.off[2*t+1]:c.off[2*t+2]]
+			// Lines of one row usually come together: reuse the last from.
+			var i int32
+			if lastFrom >= 0 && bytes.Equal(from, prevFrom) {
+				i = lastFrom
+			} else {
+				var err error
+				if i, err = state(from, 1); err != nil {
+					return err
+				}
+				lastFrom = i
+				prevFrom = append(prevFrom[:0], from...)
+			}
+			j, err := state(to, 2)
+			if err != nil {
+				return err
+			}
+			if firstFrom[i] == 0 {
+				firstFrom[i] = int32(line)
+			}
+			ri = append(ri, i)
+			ci = append(ci, j)
+			vi = append(vi, p)
+			li = append(li, int32(line))
 		}
-		j, err := state(lr.fields[1], 2)
-		if err != nil {
-			return Labeled{}, err
-		}
-		p, err := lr.parseProb(lr.fields[2], 3)
-		if err != nil {
-			return Labeled{}, err
-		}
-		if firstFrom[i] == 0 {
-			firstFrom[i] = int32(lr.line)
-		}
-		ri = append(ri, i)
-		ci = append(ci, j)
-		vi = append(vi, p)
-		li = append(li, int32(lr.line))
+		return nil
+	})
+	if err != nil {
+		return Labeled{}, err
 	}
 	if len(ri) == 0 {
 		return Labeled{}, lr.errf(headerLine, 0, "a header and no transitions: want from,to,probability lines")

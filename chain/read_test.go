@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -20,6 +21,11 @@ func TestReadGood(t *testing.T) {
 		{"dense quoted", "\"in, service\",\"say \"\"hi\"\"\"\n1,0\n0,1\n", []string{"in, service", `say "hi"`}, [3]float64{0, 0, 1}},
 		{"bom", "\xef\xbb\xbfa,b\n0,1\n1,0\n", []string{"a", "b"}, [3]float64{0, 1, 1}},
 		{"list", "From,TO,Probability\nx,y,1\ny,x,0.4\ny,y,0.6\n", []string{"x", "y"}, [3]float64{1, 1, 0.6}},
+		{"list numbered", "from,to,probability\n7,3,1\n3,7,0.5\n3,3,0.5\n", []string{"7", "3"}, [3]float64{1, 1, 0.5}},
+		{"list numbered then named", "from,to,probability\n1,2,1\n2,x,1\nx,1,1\n", []string{"1", "2", "x"}, [3]float64{2, 0, 1}},
+		{"list prefixed numbers", "from,to,probability\ns10,s2,1\ns2,s10,1\n", []string{"s10", "s2"}, [3]float64{1, 0, 1}},
+		{"list leading zero", "from,to,probability\n1,01,1\n01,1,1\n", []string{"1", "01"}, [3]float64{0, 1, 1}},
+		{"list huge numbers", "from,to,probability\n5,99999999999999999,1\n99999999999999999,5,1\n", []string{"5", "99999999999999999"}, [3]float64{1, 0, 1}},
 		{"list zero entry", "from,to,probability\nx,y,1\ny,x,1\nx,x,0\n", []string{"x", "y"}, [3]float64{0, 1, 1}},
 	} {
 		m, err := Read(strings.NewReader(tc.in), "t.csv")
@@ -66,7 +72,14 @@ func TestReadBad(t *testing.T) {
 		{"duplicate label", "a,a\n1,0\n0,1\n", 1, 2, `"a" repeats column 1`},
 		{"bad quote", "\"a,b\n1,0\n", 1, 1, "no closing quote"},
 		{"bare quote", "a\"b,c\n1,0\n", 1, 1, `bare "`},
-		{"list fields", "from,to,probability\nx,y\n", 2, 0, "2 fields: want 3"},
+		{"list fields", "from,to,probability\nx,y\n", 2, 0, `2 fields "x,y": want 3`},
+		{"list header misspelt", "from,to,prob\nx,y,1\ny,x,1\n", 1, 0, `header "from,to,prob" looks like the header of a transition list: want exactly from,to,probability`},
+		{"list header words", "From State,To State,p\nx,y,1\ny,x,1\n", 1, 0, `header "From State,To State,p" looks like the header of a transition list`},
+		{"list header synonyms", "source,target,probability\nx,y,1\ny,x,1\n", 1, 0, "want exactly from,to,probability"},
+		{"list without header", "a,b,1\nb,a,1\n", 1, 0, `first line "a,b,1" looks like a transition (two state labels and a probability): a from,to,probability list needs that header`},
+		{"list rows under labels", "x,y,z\na,b,0.5\n", 2, 0, `"a,b,0.5" looks like a transition (two state labels and a probability), but the header "x,y,z" is not from,to,probability`},
+		{"numeric list without header", "0,1,1\n1,0,1\n", 1, 0, `row of state "0" sums to 2: want 1 (within 1e-09) (a transition list needs the header from,to,probability)`},
+		{"dense too wide", strings.Repeat("0,", MaxDenseStates) + "1\n", 1, 0, "11586 cells: a dense matrix of 11586 states would take 1 GiB, limit 11585 states: give a from,to,probability list instead"},
 		{"list prob", "from,to,probability\nx,y,abc\n", 2, 3, `"abc": want a probability`},
 		{"list empty label", "from,to,probability\n,y,1\n", 2, 1, "empty state label"},
 		{"list duplicate", "from,to,probability\nx,y,0.5\ny,x,1\nx,y,0.5\n", 4, 0, `duplicate transition "x" -> "y": first given on line 2`},
@@ -117,7 +130,8 @@ func TestReadFormatsAgree(t *testing.T) {
 }
 
 func FuzzReadDense(f *testing.F) {
-	for _, s := range []string{"a,b\n0.3,0.7\n1,0\n", "0.5,0.5\n0.5,0.5\n", "1\n", "\"a\",b\n1,0\n0,1\n", "a,b\nNaN,1\n", "", "x\n"} {
+	for _, s := range []string{"a,b\n0.3,0.7\n1,0\n", "0.5,0.5\n0.5,0.5\n", "1\n", "\"a\",b\n1,0\n0,1\n", "a,b\nNaN,1\n", "", "x\n",
+		"0.5,0.5,0\n1e-300,0,1\n0,1,0\n", "a,b,c\n0,1,0\n0,0,1\n1,0,0\n", "from,to,prob\n1,0,0\n0,1,0\n0,0,1\n"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, in string) {
@@ -133,7 +147,9 @@ func FuzzReadDense(f *testing.F) {
 }
 
 func FuzzReadList(f *testing.F) {
-	for _, s := range []string{"from,to,probability\nx,y,1\ny,x,1\n", "from,to,probability\na,a,1\n", "from,to,probability\nx,y,0.5\nx,y,0.5\n", "FROM,TO,PROBABILITY\n\"a,b\",c,1\nc,\"a,b\",1\n"} {
+	for _, s := range []string{"from,to,probability\nx,y,1\ny,x,1\n", "from,to,probability\na,a,1\n", "from,to,probability\nx,y,0.5\nx,y,0.5\n", "FROM,TO,PROBABILITY\n\"a,b\",c,1\nc,\"a,b\",1\n",
+		"from,to,prob\nx,y,1\ny,x,1\n", "a,b,0.5\nb,a,1\n", "x,y,z\na,b,0.5\n", "0,1,1\n1,0,1\n", "p,q,r\n0.1,0.6,0.3\n0.4,0.4,0.2\n0.5,0,0.5\n",
+		"from,to,probability\n0,1,0.5\n0,0,0.5\n1,0,1e-300\n1,1,1\n", "from,to,probability\n1,2,1\n2,3,1\n3,1,1\n"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, in string) {
@@ -169,12 +185,20 @@ func checkReadMatrix(t *testing.T, m Labeled) {
 	if n > 200 {
 		return
 	}
-	r, err := Solve(m, Options{MaxIter: 1000})
-	if err != nil {
-		return
-	}
-	if math.Abs(sum(r.Pi)-1) > 1e-9 {
-		t.Fatalf("pi sums to %v", sum(r.Pi))
+	for _, meth := range []Method{MethodAuto, MethodGaussSeidel, MethodGMRES} {
+		r, err := Solve(m, Options{Method: meth, MaxIter: 1000})
+		if err != nil {
+			if strings.ContainsAny(err.Error(), "\n") {
+				t.Fatalf("multi-line error %q", err)
+			}
+			continue
+		}
+		if k := badEntry(r.Pi); k >= 0 {
+			t.Fatalf("%s: pi[%d] = %v", meth, k, r.Pi[k])
+		}
+		if math.Abs(sum(r.Pi)-1) > 1e-9 {
+			t.Fatalf("%s: pi sums to %v", meth, sum(r.Pi))
+		}
 	}
 }
 
@@ -198,5 +222,28 @@ func TestReadListManyLabels(t *testing.T) {
 	r := mustSolve(t, m, Options{})
 	if r.Diagnostics.Period != n || math.Abs(r.Pi[17]-1/float64(n)) > 1e-15 {
 		t.Errorf("ring: period %d, pi[17] %v", r.Diagnostics.Period, r.Pi[17])
+	}
+}
+
+// Numbered labels index a table only while the values stay near the
+// number of lines: a few huge numbers cannot make it large (issue 10,
+// size checks before allocation).
+func TestLabelTableBounded(t *testing.T) {
+	l := newLabels()
+	for i, b := range []string{"3", "30000000", "4", "999999999999"} {
+		l.index([]byte(b), i+1)
+	}
+	if l.fast || len(l.table) > 1<<20 {
+		t.Errorf("fast %v, table of %d entries", l.fast, len(l.table))
+	}
+	if got := strings.Join(l.strings(), ","); got != "3,30000000,4,999999999999" {
+		t.Errorf("labels %q", got)
+	}
+	l = newLabels()
+	for i := 0; i < 5000; i++ {
+		l.index([]byte(strconv.Itoa(4999-i)), i+1)
+	}
+	if !l.fast || len(l.table) > 1<<20 {
+		t.Errorf("dense numbers: fast %v, table of %d entries", l.fast, len(l.table))
 	}
 }

@@ -1,6 +1,7 @@
 package chain
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -44,8 +45,8 @@ func Solve(m Matrix, opt Options) (Result, error) {
 	if opt.Tol == 0 {
 		opt.Tol = DefaultTol
 	}
-	if !(opt.Tol > 0) || math.IsInf(opt.Tol, 0) {
-		return Result{}, fmt.Errorf("tolerance %v: want a finite number > 0", opt.Tol)
+	if err := checkTol(opt.Tol, m); err != nil {
+		return Result{}, err
 	}
 	if opt.MaxIter == 0 {
 		opt.MaxIter = DefaultMaxIter
@@ -119,7 +120,7 @@ func Solve(m Matrix, opt Options) (Result, error) {
 		r.Pi = pi
 	}
 	d := Check(m, r.Pi)
-	d.Method, d.Iterations, d.Lazy = r.Diagnostics.Method, r.Diagnostics.Iterations, r.Diagnostics.Lazy
+	d.Method, d.Iterations, d.Lazy, d.Fallback = r.Diagnostics.Method, r.Diagnostics.Iterations, r.Diagnostics.Lazy, r.Diagnostics.Fallback
 	d.Transient = transient
 	d.Period = per
 	r.Diagnostics = d
@@ -152,18 +153,25 @@ func restrict(m Matrix, members []int) *CSR {
 	return &CSR{n: len(members), rowPtr: rowPtr, col: col, val: val}
 }
 
-// solveIrreducible runs the chosen method on an irreducible chain.
+// solveIrreducible runs the chosen method on an irreducible chain, and
+// makes sure of the answer: an automatic solve (MethodAuto, or
+// Options.Fallback) whose iterative method crawls switches to one that
+// suits a slowly mixing chain (slowChoice), and any method whose answer
+// has a non-finite or negative component is replaced by one that cannot
+// underflow (safeChoice), or the solve fails. Diagnostics.Method then
+// names both ("gauss-seidel->gmres") and Diagnostics.Fallback says why.
 func solveIrreducible(m Matrix, per int, opt Options, name func(int) string) (Result, error) {
 	n := m.Len()
 	meth := opt.Method
+	auto := meth == MethodAuto
 	var part *partition // the NCD blocks when auto found them
 	if n == 1 {
-		if meth == MethodAuto {
+		if auto {
 			meth = MethodGTH // nothing to eliminate: pi = (1)
 		}
 		return Result{Pi: []float64{1}, Diagnostics: Diagnostics{Method: meth}}, nil
 	}
-	if meth == MethodAuto {
+	if auto {
 		switch {
 		case isForward(m):
 			meth = MethodForward
@@ -180,18 +188,105 @@ func solveIrreducible(m Matrix, per int, opt Options, name func(int) string) (Re
 			}
 		}
 	}
-	var (
-		pi   []float64
-		it   int
-		lazy bool
-		err  error
-	)
+	var sw *switcher
+	if (auto || opt.Fallback) && (meth == MethodGaussSeidel || meth == MethodPower) {
+		sw = &switcher{limit: min(SwitchSweeps, opt.MaxIter)}
+	}
+	pi, it, lazy, err := runMethod(m, meth, per, opt, part, name, sw)
+	used := meth
+	why := ""
+	if err != nil {
+		var se *switchError
+		crawled := errors.As(err, &se) || (auto && meth == MethodIAD && errors.Is(err, ErrNotConverged))
+		if !crawled || opt.Context != nil && opt.Context.Err() != nil {
+			return Result{}, err
+		}
+		to := slowChoice(m)
+		o := opt
+		if finiteVector(pi) {
+			o.Init = pi
+		}
+		o.MaxIter = max(opt.MaxIter-it, 1)
+		pi2, it2, _, err2 := runMethod(m, to, per, o, nil, name, nil)
+		if err2 != nil {
+			return Result{}, fmt.Errorf("%v; then %w", err, err2)
+		}
+		pi, it, used = pi2, it+it2, meth+"->"+to
+		why = err.Error()
+		if se != nil {
+			why = fmt.Sprintf("%s after %d sweeps (residual %.3g): %s", se.method, se.sweeps, se.residual, se.reason)
+		}
+		meth, lazy = to, false
+	}
+	if (meth == MethodDirect || meth == MethodEigen) && badEntry(pi) >= 0 {
+		clampRoundOff(pi) // round-off negatives of an unstructured method
+	}
+	if k := badEntry(pi); k >= 0 {
+		bad := fmt.Sprintf("%s gave probability %v to state %s", meth, pi[k], name(k))
+		to, ok := safeChoice(m, meth)
+		if !ok {
+			return Result{}, fmt.Errorf("%s, and no method that cannot underflow applies to %d states with bandwidth %d (GTH is limited to %d states or a narrow band): try --method gmres or gauss-seidel", bad, n, bandwidth(m), MaxGTHStates)
+		}
+		pi2, it2, _, err2 := runMethod(m, to, per, opt, nil, name, nil)
+		if err2 != nil {
+			return Result{}, fmt.Errorf("%s; then %w", bad, err2)
+		}
+		if k2 := badEntry(pi2); k2 >= 0 {
+			return Result{}, fmt.Errorf("%s; then %s gave probability %v to state %s", bad, to, pi2[k2], name(k2))
+		}
+		pi, it, used, lazy = pi2, it+it2, used+"->"+to, false
+		if why != "" {
+			why += "; "
+		}
+		why += bad
+	}
+	return Result{Pi: pi, Diagnostics: Diagnostics{Method: used, Iterations: it, Lazy: lazy, Fallback: why}}, nil
+}
+
+// fallbackBandWork is the largest n w^2 for which a crawling iterative
+// solve switches to banded GTH rather than GMRES.
+const fallbackBandWork = 2e8
+
+// slowChoice is the method for a chain on which an iterative method
+// crawled: GTH when it is cheap (dense up to AutoDenseStates, or a band
+// with n w^2 <= fallbackBandWork), else GMRES.
+func slowChoice(m Matrix) Method {
+	n := m.Len()
+	if n <= AutoDenseStates {
+		return MethodGTH
+	}
+	if w := bandwidth(m); float64(n)*float64(w)*float64(w) <= fallbackBandWork && bandedOK(n, w) {
+		return MethodGTH
+	}
+	return MethodGMRES
+}
+
+// safeChoice is the method that replaces one whose answer was not finite
+// or had a negative component: GTH (subtraction-free, extended-range
+// substitution) when it applies, else Gauss-Seidel (which keeps every
+// component >= 0 and normalises each sweep).
+func safeChoice(m Matrix, failed Method) (Method, bool) {
+	n := m.Len()
+	if failed != MethodGTH && (n <= MaxGTHStates || bandedOK(n, bandwidth(m))) {
+		return MethodGTH, true
+	}
+	if failed != MethodGaussSeidel && failed != MethodGMRES {
+		return MethodGaussSeidel, true
+	}
+	return "", false
+}
+
+// runMethod runs one method on an irreducible chain; an iterative method
+// that fails returns its last iterate with the error.
+func runMethod(m Matrix, meth Method, per int, opt Options, part *partition, name func(int) string, sw *switcher) (pi []float64, it int, lazy bool, err error) {
+	n := m.Len()
+	ctx := opt.Context
 	switch meth {
 	case MethodForward:
 		pi, err = forward(m, name)
 	case MethodUniform:
 		if !isDoublyStochastic(m) {
-			return Result{}, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("a column sum differs from 1 by more than %g (not doubly stochastic)", DoublyStochasticTol)}
+			return nil, 0, false, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("a column sum differs from 1 by more than %g (not doubly stochastic)", DoublyStochasticTol)}
 		}
 		pi = make([]float64, n)
 		for i := range pi {
@@ -209,40 +304,51 @@ func solveIrreducible(m Matrix, per int, opt Options, name func(int) string) (Re
 		case n <= MaxGTHStates:
 			pi = GTH(toDense(m), n)
 		default:
-			return Result{}, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("%d states in the closed class with bandwidth %d: GTH is dense O(n^3) above %d states unless the band is narrow (n*w^2 <= %g)", n, w, MaxGTHStates, maxBandWork)}
+			return nil, 0, false, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("%d states in the closed class with bandwidth %d: GTH is dense O(n^3) above %d states unless the band is narrow (n*w^2 <= %g); refused before allocating %s", n, w, MaxGTHStates, maxBandWork, bytesText(8*float64(n)*float64(n)))}
 		}
 	case MethodDirect:
 		if n > MaxDirectStates {
-			return Result{}, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("%d states in the closed class: direct LU is dense O(n^3), limit %d", n, MaxDirectStates)}
+			return nil, 0, false, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("%d states in the closed class: direct LU is dense O(n^3), limit %d states; refused before allocating %s", n, MaxDirectStates, bytesText(16*float64(n)*float64(n)))}
 		}
 		pi, err = direct(m)
 	case MethodEigen:
 		if n > MaxEigenStates {
-			return Result{}, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("%d states in the closed class: eigen is dense O(n^3), limit %d", n, MaxEigenStates)}
+			return nil, 0, false, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("%d states in the closed class: eigen is dense O(n^3), limit %d states; refused before allocating %s", n, MaxEigenStates, bytesText(24*float64(n)*float64(n)))}
 		}
 		pi, err = eigen(m)
 	case MethodPower:
 		lazy = per > 1
-		pi, it, err = power(ToCSR(m), lazy, opt.Tol, opt.MaxIter, opt.Init)
+		pi, it, err = power(ctx, ToCSR(m), lazy, opt.Tol, opt.MaxIter, opt.Init, sw)
 	case MethodGaussSeidel:
-		pi, it, err = gaussSeidel(ToCSR(m), opt.Tol, opt.MaxIter, opt.Init)
+		pi, it, err = gaussSeidel(ctx, ToCSR(m), opt.Tol, opt.MaxIter, opt.Init, sw)
+	case MethodGMRES:
+		pi, it, err = gmresSolve(ctx, ToCSR(m), opt.Tol, opt.MaxIter, opt.Init)
 	case MethodIAD:
 		c := ToCSR(m)
 		if part == nil {
 			p, ok := ncdPartition(c)
 			if !ok {
-				return Result{}, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("no nearly decomposable blocks found: want a gap of at least %d binary orders of magnitude among the entries below 2^-10, 2 to min(n/2, %d) strongly connected blocks above it, and at most %g of each row's mass leaving its block", ncdGap, MaxIADBlocks, AutoCoupling)}
+				return nil, 0, false, &MethodMismatchError{Method: meth, Reason: fmt.Sprintf("no nearly decomposable blocks found: want a gap of at least %d binary orders of magnitude among the entries below 2^-10, 2 to min(n/2, %d) strongly connected blocks above it, and at most %g of each row's mass leaving its block", ncdGap, MaxIADBlocks, AutoCoupling)}
 			}
 			part = &p
 		}
-		pi, it, err = iad(c, *part, opt.Tol, opt.MaxIter, opt.Init)
+		pi, it, err = iad(ctx, c, *part, opt.Tol, opt.MaxIter, opt.Init)
 	default:
-		return Result{}, &MethodError{Name: string(meth)}
+		return nil, 0, false, &MethodError{Name: string(meth)}
 	}
-	if err != nil {
-		return Result{}, err
+	return pi, it, lazy, err
+}
+
+// bytesText formats a byte count for a message.
+func bytesText(b float64) string {
+	switch {
+	case b >= 1<<40:
+		return fmt.Sprintf("%.3g TiB", b/(1<<40))
+	case b >= 1<<30:
+		return fmt.Sprintf("%.3g GiB", b/(1<<30))
+	default:
+		return fmt.Sprintf("%.3g MiB", b/(1<<20))
 	}
-	return Result{Pi: pi, Diagnostics: Diagnostics{Method: meth, Iterations: it, Lazy: lazy}}, nil
 }
 
 // isForward reports whether P(i,j) = 0 whenever i > j >= 1, in O(nnz).

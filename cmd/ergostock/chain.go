@@ -30,7 +30,7 @@ func chainCommand() *cli.Command {
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "matrix", Usage: "transition matrix `FILE` (dense CSV or from,to,probability list; - for stdin); required"},
 			&cli.StringFlag{Name: "method", Usage: "solver: " + strings.Join(methods, ", "), Value: string(chain.MethodAuto)},
-			&cli.Float64Flag{Name: "tol", Usage: "target residual ||pi P - pi||_1 of the iterative methods (power, gauss-seidel, iad)", Value: chain.DefaultTol},
+			&cli.Float64Flag{Name: "tol", Usage: "target residual ||pi P - pi||_1 of the iterative methods (power, gauss-seidel, iad, gmres); above 0 and below 2, and not below what double precision reaches on the chain", Value: chain.DefaultTol},
 			&cli.IntFlag{Name: "max-iter", Usage: "iteration cap of the iterative methods", Value: chain.DefaultMaxIter},
 			&cli.BoolFlag{Name: "json", Usage: "print one JSON object instead of a table"},
 		},
@@ -55,6 +55,7 @@ type chainJSON struct {
 	Period       int       `json:"period"`
 	Lazy         bool      `json:"lazy"`
 	Transient    []string  `json:"transient"`
+	Fallback     string    `json:"fallback,omitempty"`
 }
 
 func runChain(c *cli.Context) error {
@@ -68,6 +69,9 @@ func runChain(c *cli.Context) error {
 	tol := c.Float64("tol")
 	if !(tol > 0) || math.IsInf(tol, 0) {
 		return usageErr("--tol %v: want a finite number > 0", tol)
+	}
+	if tol >= 2 {
+		return usageErr("--tol %v: want a number < 2 (the residual ||pi P - pi||_1 of any probability vector is at most 2, so the start vector would pass)", tol)
 	}
 	maxIter := c.Int("max-iter")
 	if maxIter < 1 {
@@ -98,8 +102,19 @@ func runChain(c *cli.Context) error {
 		return err
 	}
 	res, err := chain.Solve(m, chain.Options{Method: meth, Tol: tol, MaxIter: maxIter})
+	var te *chain.TolError
+	if errors.As(err, &te) {
+		return usageErr("--tol %v: %s: %s", tol, display, strings.TrimPrefix(te.Error(), fmt.Sprintf("tolerance %v: ", te.Tol)))
+	}
 	if err != nil {
 		return fmt.Errorf("%s: %w", display, err)
+	}
+	for i, p := range res.Pi {
+		// chain.Solve never returns such a value; the command never
+		// prints one.
+		if !(p >= 0) || math.IsInf(p, 0) {
+			return fmt.Errorf("%s: method %s gave probability %v to state %s: not printed (try --method gth or gmres)", display, res.Diagnostics.Method, p, m.Label(i))
+		}
 	}
 	d := res.Diagnostics
 	transient := []string{}
@@ -121,6 +136,7 @@ func runChain(c *cli.Context) error {
 			Period:       d.Period,
 			Lazy:         d.Lazy,
 			Transient:    transient,
+			Fallback:     d.Fallback,
 		}
 		return writeJSON(c.App.Writer, out)
 	}
@@ -138,6 +154,9 @@ func runChain(c *cli.Context) error {
 		method += " (on the lazy chain (I+P)/2: the chain is periodic)"
 	}
 	fmt.Fprintf(w, "\nmethod      %s\n", method)
+	if d.Fallback != "" {
+		fmt.Fprintf(w, "fallback    %s\n", d.Fallback)
+	}
 	fmt.Fprintf(w, "iterations  %d\n", d.Iterations)
 	fmt.Fprintf(w, "residual    %.3g  (||pi P - pi||_1)\n", d.Residual)
 	fmt.Fprintf(w, "balance     %.3g  (largest |flow out - flow in|, at state %s)\n", d.Balance, m.Label(d.BalanceState))

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -132,6 +133,16 @@ func TestChainBadInput(t *testing.T) {
 		{"not converged", "", []string{"--matrix", "../../data/tram-availability.csv", "--method", "power", "--max-iter", "3"}, 1, "power: did not converge after 3 iterations: residual"},
 		{"bad method", "", []string{"--matrix", "x", "--method", "magic"}, 2, `--method magic: unknown method "magic": want one of auto, power`},
 		{"bad tol", "", []string{"--matrix", "x", "--tol", "-1"}, 2, "--tol -1: want a finite number > 0"},
+		{"tol above 2", "", []string{"--matrix", "x", "--tol", "10"}, 2, "--tol 10: want a number < 2 (the residual ||pi P - pi||_1 of any probability vector is at most 2"},
+		{"tol 2", "", []string{"--matrix", "x", "--tol", "2"}, 2, "--tol 2: want a number < 2"},
+		{"tol inf", "", []string{"--matrix", "x", "--tol", "Inf"}, 2, "--tol +Inf: want a finite number > 0"},
+		{"tol below round-off", "", []string{"--matrix", "../../data/tram-availability.csv", "--tol", "1e-17"}, 2, "--tol 1e-17: ../../data/tram-availability.csv: want at least 8.3e-16 for this chain (double precision cannot reach a smaller residual"},
+		{"misspelt list header", "from,to,prob\nx,y,1\ny,x,1\n", []string{"--matrix", "-"}, 1, `stdin: line 1: header "from,to,prob" looks like the header of a transition list: want exactly from,to,probability`},
+		{"list without header", "x,y,1\ny,x,1\n", []string{"--matrix", "-"}, 1, `stdin: line 1: first line "x,y,1" looks like a transition`},
+		{"gth too large", wideList(5000), []string{"--matrix", "-", "--method", "gth"}, 1, "stdin: method gth does not apply: 5000 states in the closed class with bandwidth"},
+		{"direct too large", wideList(5000), []string{"--matrix", "-", "--method", "direct"}, 1, "stdin: method direct does not apply: 5000 states in the closed class: direct LU is dense O(n^3), limit 4000 states; refused before allocating 381 MiB"},
+		{"eigen too large", wideList(5000), []string{"--matrix", "-", "--method", "eigen"}, 1, "limit 1000 states; refused before allocating"},
+		{"dense too wide", strings.Repeat("0,", 20000) + "1\n", []string{"--matrix", "-"}, 1, "stdin: line 1: 20001 cells: a dense matrix of 20001 states would take 2.98 GiB, limit 11585 states"},
 		{"bad max-iter", "", []string{"--matrix", "x", "--max-iter", "0"}, 2, "--max-iter 0: want an integer >= 1"},
 		{"no matrix", "", nil, 2, "--matrix: want a file name"},
 		{"tol not a number", "", []string{"--matrix", "x", "--tol", "abc"}, 2, `chain: --tol "abc": want a number`},
@@ -175,5 +186,99 @@ func TestChainIAD(t *testing.T) {
 		if q := got[1].Distribution[k]; math.Abs(p-q) > 1e-12*q {
 			t.Errorf("state %d: iad %.17g, gth %.17g", k, p, q)
 		}
+	}
+}
+
+// wideList returns a from,to,probability list of an n-state ring with a
+// chord to the far side (bandwidth about n/2): neither dense nor banded
+// methods apply above their limits.
+func wideList(n int) string {
+	var b strings.Builder
+	b.WriteString("from,to,probability\n")
+	for i := 0; i < n; i++ {
+		fmt.Fprintf(&b, "%d,%d,0.5\n%d,%d,0.5\n", i, (i+1)%n, i, (i+n/2)%n)
+	}
+	return b.String()
+}
+
+// Issue 10: a strongly drifting 8000-state birth-death list (up 0.5, down
+// 0.45, the rest a self-loop, reflecting ends) printed NaN with exit 0.
+// The answer is the product form pi_j = c (0.5/0.45)^j (Kemeny & Snell,
+// Finite Markov Chains, 1960, sec. 7.1), here evaluated in logarithms;
+// states whose probability is below half the smallest subnormal print 0.
+func TestChainDriftingBirthDeath(t *testing.T) {
+	const n = 8000
+	var b strings.Builder
+	b.WriteString("from,to,probability\n")
+	for i := 0; i < n; i++ {
+		switch i {
+		case 0:
+			fmt.Fprintf(&b, "0,1,0.5\n0,0,0.5\n")
+		case n - 1:
+			fmt.Fprintf(&b, "%d,%d,0.45\n%d,%d,0.55\n", i, i-1, i, i)
+		default:
+			fmt.Fprintf(&b, "%d,%d,0.5\n%d,%d,0.45\n%d,%d,0.05\n", i, i+1, i, i-1, i, i)
+		}
+	}
+	for _, json := range []bool{false, true} {
+		args := []string{"--matrix", "-"}
+		if json {
+			args = append(args, "--json")
+		}
+		code, out, errs := chainRun(b.String(), args...)
+		if code != 0 || strings.Contains(out, "NaN") || strings.Contains(out, "Inf") {
+			t.Fatalf("json=%v: exit %d, NaN or Inf in the output: %v, stderr %q", json, code, strings.Contains(out, "NaN"), errs)
+		}
+	}
+	v := chainJSONRun(t, b.String(), "--matrix", "-")
+	// log pi_j = log(1 - q) - log(1 - q^n) + (n-1-j) log q, q = 0.45/0.5.
+	q := 0.45 / 0.5
+	zeros := 0
+	for j, p := range v.Distribution {
+		lw := math.Log1p(-q) - math.Log1p(-math.Pow(q, n)) + float64(n-1-j)*math.Log(q)
+		w := math.Exp(lw)
+		if w == 0 {
+			zeros++
+		}
+		if p < 0 || math.Abs(p-w) > 1e-9*w+2*0x1p-1074 {
+			t.Fatalf("state %d: %g, want %g", j, p, w)
+		}
+	}
+	if zeros < 900 || v.Residual > 1e-15 {
+		t.Errorf("%d states below the subnormal range, residual %g", zeros, v.Residual)
+	}
+}
+
+// A chain on which Gauss-Seidel crawls: 25 blocks of 100 states (a ring
+// with two chords inside each block), each state sending 1e-4 of its mass
+// to the next block, with no gap of three decades between the entries (so
+// no aggregation): auto switches to GMRES and says so, in the table and in
+// --json, and meets the residual target.
+func TestChainFallbackShown(t *testing.T) {
+	const blocks, size, eps = 25, 100, 1e-4
+	var b strings.Builder
+	b.WriteString("from,to,probability\n")
+	for i := 0; i < blocks*size; i++ {
+		blk, l := i/size, i%size
+		w := 0.2 + 0.06*float64(l*7%10) // uneven, so not doubly stochastic
+		fmt.Fprintf(&b, "%d,%d,%.17g\n", i, blk*size+(l+1)%size, w*(1-eps))
+		fmt.Fprintf(&b, "%d,%d,%.17g\n", i, blk*size+(l+37)%size, (0.99-w)*(1-eps))
+		fmt.Fprintf(&b, "%d,%d,%.17g\n", i, blk*size+(l+61)%size, 0.01*(1-eps)) // no gap of three decades down to eps
+		fmt.Fprintf(&b, "%d,%d,%g\n", i, ((blk+1)%blocks)*size+l, eps)
+	}
+	v := chainJSONRun(t, b.String(), "--matrix", "-")
+	if v.Method != "gauss-seidel->gmres" || v.Residual > 1e-13 {
+		t.Errorf("method %q, residual %g", v.Method, v.Residual)
+	}
+	var fb struct {
+		Fallback string `json:"fallback"`
+	}
+	_, out, _ := chainRun(b.String(), "--matrix", "-", "--json")
+	if err := json.Unmarshal([]byte(out), &fb); err != nil || !strings.HasPrefix(fb.Fallback, "gauss-seidel after ") {
+		t.Errorf("fallback %q (%v)", fb.Fallback, err)
+	}
+	code, out, _ := chainRun(b.String(), "--matrix", "-")
+	if code != 0 || !strings.Contains(out, "method      gauss-seidel->gmres") || !strings.Contains(out, "fallback    gauss-seidel after") {
+		t.Errorf("exit %d, table output lacks the fallback:\n%s", code, out[strings.Index(out, "method"):])
 	}
 }
