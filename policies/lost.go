@@ -114,6 +114,15 @@ func lostBound(top, L int) float64 {
 		return 1
 	}
 	k := max(L, 1)
+	if min(top, k) > 64 {
+		// The exact binomial of a long pipeline has millions of digits;
+		// its logarithm decides the comparison with any limit.
+		lg := func(x int) float64 { v, _ := math.Lgamma(float64(x) + 1); return v }
+		if l := lg(top+k) - lg(k) - lg(top); l < 700 {
+			return math.Exp(l)
+		}
+		return math.Inf(1)
+	}
 	var b big.Int
 	b.Binomial(int64(top+k), int64(k))
 	f, _ := new(big.Float).SetInt(&b).Float64()
@@ -916,7 +925,10 @@ func solveLost(dist inventory.Distribution, p Policy, L int, opt Options, w *los
 	copt := opt.Chain
 	auto := copt.Method == "" || copt.Method == chain.MethodAuto
 	if auto && c.m.Len() > lostDenseStates {
+		// Gauss-Seidel, which the chain package replaces on its own by a
+		// direct or GMRES solve when it crawls (heavy losses, slow mixing).
 		copt.Method = chain.MethodGaussSeidel
+		copt.Fallback = true
 	}
 	if copt.Method == chain.MethodGaussSeidel && copt.Init == nil {
 		// Measured on the chain of the state at review: BenchmarkEvaluateLost

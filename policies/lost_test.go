@@ -550,9 +550,9 @@ func TestLostMemoryRefused(t *testing.T) {
 			t.Errorf("max states %d: %d bytes allocated before the refusal, want under 64 MiB", ms, got)
 		}
 	}
-	huge := lostSystem(poisson(t, 5), 1<<30, 1, 9, 0, 0)
+	huge := lostSystem(poisson(t, 5), inventory.MaxLeadTime, 1, 9, 0, 0)
 	if _, err := Evaluate(huge, Policy{Kind: BaseStock, OrderUpTo: 3}, Options{}); !errors.As(err, new(*LostMemoryError)) {
-		t.Errorf("lead time 2^30: err = %v, want a *LostMemoryError", err)
+		t.Errorf("lead time 1e9: err = %v, want a *LostMemoryError", err)
 	}
 }
 

@@ -167,6 +167,11 @@ func flagErr(err error) error {
 // another unusable input names its flag and exits 2 (see flagErr); anything
 // else (a failed solve) passes through, exit 1.
 func engineErr(c *cli.Context, err error) error {
+	var me *policies.LostMemoryError
+	if errors.As(err, &me) {
+		// Memory does not depend on --max-states: the lead time drives it.
+		return limitErr("--lead-time %s: %v", typed(c, "lead-time"), err)
+	}
 	var se *policies.SizeError
 	if errors.As(err, &se) {
 		if se.Input != "" || se.Reason != "" {

@@ -99,7 +99,8 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	if len(args) > 1 {
 		if cmd := app.Command(args[1]); cmd != nil {
-			if err := checkNumbers(cmd, args[2:]); err != nil {
+			args = append([]string(nil), args...)
+			if err := normalizeNumbers(cmd, args[2:]); err != nil {
 				fmt.Fprintf(stderr, "ergostock: %s: %v\n", cmd.Name, err)
 				return 2
 			}

@@ -223,10 +223,10 @@ func TestOptionErrors(t *testing.T) {
 		t.Error("s-S with s = S accepted")
 	}
 	long := sys
-	long.LeadTime = 1 << 40 // pipelines of 8 TB
+	long.LeadTime = inventory.MaxLeadTime // pipelines of 8 GB
 	var le *LimitError
 	if _, err := Run(long, p, Options{Periods: 100, Replications: 2}); !errors.As(err, &le) || le.Field != "lead_time" {
-		t.Errorf("lead time 2^40: error %v, want a LimitError naming lead_time", err)
+		t.Errorf("lead time 1e9: error %v, want a LimitError naming lead_time", err)
 	}
 	if _, err := Run(inventory.System{Holding: 1, Mode: inventory.Backorder}, p, Options{Periods: 100, Replications: 2}); err == nil {
 		t.Error("system without demand accepted")
