@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -427,5 +428,36 @@ func TestAtomicFileLockAndSweep(t *testing.T) {
 		if g := errText(err); g != tt.want {
 			t.Errorf("%s: got %q, want %q", tt.path, g, tt.want)
 		}
+	}
+}
+
+// Items are started in the order asked for (most expensive first by
+// default), and the results still come out in input order.
+func TestRunStartOrder(t *testing.T) {
+	var started []int
+	var mu sync.Mutex
+	order := []int{3, 1, 4, 0, 2}
+	var got []int
+	err := Run(context.Background(), 5, RunOptions{Workers: 1, Order: order},
+		func(_ context.Context, i int) int {
+			mu.Lock()
+			started = append(started, i)
+			mu.Unlock()
+			return i * 10
+		},
+		func(i int, err error) int { return -1 },
+		func(i, v int) error { got = append(got, v); return nil })
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fmt.Sprint(started) != fmt.Sprint(order) || fmt.Sprint(got) != "[0 10 20 30 40]" {
+		t.Errorf("started %v, emitted %v", started, got)
+	}
+	if err := Run(context.Background(), 3, RunOptions{Workers: 1, Order: []int{0, 0, 1}}, func(context.Context, int) int { return 0 }, func(int, error) int { return 0 }, func(int, int) error { return nil }); err == nil {
+		t.Error("an order that is not a permutation was accepted")
+	}
+	items := []Item{{SKU: "a"}, {SKU: "b", System: inventory.System{Mode: inventory.Lost, LeadTime: 3}}, {SKU: "c", System: inventory.System{LeadTime: 8}}, {SKU: "d", System: inventory.System{Mode: inventory.Lost, LeadTime: 1}}}
+	if got := fmt.Sprint(CostOrder(items)); got != "[1 3 2 0]" {
+		t.Errorf("CostOrder = %s, want [1 3 2 0]", got)
 	}
 }

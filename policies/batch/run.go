@@ -21,6 +21,11 @@ type RunOptions struct {
 	// past that, a worker waits for one of them to end before it takes new
 	// work, so that items deaf to their context cannot exhaust memory.
 	ItemTimeout time.Duration
+	// Order, when not nil, is the order in which items are started: a
+	// permutation of 0..n-1 (expensive items first, so that the last item
+	// to finish is not a long one started late). Results are still handed
+	// to emit in index order. Nil starts them in index order.
+	Order []int
 }
 
 // TimeoutError is the error of an item that ran past its budget.
@@ -96,6 +101,9 @@ func timeoutOf(ctx context.Context) *TimeoutError {
 func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.Context, i int) T, fail func(i int, err error) T, emit func(i int, v T) error) error {
 	if n <= 0 {
 		return ctx.Err()
+	}
+	if opt.Order != nil && !isPermutation(opt.Order, n) {
+		return fmt.Errorf("batch: RunOptions.Order is not a permutation of 0..%d", n-1)
 	}
 	workers := max(1, min(opt.Workers, n))
 	type result struct {
@@ -184,6 +192,9 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 				if i >= n {
 					return
 				}
+				if opt.Order != nil {
+					i = opt.Order[i]
+				}
 				select {
 				case results <- result{i, one(i)}:
 				case <-quit:
@@ -237,4 +248,19 @@ func Run[T any](ctx context.Context, n int, opt RunOptions, do func(ctx context.
 		}
 	}
 	return nil
+}
+
+// isPermutation reports whether order holds each of 0..n-1 once.
+func isPermutation(order []int, n int) bool {
+	if len(order) != n {
+		return false
+	}
+	seen := make([]bool, n)
+	for _, i := range order {
+		if i < 0 || i >= n || seen[i] {
+			return false
+		}
+		seen[i] = true
+	}
+	return true
 }
