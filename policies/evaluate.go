@@ -123,6 +123,9 @@ func Evaluate(sys inventory.System, p Policy, opt Options) (*Evaluation, error) 
 		err error
 	)
 	if sys.Mode == inventory.Lost {
+		if err := refuseLostTiming(sys); err != nil {
+			return nil, err
+		}
 		e, err = evaluateLost(sys, p, opt)
 	} else {
 		e, err = evaluateBackorder(sys, p, opt)

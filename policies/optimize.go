@@ -150,6 +150,9 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 		err error
 	)
 	if sys.Mode == inventory.Lost {
+		if err := refuseLostTiming(sys); err != nil {
+			return nil, err
+		}
 		o, err = optimizeLost(sys, kind, fl, opt)
 	} else {
 		o, err = optimizeBackorder(sys, kind, fl, opt)
@@ -172,7 +175,7 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	if err := checkOrderQuantity(sys, kind, opt.Eval.MaxStates); err != nil {
 		return nil, err
 	}
-	mo, err := newBOModelOpt(sys, opt.Eval)
+	mo, err := newBOModelKind(sys, opt.Eval, kind)
 	if err != nil {
 		return nil, err
 	}
@@ -186,7 +189,7 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	case SS:
 		p, sr, err = mo.optimizeSS(fl)
 	case SNQ:
-		p, sr, err = mo.snqSearch(sys.Demand, fl)
+		p, sr, err = mo.snqSearch(mo.pos, fl)
 	}
 	if err != nil {
 		return nil, err
@@ -206,6 +209,11 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 // them. It names the larger rate.
 func checkCostScale(sys inventory.System) error {
 	n := float64(sys.LeadTime) + 1
+	if !sys.FixedTiming() {
+		if w, _, err := sys.LeadTimeWeights(); err == nil {
+			n = float64(len(w) + sys.Review())
+		}
+	}
 	d := sys.Demand
 	scale := n*d.Mean() + 10*math.Sqrt(n*d.Variance()) + 1
 	field, rate := "holding_cost", sys.Holding
