@@ -62,7 +62,7 @@ func timingOf(sys inventory.System, k Kind) (timing, error) {
 	if sys.LeadTimeLaw != nil && sys.Model() == inventory.Independent && !onePointLaw(sys) {
 		if k != BaseStock {
 			return t, &inventory.FieldError{Field: "lead_time_model", Value: string(sys.Model()),
-				Want: "sequential for " + string(k) + ": with independent lead times (orders may cross) only base-stock in backorder mode is exact", Err: ErrNotExact}
+				Want: "sequential for " + string(k) + " (with independent lead times, where orders may cross, only base-stock in backorder mode is evaluated exactly: --policy base-stock)", Err: ErrNotExact}
 		}
 		t.x0, t.x1, err = independentPipeline(sys, t.pos)
 		if err != nil {
