@@ -3,6 +3,7 @@ package policies
 import (
 	"errors"
 	"math"
+	"math/rand/v2"
 	"strconv"
 	"strings"
 	"testing"
@@ -294,6 +295,133 @@ func TestOptimizeUnderTiming(t *testing.T) {
 		}
 		if o2.Figures.FillRate < 0.99 {
 			t.Errorf("%v floor: fill %g", k, o2.Figures.FillRate)
+		}
+	}
+}
+
+// timingSim runs the event order of SPEC sections 1 and 4 literally, period
+// by period: reviews at t = 0, R, 2R, ...; under sequential deliveries a
+// cut-off T drawn each period (P(T <= l) = KaplanCutoff) releases every
+// outstanding order at least T periods old; under independent lead times
+// each order draws its own. It shares nothing with the chain but the laws.
+func timingSim(t *testing.T, sys inventory.System, p Policy, periods int, seed uint64) (onHand, back, stockout, fill, freq float64) {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(seed, 7))
+	w, _, err := sys.LeadTimeWeights()
+	if err != nil {
+		t.Fatal(err)
+	}
+	F, _, _ := inventory.KaplanCutoff(w)
+	draw := func(cdf func(int) float64) int {
+		u := rng.Float64()
+		k := 0
+		for cdf(k) < u {
+			k++
+		}
+		return k
+	}
+	lawCDF := func(k int) float64 {
+		var s float64
+		for i := 0; i <= k && i < len(w); i++ {
+			s += w[i]
+		}
+		return s
+	}
+	type order struct{ placed, qty, due int }
+	var pipe []order
+	s, S := p.Levels()
+	ni := S
+	r := sys.Review()
+	var served, demand, orders float64
+	warm := periods / 10
+	for t := 0; t < periods+warm; t++ {
+		if t%r == 0 {
+			ip := ni
+			for _, o := range pipe {
+				ip += o.qty
+			}
+			if ip <= s {
+				q := S - ip
+				if p.Kind == SNQ {
+					q = ((s-ip)/p.OrderMultiple + 1) * p.OrderMultiple
+				}
+				pipe = append(pipe, order{t, q, t + draw(lawCDF)})
+				if t >= warm {
+					orders++
+				}
+			}
+		}
+		if sys.Model() == inventory.Independent {
+			keep := pipe[:0]
+			for _, o := range pipe {
+				if o.due <= t {
+					ni += o.qty
+				} else {
+					keep = append(keep, o)
+				}
+			}
+			pipe = keep
+		} else {
+			cut := draw(func(k int) float64 {
+				if k >= len(F) {
+					return 1
+				}
+				return F[k]
+			})
+			for len(pipe) > 0 && t-pipe[0].placed >= cut {
+				ni += pipe[0].qty
+				pipe = pipe[1:]
+			}
+		}
+		d := draw(sys.Demand.CDF)
+		before := max(ni, 0)
+		ni -= d
+		if t < warm {
+			continue
+		}
+		served += float64(min(d, before))
+		demand += float64(d)
+		onHand += float64(max(ni, 0))
+		back += float64(max(-ni, 0))
+		if ni < 0 {
+			stockout++
+		}
+	}
+	n := float64(periods)
+	return onHand / n, back / n, stockout / n, served / demand, orders / n
+}
+
+// The exact figures under a lead-time law and a review period against the
+// literal simulation (two million periods; tolerances of about five
+// standard errors of these runs).
+func TestTimingAgainstSimulation(t *testing.T) {
+	if testing.Short() {
+		t.Skip("simulates millions of periods")
+	}
+	for _, c := range []struct {
+		law   string
+		model inventory.LeadTimeModel
+		r     int
+		p     Policy
+	}{
+		{"pmf:1=0.2,2=0.5,3=0.3", inventory.Sequential, 1, Policy{Kind: SS, ReorderPoint: 8, OrderUpTo: 25}},
+		{"pmf:1=0.2,2=0.5,3=0.3", inventory.Sequential, 3, Policy{Kind: SS, ReorderPoint: 12, OrderUpTo: 30}},
+		{"pmf:0=0.1,1=0.2,2=0.3,3=0.4", inventory.Sequential, 4, Policy{Kind: SNQ, ReorderPoint: 15, OrderMultiple: 9}},
+		{"pmf:1=0.3,2=0.1,4=0.6", inventory.Independent, 1, Policy{Kind: BaseStock, OrderUpTo: 16}},
+		{"pmf:1=0.3,2=0.1,4=0.6", inventory.Independent, 2, Policy{Kind: BaseStock, OrderUpTo: 20}},
+	} {
+		sys := backorderSystem(poisson(t, 3), 0, 1, 9, 10)
+		sys.LeadTimeLaw, sys.LeadTimeModel, sys.ReviewPeriod = lawOf(t, c.law), c.model, c.r
+		f := evaluate(t, sys, c.p).Figures
+		oh, bo, so, fr, fq := timingSim(t, sys, c.p, 2_000_000, 1)
+		for _, x := range []struct {
+			name           string
+			got, want, tol float64
+		}{{"on hand", f.MeanOnHand, oh, 0.02 * oh}, {"backorders", f.MeanBackorders, bo, 0.03*bo + 0.002},
+			{"stockout", f.StockoutProbability, so, 0.004}, {"fill", f.FillRate, fr, 0.004}, {"order frequency", f.OrderFrequency, fq, 0.002}} {
+			if math.Abs(x.got-x.want) > x.tol {
+				t.Errorf("%s %s R=%d %v: %s exact %.5g, simulated %.5g", c.law, c.model, c.r, c.p, x.name, x.got, x.want)
+			}
 		}
 	}
 }
