@@ -301,6 +301,83 @@ type mixture struct {
 	vari float64
 	negl float64
 	lo   int // the smallest number of periods
+	// A table of the law on 0..len(pmf)-1, where the tail of every
+	// component is below mixtureCacheEps: pmf, cdf[k] = P(X <= k) by
+	// prefix sums and tail[k] = P(X >= k) by suffix sums from the
+	// components' closed tails at the end, so both ends keep their
+	// relative accuracy. Beyond it the components are summed directly.
+	pmf, cdf, tail []float64
+}
+
+// mixtureCacheEps is the tail beyond which a Mixture stops its table.
+const mixtureCacheEps = 1e-30
+
+// maxMixtureCache bounds the entries of a Mixture's table.
+const maxMixtureCache = 1 << 22
+
+// tabulate fills the table of x (skipped when it would be too long).
+func (x *mixture) tabulate() {
+	hi := 0
+	for _, c := range x.c {
+		hi = max(hi, c.Bound(mixtureCacheEps))
+	}
+	if hi+1 > maxMixtureCache {
+		return
+	}
+	n := hi + 1
+	pmf := make([]float64, n)
+	comp := make([]float64, n)
+	var top float64 // P(X >= n)
+	for i, c := range x.c {
+		componentPMF(c, comp)
+		for k, v := range comp {
+			pmf[k] += x.w[i] * v
+		}
+		top += x.w[i] * c.Tail(n)
+	}
+	cdf := make([]float64, n)
+	tail := make([]float64, n+1)
+	var acc float64
+	for k, v := range pmf {
+		acc += v
+		cdf[k] = min(acc, 1)
+	}
+	tail[n] = top
+	for k := n - 1; k >= 0; k-- {
+		tail[k] = min(tail[k+1]+pmf[k], 1)
+	}
+	tail[0] = 1
+	x.pmf, x.cdf, x.tail = pmf, cdf, tail
+}
+
+// componentPMF writes P(C = k), k = 0..len(out)-1. A Poisson law is
+// evaluated at its mode and carried to the others by the ratio
+// P(k+1)/P(k) = m/(k+1); every other law point by point.
+func componentPMF(c Distribution, out []float64) {
+	if p, ok := c.(Poisson); ok && len(out) > 0 {
+		mode := min(int(p.m), len(out)-1)
+		out[mode] = p.PMF(mode)
+		// Re-anchored on the closed form every 256 points, so the error
+		// stays below about 256 units of round-off.
+		for k := mode; k+1 < len(out); k++ {
+			if (k+1-mode)%256 == 0 {
+				out[k+1] = p.PMF(k + 1)
+				continue
+			}
+			out[k+1] = out[k] * p.m / float64(k+1)
+		}
+		for k := mode; k > 0; k-- {
+			if (mode-k+1)%256 == 0 {
+				out[k-1] = p.PMF(k - 1)
+				continue
+			}
+			out[k-1] = out[k] * float64(k) / p.m
+		}
+		return
+	}
+	for k := range out {
+		out[k] = c.PMF(k)
+	}
 }
 
 // MixedDemand returns the law of the demand D over M + extra periods, with
@@ -365,11 +442,18 @@ func NewMixture(d Distribution, w []float64, extra int, neglected float64) (Dist
 		dm := x.Mean() - mx.mean
 		mx.vari += mx.w[i] * (x.Variance() + dm*dm)
 	}
+	mx.tabulate()
 	return Mixture{mx}, nil
 }
 
 // PMF returns P(X_M = k).
 func (x Mixture) PMF(k int) float64 {
+	if k < 0 {
+		return 0
+	}
+	if k < len(x.pmf) {
+		return x.pmf[k]
+	}
 	var s float64
 	for i, c := range x.c {
 		s += x.w[i] * c.PMF(k)
@@ -379,6 +463,15 @@ func (x Mixture) PMF(k int) float64 {
 
 // CDF returns P(X_M <= k).
 func (x Mixture) CDF(k int) float64 {
+	if k < 0 {
+		return 0
+	}
+	if k < len(x.cdf) {
+		return x.cdf[k]
+	}
+	if k+1 < len(x.tail) {
+		return 1 - x.tail[k+1]
+	}
 	var s float64
 	for i, c := range x.c {
 		s += x.w[i] * c.CDF(k)
@@ -390,6 +483,9 @@ func (x Mixture) CDF(k int) float64 {
 func (x Mixture) Tail(k int) float64 {
 	if k <= 0 {
 		return 1
+	}
+	if k < len(x.tail) {
+		return x.tail[k]
 	}
 	var s float64
 	for i, c := range x.c {
