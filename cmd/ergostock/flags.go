@@ -232,6 +232,9 @@ func systemFromFlags(c *cli.Context) (inventory.System, error) {
 		return sys, usageErr("--review-period %s: want a whole number of periods from 1 to %d", typed(c, "review-period"), inventory.MaxReviewPeriod)
 	}
 	sys.ReviewPeriod = c.Int("review-period")
+	if !simulateHandlesTiming && c.Command != nil && c.Command.Name == "simulate" && (!sys.FixedTiming() || c.IsSet("lead-time-model")) {
+		return sys, usageErr("simulate: --lead-time with a law, --lead-time-model and --review-period are not simulated yet (evaluate and optimize answer them exactly in backorder mode)")
+	}
 	if err := sys.Validate(); err != nil {
 		return sys, engineErr(c, err)
 	}
@@ -316,6 +319,12 @@ func (t *table) Flush() error {
 	t.buf.Reset()
 	return nil
 }
+
+// simulateHandlesTiming says whether policies/sim models lead-time laws,
+// the lead-time models and review periods; until it does, simulate refuses
+// them rather than simulate a fixed lead time in their place. (Set it to
+// true when the simulator's support lands.)
+const simulateHandlesTiming = false
 
 // leadTimeValue is the value of --lead-time: a whole number of periods or
 // a law, read by inventory.ParseLeadTime (a one-point law is the fixed
