@@ -1,6 +1,7 @@
 package inventory
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"strconv"
@@ -138,6 +139,18 @@ func lawWeights(d Distribution) ([]float64, float64, error) {
 	}
 	rest := d.Tail(b + 1)
 	w[b] += rest
+	// The lower tail likewise: the mass below the first point where the
+	// CDF exceeds LeadTimeNeglect joins that point.
+	lo := sort.Search(b, func(k int) bool { return d.CDF(k) > LeadTimeNeglect })
+	if lo > 0 {
+		var low float64
+		for k := range lo {
+			low += w[k]
+			w[k] = 0
+		}
+		w[lo] += low
+		rest += low
+	}
 	return w, rest, nil
 }
 
@@ -315,12 +328,23 @@ const mixtureCacheEps = 1e-30
 // maxMixtureCache bounds the entries of a Mixture's table.
 const maxMixtureCache = 1 << 22
 
-// tabulate fills the table of x (skipped when it would be too long).
-func (x *mixture) tabulate() {
+// maxMixtureWork bounds the entries (components times table length) that
+// one Mixture tabulates: about a second of work.
+const maxMixtureWork = 1e9
+
+// mixtureSpan is the length of the table of x: the largest component's
+// Bound(mixtureCacheEps) + 1.
+func mixtureSpan(x *mixture) int {
 	hi := 0
 	for _, c := range x.c {
 		hi = max(hi, c.Bound(mixtureCacheEps))
 	}
+	return hi + 1
+}
+
+// tabulate fills the table of x (skipped when it would be too long).
+func (x *mixture) tabulate() {
+	hi := mixtureSpan(x) - 1
 	if hi+1 > maxMixtureCache {
 		return
 	}
@@ -441,6 +465,10 @@ func NewMixture(d Distribution, w []float64, extra int, neglected float64) (Dist
 	for i, x := range mx.c {
 		dm := x.Mean() - mx.mean
 		mx.vari += mx.w[i] * (x.Variance() + dm*dm)
+	}
+	if work := float64(len(mx.c)) * float64(mixtureSpan(mx)); work > maxMixtureWork {
+		return nil, &FieldError{Field: "lead_time", Value: "a law of " + strconv.Itoa(len(mx.c)) + " values",
+			Want: fmt.Sprintf("a lead-time law whose demand tables need at most 1e9 entries (%d values times %d units of demand; plan in longer periods or larger units)", len(mx.c), mixtureSpan(mx)), Err: ErrLimit}
 	}
 	mx.tabulate()
 	return Mixture{mx}, nil
