@@ -2,6 +2,7 @@ package inventory
 
 import (
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -62,4 +63,37 @@ func TestParseLeadTime(t *testing.T) {
 			}
 		}
 	}
+}
+
+// FuzzParseLeadTime: every refusal is a one-line *FieldError on lead_time;
+// every accepted law either validates or is refused in one line, and its
+// nearest admissible law validates.
+func FuzzParseLeadTime(f *testing.F) {
+	for _, s := range []string{"3", "0", "1e3", "pmf:2=0.2,3=0.5,5=0.3", "pmf:1=0.2,2=0.5,3=0.3", "poisson:mean=4",
+		"negbin:mean=4,var=40", "normal:mean=4,sd=1", "gamma:mean=3,sd=5", "pmf:4=1", "-1", "pmf:", "x:y"} {
+		f.Add(s)
+	}
+	d, _ := NewPoisson(3)
+	f.Fuzz(func(t *testing.T, s string) {
+		fixed, law, err := ParseLeadTime(s)
+		if err != nil {
+			fe, ok := err.(*FieldError)
+			if !ok || fe.Field != "lead_time" || strings.Contains(err.Error(), "\n") {
+				t.Fatalf("%q: %v", s, err)
+			}
+			return
+		}
+		sys := System{Demand: d, LeadTime: fixed, LeadTimeLaw: law, Holding: 1, Shortage: 1, Mode: Backorder}
+		if err := sys.Validate(); err != nil {
+			if strings.Contains(err.Error(), "\n") {
+				t.Fatalf("%q: multi-line %v", s, err)
+			}
+			if law != nil && strings.Contains(err.Error(), "hazard") {
+				sys.LeadTimeLaw = NearestKaplan(law)
+				if err := sys.Validate(); err != nil && strings.Contains(err.Error(), "hazard") {
+					t.Fatalf("%q: nearest law %v refused: %v", s, sys.LeadTimeLaw, err)
+				}
+			}
+		}
+	})
 }
