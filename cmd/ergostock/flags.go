@@ -232,8 +232,13 @@ func systemFromFlags(c *cli.Context) (inventory.System, error) {
 		return sys, usageErr("--review-period %s: want a whole number of periods from 1 to %d", typed(c, "review-period"), inventory.MaxReviewPeriod)
 	}
 	sys.ReviewPeriod = c.Int("review-period")
-	if !simulateHandlesTiming && c.Command != nil && c.Command.Name == "simulate" && (!sys.FixedTiming() || c.IsSet("lead-time-model")) {
-		return sys, usageErr("simulate: --lead-time with a law, --lead-time-model and --review-period are not simulated yet (evaluate and optimize answer them exactly in backorder mode)")
+	if c.Command != nil && !sys.FixedTiming() {
+		switch name := c.Command.Name; {
+		case !simulateHandlesTiming && (name == "simulate" || name == "report" && c.Bool("simulate")):
+			return sys, usageErr("%s: --lead-time with a law, --lead-time-model and --review-period are not simulated yet (evaluate and optimize answer them exactly in backorder mode)", name)
+		case !reportHandlesTiming && name == "report":
+			return sys, usageErr("report: --lead-time with a law, --lead-time-model and --review-period are not drawn on the page yet (its cost map assumes a fixed lead time; evaluate and optimize answer them exactly in backorder mode)")
+		}
 	}
 	if err := sys.Validate(); err != nil {
 		return sys, engineErr(c, err)
@@ -325,6 +330,10 @@ func (t *table) Flush() error {
 // them rather than simulate a fixed lead time in their place. (Set it to
 // true when the simulator's support lands.)
 const simulateHandlesTiming = false
+
+// reportHandlesTiming says the same of the one-SKU page of policies/report
+// (its cost map and charts).
+const reportHandlesTiming = false
 
 // leadTimeValue is the value of --lead-time: a whole number of periods or
 // a law, read by inventory.ParseLeadTime (a one-point law is the fixed
