@@ -173,7 +173,7 @@ func checkLeadTimeLaw(s System) error {
 			near := NearestKaplan(d)
 			return &FieldError{Field: "lead_time", Value: d.String(),
 				Want: "a law that sequential deliveries (Kaplan 1970) can realise: its hazard P(L = l)/P(L >= l) must not fall as l grows, so that the cut-off law P(T <= l) = P(L = l)/P(L >= l) is a distribution function; here it falls from l = " +
-					strconv.Itoa(j) + " to " + strconv.Itoa(j+1) + "; the nearest law it admits (maximum likelihood under a rising hazard) is " + near.String() + " (or --lead-time-model independent: orders may cross)"}
+					strconv.Itoa(j) + " to " + strconv.Itoa(j+1) + "; the nearest law it admits (maximum likelihood under a rising hazard) is " + near.String() + " (mean " + strconv.FormatFloat(near.Mean(), 'g', 6, 64) + ", against " + strconv.FormatFloat(d.Mean(), 'g', 6, 64) + "; or --lead-time-model independent: orders may cross)"}
 		}
 	}
 	return nil
