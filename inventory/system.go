@@ -30,6 +30,16 @@ type System struct {
 	OrderCost float64      // K per order placed
 	UnitCost  float64      // c per unit ordered
 	Mode      Mode
+	// LeadTimeLaw, when not nil, is the law of the lead time in periods
+	// (LeadTime is then ignored); see ParseLeadTime and MixedDemand.
+	LeadTimeLaw Distribution
+	// LeadTimeModel relates the lead times of successive orders: Sequential
+	// (the default, also for "") or Independent.
+	LeadTimeModel LeadTimeModel
+	// ReviewPeriod R: the position is reviewed and orders placed only in
+	// periods 0, R, 2R, ...; 0 or 1 is every period. Costs and figures stay
+	// per period.
+	ReviewPeriod int
 }
 
 // Validate refuses a system that cannot be evaluated. Errors are
@@ -56,6 +66,19 @@ func (s System) Validate() error {
 	case Backorder, Lost:
 	default:
 		return &FieldError{Field: "unmet", Value: string(s.Mode), Want: "backorder or lost"}
+	}
+	if s.ReviewPeriod < 0 || s.ReviewPeriod > MaxReviewPeriod {
+		return &FieldError{Field: "review_period", Value: strconv.Itoa(s.ReviewPeriod), Want: "a whole number of periods from 1 to 100000"}
+	}
+	switch s.LeadTimeModel {
+	case "", Sequential, Independent:
+	default:
+		return &FieldError{Field: "lead_time_model", Value: string(s.LeadTimeModel), Want: "sequential or independent"}
+	}
+	if s.LeadTimeLaw != nil {
+		if err := checkLeadTimeLaw(s); err != nil {
+			return err
+		}
 	}
 	return checkRepresentable(s.Demand)
 }

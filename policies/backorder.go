@@ -223,18 +223,18 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	n := top - s
 	dist := sys.Demand
 	mean := dist.Mean()
-
 	if err := checkPositions(p, opt.MaxStates); err != nil {
 		return nil, err
 	}
-	xl, neglL, err := leadTimeDemand(dist, sys.LeadTime)
+	tm, err := timingOf(sys, p.Kind)
 	if err != nil {
 		return nil, err
 	}
-	xl1, neglL1, err := leadTimeDemand(dist, sys.LeadTime+1)
-	if err != nil {
-		return nil, err
-	}
+	xl, neglL, xl1, neglL1 := tm.x0, tm.negl0, tm.x1, tm.negl1
+	// The chain of the position at reviews moves with the demand between
+	// reviews (D itself when R = 1).
+	review := float64(tm.r)
+	dist = tm.pos
 	for _, x := range []inventory.Distribution{xl, xl1} {
 		if err := checkLossTable(p, x, opt.MaxStates); err != nil {
 			return nil, err
@@ -293,7 +293,8 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		StockoutProbability: clamp01(stockout.Value()),
 		MeanOnHand:          onHand.Value(),
 		MeanBackorders:      back.Value(),
-		OrderFrequency:      clamp01(freq.Value()),
+		// Orders per review, divided by the R periods between reviews.
+		OrderFrequency: clamp01(freq.Value()) / review,
 	}
 	perPeriod := mean // long-run flow balance: all demand is eventually ordered
 	if f.OrderFrequency > 0 {
@@ -306,7 +307,7 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 		States:      c.states(),
 		Diagnostics: c.diag,
 		Neglected:   max(c.negl, inventory.Neglected(dist), neglL, neglL1, tL.neglected, tL1.neglected, dtab.neglected),
-		FlowBalance: math.Abs(ordered.Value() - mean),
+		FlowBalance: math.Abs(ordered.Value()/review - mean),
 	}
 	if opt.Levels {
 		if xl1 != nil {

@@ -94,6 +94,23 @@ type Evaluation struct {
 // Evaluation.Neglected). Solver diagnostics (residual, global balance)
 // come with every answer.
 //
+// Random lead times and review periods (inventory.System's LeadTimeLaw,
+// LeadTimeModel and ReviewPeriod; SPEC section 4), backorder mode: the
+// chain is that of the position Y at reviews, moved by the demand between
+// reviews D_R. Under sequential deliveries (Kaplan 1970) a period's net
+// inventory is Y - X with X the demand over V + f + 1 periods, V the
+// lead-time law and f uniform on 0..R-1 (the phase of the period in the
+// review cycle), independent of Y; the stock before its demand is Y less
+// the demand over V + f periods (inventory.MixedDemand). The formulas
+// above hold with X_L and X_{L+1} replaced by these mixtures: each is
+// linear in the law of X. The order frequency and the order cost are per
+// period: the probability of an order at a review divided by R. Under
+// independent lead times (orders may cross) base-stock is exact (see
+// independentPipeline); other policies are refused with ErrNotExact. In
+// lost mode a lead-time law or R > 1 is refused with ErrNotExact: the
+// chain of on-hand and pipeline under Kaplan's arrival process is not
+// built. A one-point law and R = 1 give the fixed-lead-time figures.
+//
 // Errors name the policy and, for inputs, are *inventory.FieldError values
 // naming the field; a chain larger than Options.MaxStates is refused with a
 // *SizeError before any memory is taken.
@@ -123,6 +140,9 @@ func Evaluate(sys inventory.System, p Policy, opt Options) (*Evaluation, error) 
 		err error
 	)
 	if sys.Mode == inventory.Lost {
+		if err := refuseLostTiming(sys); err != nil {
+			return nil, err
+		}
 		e, err = evaluateLost(sys, p, opt)
 	} else {
 		e, err = evaluateBackorder(sys, p, opt)

@@ -78,6 +78,21 @@ type Optimum struct {
 // The purchase cost c E[D] is the same for every policy in backorder mode
 // (every unit demanded is ordered once) and does not move the optimum.
 //
+// Random lead times and review periods (backorder mode): the same searches
+// run on the problem at reviews. The renewal kernel is the demand between
+// reviews D_R; the one-period cost G(y), fill(y) and so(y) use the
+// lead-time demand mixed over the lead-time law and the phase of the review
+// cycle (see timing), averaged per period; the order cost per period is K/R
+// per order placed at a review. Every guarantee above holds unchanged: a
+// mixture of the convex functions G_l is convex, fill(y) and so(y) stay
+// monotone in y, and the cost per period is (K/R + sum_j m(j) G(S-j)) /
+// M(S-s), the form of Zheng and Federgruen (1991) with kernel D_R, so their
+// bounds apply to the R-period problem with the mixed lead-time demand
+// (for R-period reviews with a fixed lead time, see also Zipkin 2000,
+// section 6.7). Under independent lead times only base-stock is searched
+// (the fractile of the pipeline law, exact); other kinds are refused with
+// ErrNotExact, as is lost mode with a lead-time law or R > 1.
+//
 // Lost mode: searches that evaluate candidates on the exact chain (at most
 // MaxEvaluations of them, each once), starting from the backorder optimum
 // for the shortage cost b - c (a lost unit forgoes its purchase). Base-stock
@@ -150,6 +165,9 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 		err error
 	)
 	if sys.Mode == inventory.Lost {
+		if err := refuseLostTiming(sys); err != nil {
+			return nil, err
+		}
 		o, err = optimizeLost(sys, kind, fl, opt)
 	} else {
 		o, err = optimizeBackorder(sys, kind, fl, opt)
@@ -172,7 +190,7 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	if err := checkOrderQuantity(sys, kind, opt.Eval.MaxStates); err != nil {
 		return nil, err
 	}
-	mo, err := newBOModelOpt(sys, opt.Eval)
+	mo, err := newBOModelKind(sys, opt.Eval, kind)
 	if err != nil {
 		return nil, err
 	}
@@ -186,10 +204,13 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	case SS:
 		p, sr, err = mo.optimizeSS(fl)
 	case SNQ:
-		p, sr, err = mo.snqSearch(sys.Demand, fl)
+		p, sr, err = mo.snqSearch(mo.pos, fl)
 	}
 	if err != nil {
 		return nil, err
+	}
+	if !sys.FixedTiming() {
+		sr.Method += fmt.Sprintf("; at reviews every %d period(s), with the lead-time demand mixed over the lead-time law and the review phase (%s deliveries)", sys.Review(), sys.Model())
 	}
 	ev, err := Evaluate(sys, p, opt.Eval)
 	if err != nil {
@@ -206,6 +227,11 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 // them. It names the larger rate.
 func checkCostScale(sys inventory.System) error {
 	n := float64(sys.LeadTime) + 1
+	if !sys.FixedTiming() {
+		if w, _, err := sys.LeadTimeWeights(); err == nil {
+			n = float64(len(w) + sys.Review())
+		}
+	}
 	d := sys.Demand
 	scale := n*d.Mean() + 10*math.Sqrt(n*d.Variance()) + 1
 	field, rate := "holding_cost", sys.Holding

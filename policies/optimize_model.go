@@ -107,7 +107,8 @@ func (t *cumTable) above(y int) float64 {
 type boModel struct {
 	h, b, k, c float64
 	mu         float64
-	x1, x0     *cumTable // X_{L+1} and X_L
+	x1, x0     *cumTable              // X_{L+1} and X_L (mixed: see timing)
+	pos        inventory.Distribution // demand between reviews (the kernel's)
 
 	q        []float64 // q[i] = P(D = i)/(1-p0) for i in qlo..len(q)-1
 	qlo      int
@@ -160,19 +161,25 @@ func newBOModel(sys inventory.System) (*boModel, error) { return newBOModelOpt(s
 // the searches visit is kept within opt.MaxStates of the others (see
 // levelCap). opt.Context, when not nil, is checked in the searches' loops.
 func newBOModelOpt(sys inventory.System, opt Options) (*boModel, error) {
-	d := sys.Demand
+	return newBOModelKind(sys, opt, SS)
+}
+
+// newBOModelKind is newBOModelOpt for a search of policies of kind k (the
+// lead-time model admits some kinds only; see timingOf).
+func newBOModelKind(sys inventory.System, opt Options, kind Kind) (*boModel, error) {
 	limit := opt.MaxStates
 	if limit <= 0 {
 		limit = DefaultMaxStates
 	}
-	x1d, n1, err := leadTimeDemand(d, sys.LeadTime+1)
+	tm, err := timingOf(sys, kind)
 	if err != nil {
 		return nil, err
 	}
-	x0d, n0, err := leadTimeDemand(d, sys.LeadTime)
-	if err != nil {
-		return nil, err
-	}
+	// The renewal kernel is the demand between reviews; G, fill and so use
+	// the lead-time laws of the timing (mixed over the lead-time law and
+	// the phase of the review cycle), all per period.
+	d := tm.pos
+	x1d, n1, x0d, n0 := tm.x1, tm.negl1, tm.x0, tm.negl0
 	b1 := 1.0
 	if x1d != nil {
 		b1 = float64(x1d.Bound(kernelEps)) + 1
@@ -188,9 +195,9 @@ func newBOModelOpt(sys inventory.System, opt Options) (*boModel, error) {
 	}
 	mo := &boModel{
 		limit: limit, ctx: opt.Context,
-		h: sys.Holding, b: sys.Shortage, k: sys.OrderCost, c: sys.UnitCost,
-		mu: d.Mean(), x1: newCumTable(x1d), x0: newCumTable(x0d),
-		negl: n1 + n0,
+		h: sys.Holding, b: sys.Shortage, k: sys.OrderCost / float64(tm.r), c: sys.UnitCost,
+		mu: sys.Demand.Mean(), x1: newCumTable(x1d), x0: newCumTable(x0d),
+		negl: n1 + n0, pos: d,
 	}
 	p0 := d.PMF(0)
 	if !(p0 < 1) {

@@ -19,10 +19,11 @@ func evaluateCommand() *cli.Command {
 	flags = append(flags, &cli.BoolFlag{Name: "json", Usage: "print one JSON object instead of the table"})
 	required := unrequire(flags)
 	return &cli.Command{
-		Name:      "evaluate",
-		Usage:     "exact service and cost of one policy, from the stationary law of its chain",
-		UsageText: "ergostock evaluate --demand SPEC --holding-cost h --shortage-cost b [--lead-time L] [--order-cost K] [--unit-cost c] [--unmet backorder|lost] (--order-up-to S | --reorder-point s --order-up-to S | --reorder-point s --order-multiple Q) [--json]",
-		Flags:     flags,
+		Name:        "evaluate",
+		Usage:       "exact service and cost of one policy, from the stationary law of its chain",
+		UsageText:   "ergostock evaluate --demand SPEC --holding-cost h --shortage-cost b [--lead-time L|LAW] [--lead-time-model sequential|independent] [--review-period R] [--order-cost K] [--unit-cost c] [--unmet backorder|lost] (--order-up-to S | --reorder-point s --order-up-to S | --reorder-point s --order-multiple Q) [--json]",
+		Description: timingHelp,
+		Flags:       flags,
 		// A flag that does not parse is a one-line usage error, without the
 		// help text on stdout.
 		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
@@ -117,9 +118,9 @@ func newPolicyObject(p policies.Policy) policyObject {
 // on, and the chain's size and solver diagnostics.
 type evaluationObject struct {
 	inventory.Figures
-	Policy        policyObject      `json:"policy"`
-	Demand        string            `json:"demand"`
-	LeadTime      int               `json:"lead_time"`
+	Policy policyObject `json:"policy"`
+	Demand string       `json:"demand"`
+	timingJSON
 	Unmet         inventory.Mode    `json:"unmet"`
 	States        int               `json:"states"`
 	Diagnostics   chain.Diagnostics `json:"diagnostics"`
@@ -132,7 +133,7 @@ func evaluationJSON(sys inventory.System, e *policies.Evaluation) evaluationObje
 		Figures:       e.Figures,
 		Policy:        newPolicyObject(e.Policy),
 		Demand:        sys.Demand.String(),
-		LeadTime:      sys.LeadTime,
+		timingJSON:    newTimingJSON(sys),
 		Unmet:         sys.Mode,
 		States:        e.States,
 		Diagnostics:   e.Diagnostics,
@@ -147,7 +148,7 @@ func writeEvaluation(w io.Writer, sys inventory.System, e *policies.Evaluation) 
 	tw := newTable(w)
 	fmt.Fprintf(tw, "policy\t%v\t\n", e.Policy)
 	fmt.Fprintf(tw, "demand\t%s\tper period\n", sys.Demand)
-	fmt.Fprintf(tw, "lead time\t%d\tperiods\n", sys.LeadTime)
+	writeTiming(tw, sys)
 	fmt.Fprintf(tw, "unmet demand\t%s\t\n", sys.Mode)
 	fmt.Fprintf(tw, "\t\t\n")
 	for _, f := range e.Figures.Fields() {

@@ -22,7 +22,9 @@ import (
 func systemFlags() []cli.Flag {
 	return []cli.Flag{
 		&cli.StringFlag{Name: "demand", Usage: "demand per period, e.g. poisson:mean=4, negbin:mean=4,var=9, normal:mean=40,sd=8, gamma:mean=5,sd=4, pmf:0=0.2,1=0.5,2=0.3", Required: true},
-		intFlag("lead-time", "lead time L in whole periods (>= 0)", 0),
+		&cli.GenericFlag{Name: "lead-time", Usage: "lead time: whole periods L >= 0, or a law in the demand grammar, e.g. pmf:2=0.2,3=0.6,4=0.2 or poisson:mean=3 (see --lead-time-model)", Value: &leadTimeValue{}},
+		&cli.StringFlag{Name: "lead-time-model", Usage: "how random lead times of successive orders relate: sequential (orders arrive in the order placed; Kaplan 1970) or independent (each order its own lead time; orders may cross)", Value: string(inventory.Sequential)},
+		intFlag("review-period", "review period R in periods: the position is reviewed and orders placed only every R periods (figures and costs stay per period)", 1),
 		floatFlag("holding-cost", "holding cost h per unit on hand per period (required)", false),
 		floatFlag("shortage-cost", "shortage cost b per unit backordered per period, or per unit of lost demand (required)", false),
 		floatFlag("order-cost", "fixed cost K per order", false),
@@ -213,12 +215,30 @@ func systemFromFlags(c *cli.Context) (inventory.System, error) {
 	}
 	sys = inventory.System{
 		Demand:    d,
-		LeadTime:  c.Int("lead-time"),
+		LeadTime:  leadTimeOf(c).fixed,
 		Holding:   c.Float64("holding-cost"),
 		Shortage:  c.Float64("shortage-cost"),
 		OrderCost: c.Float64("order-cost"),
 		UnitCost:  c.Float64("unit-cost"),
 		Mode:      mode,
+	}
+	sys.LeadTimeLaw = leadTimeOf(c).law
+	model, err := inventory.ParseLeadTimeModel(c.String("lead-time-model"))
+	if err != nil {
+		return sys, flagErr(err)
+	}
+	sys.LeadTimeModel = model
+	if r := c.Int("review-period"); r < 1 || r > inventory.MaxReviewPeriod {
+		return sys, usageErr("--review-period %s: want a whole number of periods from 1 to %d", typed(c, "review-period"), inventory.MaxReviewPeriod)
+	}
+	sys.ReviewPeriod = c.Int("review-period")
+	if c.Command != nil && !sys.FixedTiming() {
+		switch name := c.Command.Name; {
+		case !simulateHandlesTiming && (name == "simulate" || name == "report" && c.Bool("simulate")):
+			return sys, usageErr("%s: --lead-time with a law, --lead-time-model and --review-period are not simulated yet (evaluate and optimize answer them exactly in backorder mode)", name)
+		case !reportHandlesTiming && name == "report":
+			return sys, usageErr("report: --lead-time with a law, --lead-time-model and --review-period are not drawn on the page yet (its cost map assumes a fixed lead time; evaluate and optimize answer them exactly in backorder mode)")
+		}
 	}
 	if err := sys.Validate(); err != nil {
 		return sys, engineErr(c, err)
@@ -304,3 +324,111 @@ func (t *table) Flush() error {
 	t.buf.Reset()
 	return nil
 }
+
+// simulateHandlesTiming says whether policies/sim models lead-time laws,
+// the lead-time models and review periods; until it does, simulate refuses
+// them rather than simulate a fixed lead time in their place. (Set it to
+// true when the simulator's support lands.)
+const simulateHandlesTiming = false
+
+// reportHandlesTiming says the same of the one-SKU page of policies/report
+// (its cost map and charts).
+const reportHandlesTiming = false
+
+// leadTimeValue is the value of --lead-time: a whole number of periods or
+// a law, read by inventory.ParseLeadTime (a one-point law is the fixed
+// lead time).
+type leadTimeValue struct {
+	fixed int
+	law   inventory.Distribution
+	typed string
+}
+
+func (v *leadTimeValue) Set(s string) error {
+	fixed, law, err := inventory.ParseLeadTime(s)
+	if err != nil {
+		var fe *inventory.FieldError
+		if errors.As(err, &fe) {
+			return errors.New("want " + fe.Want)
+		}
+		return err
+	}
+	v.fixed, v.law, v.typed = fixed, law, strings.TrimSpace(s)
+	return nil
+}
+
+func (v *leadTimeValue) String() string {
+	if v.typed != "" {
+		return v.typed
+	}
+	return strconv.Itoa(v.fixed)
+}
+
+// leadTimeOf returns the value of --lead-time (0 when the command has no
+// such flag).
+func leadTimeOf(c *cli.Context) *leadTimeValue {
+	if v, ok := c.Generic("lead-time").(*leadTimeValue); ok {
+		return v
+	}
+	return &leadTimeValue{}
+}
+
+// timingJSON is the lead-time law, model and review period in the JSON of
+// evaluate and optimize (beside the fields of SPEC section 2).
+type timingJSON struct {
+	// LeadTime is the whole number of periods, or the law as a string.
+	LeadTime      any     `json:"lead_time"`
+	LeadTimeMean  float64 `json:"lead_time_mean"`
+	LeadTimeModel string  `json:"lead_time_model"`
+	ReviewPeriod  int     `json:"review_period"`
+}
+
+func newTimingJSON(sys inventory.System) timingJSON {
+	t := timingJSON{LeadTime: sys.LeadTime, LeadTimeMean: float64(sys.LeadTime), LeadTimeModel: string(sys.Model()), ReviewPeriod: sys.Review()}
+	if sys.LeadTimeLaw != nil {
+		t.LeadTime, t.LeadTimeMean = sys.LeadTimeLaw.String(), sys.LeadTimeLaw.Mean()
+	}
+	return t
+}
+
+// writeTiming prints the rows of the lead time and review period.
+func writeTiming(tw io.Writer, sys inventory.System) {
+	if sys.LeadTimeLaw == nil {
+		fmt.Fprintf(tw, "lead time\t%d\tperiods\n", sys.LeadTime)
+	} else {
+		fmt.Fprintf(tw, "lead time\t%s\tperiods (mean %s)\n", sys.LeadTimeLaw, strconv.FormatFloat(sys.LeadTimeLaw.Mean(), 'g', 6, 64))
+		fmt.Fprintf(tw, "lead-time model\t%s\t%s\n", sys.Model(), modelNote(sys.Model()))
+	}
+	fmt.Fprintf(tw, "review period\t%d\tperiods between reviews\n", sys.Review())
+}
+
+func modelNote(m inventory.LeadTimeModel) string {
+	if m == inventory.Independent {
+		return "each order its own lead time; orders may cross"
+	}
+	return "orders arrive in the order placed (Kaplan 1970)"
+}
+
+// timingHelp states the modelling assumptions of lead-time laws and review
+// periods, for the --help of evaluate and optimize.
+const timingHelp = `Lead times and reviews (every figure and cost is per period):
+  --lead-time L            a whole number of periods: the order placed at a review arrives L periods
+                           later, before that period's demand.
+  --lead-time LAW          a law in the demand grammar (pmf:2=0.2,3=0.6,4=0.2, poisson:mean=3, ...),
+                           independent of demand. A one-point law is the fixed lead time.
+  --lead-time-model sequential (default): orders arrive in the order placed, in the form of Kaplan
+                           (1970): each period a random cut-off T, independent across periods, lets
+                           every order at least T periods old arrive. The net inventory at the end of
+                           a period is the position after the last review all of whose orders have
+                           arrived less the demand since that review, so every figure is exact with
+                           the lead-time demand mixed over the law. The model realises exactly the
+                           laws whose hazard P(L = l)/P(L >= l) does not fall as l grows; another law
+                           is refused, and the message offers the nearest law it admits.
+  --lead-time-model independent: each order draws its own lead time (orders may cross). Exact for
+                           base-stock with backorders only; other policies and lost sales are
+                           refused here (use simulate).
+  --review-period R        the position is reviewed and an order placed only in periods 0, R, 2R, ...;
+                           the chain is that of the position at reviews with R-period demand, the
+                           figures are averaged over the R periods of a cycle, and the order frequency
+                           and ordering cost are per period (orders per review / R).
+  Lost sales (--unmet lost) are exact only with a fixed lead time and R = 1; otherwise refused.`

@@ -189,6 +189,45 @@ func hostileCases() []hostileCase {
 			}
 		}
 	}
+	// Lead-time laws, lead-time models and review periods (issue 12):
+	// evaluate and optimize; every refusal names its flag.
+	for _, cmd := range []string{"evaluate", "optimize"} {
+		base := sys(cmd, policyOf[cmd]...)
+		for _, v := range []string{"-1", "0", "1.5", "abc", "100001", "9223372036854775808", ""} {
+			add(hostileCase{name: fmt.Sprintf("%s--review-period=%q", cmd, v), args: with(base, "--review-period", v), code: 2, names: []string{"--review-period", v}})
+		}
+		for _, v := range []string{"foo", "sequentiall", "crossing", "1"} {
+			add(hostileCase{name: fmt.Sprintf("%s--lead-time-model=%q", cmd, v), args: with(base, "--lead-time-model", v), code: 2, names: []string{"--lead-time-model", v}})
+		}
+		for _, c := range []struct {
+			law   string
+			code  int
+			names []string
+		}{
+			{"pmf:2=0.2,3=0.5,5=0.3", 2, []string{"--lead-time", "hazard", "nearest"}},
+			{"negbin:mean=4,var=40", 2, []string{"--lead-time", "hazard"}},
+			{"pmf:1=0.5", 2, []string{"--lead-time", "sum to 1"}},
+			{"pmf:-1=1", 2, []string{"--lead-time"}},
+			{"poisson:mean=-1", 2, []string{"--lead-time"}},
+			{"poisson:mean=NaN", 2, []string{"--lead-time"}},
+			{"uniform:low=1", 2, []string{"--lead-time"}},
+			{"pmf:", 2, []string{"--lead-time"}},
+			{"poisson:mean=1e6", 1, []string{"--lead-time", "10000"}},
+			{"pmf:1048577=1", 2, []string{"--lead-time", "1048576"}},
+			{"pmf:4=1", 0, nil}, // a one-point law is the fixed lead time
+		} {
+			add(hostileCase{name: fmt.Sprintf("%s--lead-time=%q", cmd, c.law), args: with(base, "--lead-time", c.law), code: c.code, names: c.names})
+		}
+		law := with(base, "--lead-time", "pmf:1=0.2,2=0.5,3=0.3")
+		add(hostileCase{name: cmd + "-lost-law", args: with(law, "--unmet", "lost"), code: 1, names: []string{"--lead-time", "simulate"}})
+		add(hostileCase{name: cmd + "-lost-review", args: with(with(base, "--unmet", "lost"), "--review-period", "7"), code: 1, names: []string{"--review-period", "simulate"}})
+		add(hostileCase{name: cmd + "-law-review-ok", args: with(law, "--review-period", "7"), code: 0})
+	}
+	add(hostileCase{name: "evaluate-independent-ss", args: with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), code: 0}) // fixed lead time: both models agree
+	add(hostileCase{name: "evaluate-independent-law-ss", args: with(with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), "--lead-time", "pmf:1=0.5,3=0.5"), code: 1, names: []string{"--lead-time-model", "simulate"}})
+	add(hostileCase{name: "evaluate-independent-law-base-stock", args: with(with(sys("evaluate", "--order-up-to", "20"), "--lead-time-model", "independent"), "--lead-time", "pmf:1=0.5,3=0.5"), code: 0})
+	add(hostileCase{name: "optimize-independent-law-base-stock", args: with(with(sys("optimize", "--policy", "base-stock"), "--lead-time-model", "independent"), "--lead-time", "pmf:2=0.2,3=0.5,5=0.3"), code: 0})
+
 	// Demand specs that do not describe a law.
 	for _, cmd := range commands {
 		for _, d := range []string{

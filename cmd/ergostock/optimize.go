@@ -24,10 +24,11 @@ func optimizeCommand() *cli.Command {
 		&cli.BoolFlag{Name: "json", Usage: "print one JSON object instead of the table"},
 	)
 	return &cli.Command{
-		Name:      "optimize",
-		Usage:     "the cheapest policy of a type, exactly where theory allows, under an optional service floor",
-		UsageText: "ergostock optimize --demand SPEC --holding-cost h --shortage-cost b [--lead-time L] [--order-cost K] [--unit-cost c] [--unmet backorder|lost] [--policy base-stock|s-S|s-nQ] [--min-fill-rate F] [--max-stockout-probability P] [--json]",
-		Flags:     flags,
+		Name:        "optimize",
+		Usage:       "the cheapest policy of a type, exactly where theory allows, under an optional service floor",
+		UsageText:   "ergostock optimize --demand SPEC --holding-cost h --shortage-cost b [--lead-time L|LAW] [--lead-time-model sequential|independent] [--review-period R] [--order-cost K] [--unit-cost c] [--unmet backorder|lost] [--policy base-stock|s-S|s-nQ] [--min-fill-rate F] [--max-stockout-probability P] [--json]",
+		Description: timingHelp,
+		Flags:       flags,
 		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
 			return parseErr("optimize", err)
 		},

@@ -1,0 +1,68 @@
+package policies
+
+import (
+	"testing"
+
+	"ergostock/inventory"
+)
+
+// BenchmarkEvaluateSSLeadTimeLaw (issue 12 item 9): s-S(300, 500) in
+// backorder mode, Poisson demand of mean 50, lead time uniform on 1..10
+// periods under sequential deliveries; target: within 3 times the same
+// evaluation with a fixed lead time (the sub-benchmarks fixed=5, the
+// nearest whole number to the mean 5.5, and fixed=10, the longest value).
+// The weekly sub-benchmark adds a review period of 7.
+func BenchmarkEvaluateSSLeadTimeLaw(b *testing.B) {
+	law, err := inventory.Parse("pmf:1=0.1,2=0.1,3=0.1,4=0.1,5=0.1,6=0.1,7=0.1,8=0.1,9=0.1,10=0.1")
+	if err != nil {
+		b.Fatal(err)
+	}
+	p := Policy{Kind: SS, ReorderPoint: 300, OrderUpTo: 500}
+	base := inventory.System{Demand: poisson(b, 50), Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
+	cases := []struct {
+		name string
+		sys  func() inventory.System
+	}{
+		{"fixed=5", func() inventory.System { s := base; s.LeadTime = 5; return s }},
+		{"fixed=10", func() inventory.System { s := base; s.LeadTime = 10; return s }},
+		{"law=1..10", func() inventory.System { s := base; s.LeadTimeLaw = law; return s }},
+		{"law=1..10,R=7", func() inventory.System { s := base; s.LeadTimeLaw = law; s.ReviewPeriod = 7; return s }},
+	}
+	for _, c := range cases {
+		b.Run(c.name, func(b *testing.B) {
+			sys := c.sys()
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := Evaluate(sys, p, Options{}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkOptimizeSSLeadTimeLaw: the s-S search (Zheng-Federgruen on the
+// problem at reviews) for Poisson 50, lead time uniform on 1..10, K = 500,
+// with a fixed lead time 5 beside it, and weekly review.
+func BenchmarkOptimizeSSLeadTimeLaw(b *testing.B) {
+	law, err := inventory.Parse("pmf:1=0.1,2=0.1,3=0.1,4=0.1,5=0.1,6=0.1,7=0.1,8=0.1,9=0.1,10=0.1")
+	if err != nil {
+		b.Fatal(err)
+	}
+	base := inventory.System{Demand: poisson(b, 50), Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
+	for _, c := range []struct {
+		name string
+		law  inventory.Distribution
+		L, R int
+	}{{"fixed=5", nil, 5, 1}, {"law=1..10", law, 0, 1}, {"law=1..10,R=7", law, 0, 7}} {
+		b.Run(c.name, func(b *testing.B) {
+			sys := base
+			sys.LeadTime, sys.LeadTimeLaw, sys.ReviewPeriod = c.L, c.law, c.R
+			for b.Loop() {
+				if _, err := Optimize(sys, SS, SearchOptions{}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
