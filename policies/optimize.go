@@ -36,6 +36,12 @@ type SearchOptions struct {
 	// past the best without improvement; 0 means DefaultPatience, and a
 	// negative value scans on to the proven cost bounds.
 	Patience int
+	// Cache, when not nil, keeps the chain evaluations of lost-sales
+	// searches so that another search of the same system (under other
+	// floors, as the exchange curve runs them) reuses them. It changes no
+	// result: a reused evaluation counts against MaxEvaluations as a new
+	// one would.
+	Cache *EvalCache
 }
 
 // Search records how a search ran: how many candidate policies it costed

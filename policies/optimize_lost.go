@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 
 	"ergostock/inventory"
 )
@@ -39,13 +40,15 @@ func (a lostCandidate) better(b lostCandidate) bool {
 // before and is sized from it (neighbouring policies have chains of
 // similar size).
 type lostSearch struct {
-	sys   inventory.System
-	opt   SearchOptions
-	eopt  Options // opt.Eval with the defaults of Evaluate applied
-	fl    floors
-	memo  map[Policy]lostCandidate
-	evals int
-	work  lostWork
+	sys  inventory.System
+	opt  SearchOptions
+	eopt Options // opt.Eval with the defaults of Evaluate applied
+	fl   floors
+	memo map[Policy]lostCandidate
+	// cacheKey names the system and options of opt.Cache's entries.
+	cacheKey string
+	evals    int
+	work     lostWork
 }
 
 var errCap = errors.New("evaluation cap reached")
@@ -69,7 +72,14 @@ func (ls *lostSearch) eval(p Policy) (lostCandidate, error) {
 	var ev *Evaluation
 	err := p.Validate(ls.sys.Mode)
 	if err == nil {
-		ev, err = evaluateLostIn(ls.sys, p, ls.eopt, &ls.work)
+		if ce, ok := ls.opt.Cache.get(ls.cacheKey, p); ok {
+			ev, err = ce.ev, ce.err
+		} else {
+			ev, err = evaluateLostIn(ls.sys, p, ls.eopt, &ls.work)
+			if err == nil || errors.As(err, new(*SizeError)) {
+				ls.opt.Cache.put(ls.cacheKey, p, cachedEval{ev, err})
+			}
+		}
 	}
 	var c lostCandidate
 	if err != nil {
@@ -113,6 +123,9 @@ func optimizeLost(sys inventory.System, kind Kind, fl floors, opt SearchOptions)
 		eopt.Chain.Context = eopt.Context
 	}
 	ls := &lostSearch{sys: sys, opt: opt, eopt: eopt, fl: fl, memo: map[Policy]lostCandidate{}}
+	if opt.Cache != nil {
+		ls.cacheKey = cacheKey(sys, eopt)
+	}
 	// Under a floor the start is the backorder optimum under the same floor
 	// (backorder service is a guide to lost-sales service, not equal to it).
 	switch kind {
@@ -412,4 +425,57 @@ func (ls *lostSearch) pattern(mo *boModel, cs coords, x0 [2]int) (*Optimum, erro
 		Bounds:    bounds,
 		Guarantee: g,
 	}}, nil
+}
+
+// EvalCache keeps lost-sales chain evaluations across searches of one
+// system (see SearchOptions.Cache). It is safe for concurrent use; entries
+// of another system or other evaluation options replace the old ones.
+type EvalCache struct {
+	mu  sync.Mutex
+	key string
+	m   map[Policy]cachedEval
+}
+
+type cachedEval struct {
+	ev  *Evaluation
+	err error
+}
+
+// NewEvalCache returns an empty cache.
+func NewEvalCache() *EvalCache { return &EvalCache{} }
+
+func (c *EvalCache) get(key string, p Policy) (cachedEval, bool) {
+	if c == nil {
+		return cachedEval{}, false
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.key != key {
+		return cachedEval{}, false
+	}
+	e, ok := c.m[p]
+	return e, ok
+}
+
+func (c *EvalCache) put(key string, p Policy, e cachedEval) {
+	if c == nil {
+		return
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.key != key || c.m == nil {
+		c.key, c.m = key, map[Policy]cachedEval{}
+	}
+	c.m[p] = e
+}
+
+// cacheKey identifies a system and the evaluation options that shape its
+// chains' figures.
+func cacheKey(sys inventory.System, o Options) string {
+	law := ""
+	if sys.LeadTimeLaw != nil {
+		law = sys.LeadTimeLaw.String()
+	}
+	return fmt.Sprintf("%s|%d|%s|%s|%d|%g|%g|%g|%g|%v|%d|%v|%s|%g|%d", sys.Demand, sys.LeadTime, law, sys.LeadTimeModel, sys.ReviewPeriod,
+		sys.Holding, sys.Shortage, sys.OrderCost, sys.UnitCost, sys.Mode, o.MaxStates, o.Exhaustive, o.Chain.Method, o.Chain.Tol, o.Chain.MaxIter)
 }

@@ -220,6 +220,10 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 				// already meet the target.
 				exact := j.sys.Mode == inventory.Backorder && (j.kind == policies.BaseStock || j.kind == policies.SS)
 				var prev *policies.Optimum
+				// The lost-sales searches of one item under the targets
+				// share their chain evaluations (the results are those of
+				// searches run alone).
+				cache := policies.NewEvalCache()
 				for _, t := range order {
 					k := ji*nt + t
 					target := in.Targets[t]
@@ -232,7 +236,7 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 						prev = res[k]
 						continue
 					}
-					so := policies.SearchOptions{MinFillRate: target}
+					so := policies.SearchOptions{MinFillRate: target, Cache: cache}
 					if j.sys.Mode == inventory.Lost {
 						so.Eval.MaxStates, so.MaxEvaluations = exchangeMaxStates, exchangeMaxEvaluations
 					}
@@ -246,7 +250,19 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 			}
 		}()
 	}
-	for ji := range jobs {
+	// Lost-sales items first: their searches are the long ones.
+	start := make([]int, 0, len(jobs))
+	for ji, j := range jobs {
+		if j.sys.Mode == inventory.Lost {
+			start = append(start, ji)
+		}
+	}
+	for ji, j := range jobs {
+		if j.sys.Mode != inventory.Lost {
+			start = append(start, ji)
+		}
+	}
+	for _, ji := range start {
 		next <- ji
 	}
 	close(next)
