@@ -185,6 +185,20 @@ func BenchmarkBatchLost(b *testing.B) {
 	benchCatalogue(b, "skus=100", catalogue{n: 100, weeks: 104, seed: 20261202, lostEvery: 1, maxLead: 2})
 }
 
+// BenchmarkBatchGoals times the catalogues of issue 14's goals: 10,000
+// SKUs of which 5% are lost-sales items with lead times up to 4, and
+// 100,000 backorder SKUs (both under 60 s on two cores).
+func BenchmarkBatchGoals(b *testing.B) {
+	benchCatalogue(b, "skus=10000,lost=5%,L<=4", catalogue{n: 10000, weeks: 104, seed: 20261202, lostEvery: 20, maxLead: 4})
+	benchCatalogue(b, "skus=100000,backorder", catalogue{n: 100000, weeks: 104, seed: 20261202, maxLead: 4})
+}
+
+// BenchmarkBatchLostL4 is the lost-sales share of BenchmarkBatchGoals'
+// first catalogue alone: 100 lost-sales items with lead times up to 4.
+func BenchmarkBatchLostL4(b *testing.B) {
+	benchCatalogue(b, "skus=100,L<=4", catalogue{n: 100, weeks: 104, seed: 20261202, lostEvery: 1, maxLead: 4})
+}
+
 func benchCatalogue(b *testing.B, name string, c catalogue) {
 	dir := b.TempDir()
 	itemsPath, histPath := writeSynthetic(b, dir, c)
