@@ -60,8 +60,19 @@ func newLossTable(x inventory.Distribution, lo, hi int) lossTable {
 	k0 := lossStart(x, lo)
 	m := h - k0 + 1
 	pmf := make([]float64, m) // P(X = k0 + i)
+	next := 0                 // where to look again for an all-zero tail
 	for i := range pmf {
-		pmf[i] = x.PMF(k0 + i)
+		k := k0 + i
+		pmf[i] = x.PMF(k)
+		// Past the mean, once P(X >= k) itself is 0 in float64 every
+		// later term is 0 too (each is at most that tail): the rest of
+		// the table stays zero without computing its terms.
+		if pmf[i] == 0 && float64(k) > mu && i >= next {
+			if x.Tail(k) == 0 {
+				break
+			}
+			next = i + 256
+		}
 	}
 	t.pmf, t.pmf0 = pmf, k0
 	// P(X > k) for k = k0..h, downwards from the closed tail P(X >= h+1).
