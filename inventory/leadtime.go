@@ -173,10 +173,22 @@ func checkLeadTimeLaw(s System) error {
 			near := NearestKaplan(d)
 			return &FieldError{Field: "lead_time", Value: d.String(),
 				Want: "a law that sequential deliveries (Kaplan 1970) can realise: its hazard P(L = l)/P(L >= l) must not fall as l grows, so that the cut-off law P(T <= l) = P(L = l)/P(L >= l) is a distribution function; here it falls from l = " +
-					strconv.Itoa(j) + " to " + strconv.Itoa(j+1) + "; the nearest law it admits (maximum likelihood under a rising hazard) is " + near.String() + " (mean " + strconv.FormatFloat(near.Mean(), 'g', 6, 64) + ", against " + strconv.FormatFloat(d.Mean(), 'g', 6, 64) + "; or --lead-time-model independent: orders may cross)"}
+					strconv.Itoa(j) + " to " + strconv.Itoa(j+1) + "; the nearest law it admits (maximum likelihood under a rising hazard) is " + shortLaw(near.String()) + " (mean " + strconv.FormatFloat(near.Mean(), 'g', 6, 64) + ", against " + strconv.FormatFloat(d.Mean(), 'g', 6, 64) + "; or --lead-time-model independent: orders may cross)"}
 		}
 	}
 	return nil
+}
+
+// shortLaw keeps a law's text short enough for a one-line message: a law
+// with a long support is cut after its first points, with the count of the
+// points left out.
+func shortLaw(s string) string {
+	const keep = 8
+	parts := strings.Split(s, ",")
+	if len(parts) <= keep+2 {
+		return s
+	}
+	return strings.Join(parts[:keep], ",") + ",… (" + strconv.Itoa(len(parts)-keep) + " more points)"
 }
 
 // kaplanTol is the amount by which a computed hazard may fall before a law

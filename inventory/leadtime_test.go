@@ -97,3 +97,18 @@ func FuzzParseLeadTime(f *testing.F) {
 		}
 	})
 }
+
+// A refusal stays one readable line even when the nearest admissible law
+// has thousands of points.
+func TestKaplanRefusalIsShort(t *testing.T) {
+	_, law, err := ParseLeadTime("pmf:1=0.5,9999=0.5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d, _ := NewPoisson(3)
+	sys := System{Demand: d, LeadTimeLaw: law, Holding: 1, Shortage: 1, Mode: Backorder}
+	err = sys.Validate()
+	if err == nil || len(err.Error()) > 1000 || !strings.Contains(err.Error(), "more points") {
+		t.Fatalf("want a short refusal naming the points left out, got %d bytes: %.300v", len(err.Error()), err)
+	}
+}
