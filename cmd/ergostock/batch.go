@@ -17,6 +17,7 @@ import (
 	"golang.org/x/term"
 
 	"ergostock/inventory/history"
+	"ergostock/inventory/tabular"
 	"ergostock/policies"
 	"ergostock/policies/batch"
 )
@@ -78,6 +79,9 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
+			&cli.StringFlag{Name: "out-delimiter", Usage: "field separator of the results CSV: , ; or tab", Value: ","},
+			&cli.StringFlag{Name: "out-decimal", Usage: "decimal mark of the results CSV: . or , (a decimal comma needs --out-delimiter ';' or tab)", Value: "."},
+			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
 		},
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
@@ -132,6 +136,10 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	period, err := history.ParsePeriod(c.String("period"))
 	if err != nil {
 		return usageErr("--%v", err)
+	}
+	cells, err := outFormat(c)
+	if err != nil {
+		return err
 	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
 	toStdout := outPath == "-"
@@ -240,7 +248,10 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		)
 	}
 	var sum batchSummary
-	bw := batch.NewWriter(out)
+	bw, err := batch.NewFormatWriter(out, cells)
+	if err != nil {
+		return usageErr("%v", err)
+	}
 	err = bw.WriteMeta(meta)
 	if err == nil {
 		err = bw.WriteHeader()
@@ -280,6 +291,26 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	}
 	fmt.Fprintf(stderr, "ergostock: %s\n", msg)
 	return nil
+}
+
+// outFormat reads --out-delimiter, --out-decimal and --digits.
+func outFormat(c *cli.Context) (batch.Format, error) {
+	var f batch.Format
+	d, err := tabular.ParseDelimiter(c.String("out-delimiter"))
+	if err != nil || d == 0 {
+		return f, usageErr("--out-delimiter %q: want , ; or tab", c.String("out-delimiter"))
+	}
+	f.Delimiter = d
+	m, err := tabular.ParseDecimal(c.String("out-decimal"))
+	if err != nil || m == 0 {
+		return f, usageErr("--out-decimal %q: want . or ,", c.String("out-decimal"))
+	}
+	f.Decimal = m
+	f.Digits = c.Int("digits")
+	if err := f.Validate(); err != nil {
+		return f, usageErr("%v", err)
+	}
+	return f, nil
 }
 
 // ctxReader fails its reads once ctx is done, so that an interrupt stops

@@ -38,6 +38,10 @@ type Meta struct {
 	MaxStates int
 	Shard     Shard
 	Version   string
+	// Cells is how the cells were written; the keys decimal= and digits=
+	// appear only when they differ from the plain form (decimal point,
+	// full precision), so plain files keep their header record.
+	Cells Format
 }
 
 // NewDigest returns the hash whose sum DigestSum prints.
@@ -56,8 +60,15 @@ func (m Meta) RunDigest() string {
 
 // String prints the header record (without a line end).
 func (m Meta) String() string {
-	return fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
+	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
 		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version)
+	if m.Cells.decimal() == ',' {
+		s += "; decimal=comma"
+	}
+	if m.Cells.Digits > 0 {
+		s += fmt.Sprintf("; digits=%d", m.Cells.Digits)
+	}
+	return s
 }
 
 // ParseMeta reads a header record written by Meta.String; name and line
@@ -100,6 +111,14 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			}
 		case "version":
 			m.Version = val
+		case "decimal":
+			if val == "comma" {
+				m.Cells.Decimal = ','
+			}
+		case "digits":
+			if d, err := strconv.Atoi(val); err == nil && d > 0 && d <= MaxDigits {
+				m.Cells.Digits = d
+			}
 		}
 	}
 	if m.Period == "" || m.Items == "" {

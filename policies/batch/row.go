@@ -63,6 +63,10 @@ type Writer struct {
 	out io.Writer
 	w   *csv.Writer
 	rec []string
+
+	format  Format     // how cells are written (see NewFormatWriter)
+	kinds   []CellKind // of the header's columns, when format is not plain
+	started bool       // the byte-order mark, if any, is written
 }
 
 // NewWriter returns a Writer on w; call WriteMeta (optional) and
@@ -78,16 +82,31 @@ func (w *Writer) WriteMeta(m Meta) error {
 	if err := w.w.Error(); err != nil {
 		return err
 	}
+	if err := w.start(); err != nil {
+		return err
+	}
+	m.Cells = w.format
 	_, err := io.WriteString(w.out, m.String()+"\n")
 	return err
 }
 
 // WriteHeader writes the header line.
-func (w *Writer) WriteHeader() error { return w.w.Write(Header()) }
+func (w *Writer) WriteHeader() error {
+	if err := w.start(); err != nil {
+		return err
+	}
+	return w.w.Write(w.header())
+}
 
 // Write writes one row.
 func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
+	if !w.format.Plain() {
+		if w.kinds == nil {
+			w.header()
+		}
+		w.format.reformat(w.rec, w.kinds)
+	}
 	return w.w.Write(w.rec)
 }
 
