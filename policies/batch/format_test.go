@@ -67,8 +67,8 @@ func sampleRows() []*Row {
 	cur := 51.25
 	return []*Row{
 		{Item: 0, SKU: "PANTO-STRIP-2", Demand: "negbin:mean=2.5,var=4", DemandMean: 2.5, DemandVariance: 4, Pattern: "erratic",
-			Policy:  &policies.Policy{Kind: policies.SS, ReorderPoint: 4, OrderUpTo: 19},
-			Figures: &inventory.Figures{FillRate: 0.98123456789, StockoutProbability: 0.0312, MeanOnHand: 9.87654321, TotalCost: 47.123456},
+			Policy:           &policies.Policy{Kind: policies.SS, ReorderPoint: 4, OrderUpTo: 19},
+			Figures:          &inventory.Figures{FillRate: 0.98123456789, StockoutProbability: 0.0312, MeanOnHand: 9.87654321, TotalCost: 47.123456},
 			CurrentTotalCost: &cur, States: 40, Residual: 1.2e-16, Evaluated: 77, Warnings: []string{"a; b", "=c"}},
 		{Item: 1, SKU: "-LAMP", Err: errString("items.csv:3: holding_cost \"x\": want a finite cost >= 0")},
 	}
