@@ -93,6 +93,7 @@ func batchCommand() *cli.Command {
 type batchSummary struct {
 	items, failed, withCurrent int
 	totalCost, saving          float64
+	period                     string // the planning period: day, week or month
 }
 
 func (s *batchSummary) add(r *batch.Row) {
@@ -109,8 +110,12 @@ func (s *batchSummary) add(r *batch.Row) {
 }
 
 func (s *batchSummary) String() string {
-	return fmt.Sprintf("batch: %d items: %d planned, %d failed; total cost %.2f per period; saving %.2f per period over %d items with a current policy",
-		s.items, s.items-s.failed, s.failed, s.totalCost, s.saving, s.withCurrent)
+	p := s.period
+	if p == "" {
+		p = "period"
+	}
+	return fmt.Sprintf("batch: %d items: %d planned, %d failed; planning period %s, costs per %s: total cost %.2f per %s; saving %.2f per %s over %d items with a current policy",
+		s.items, s.items-s.failed, s.failed, p, p, s.totalCost, p, s.saving, p, s.withCurrent)
 }
 
 func runBatch(c *cli.Context, stderr io.Writer) error {
@@ -247,7 +252,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			progressbar.OptionClearOnFinish(),
 		)
 	}
-	var sum batchSummary
+	sum := batchSummary{period: period.String()}
 	bw, err := batch.NewFormatWriter(out, cells)
 	if err != nil {
 		return usageErr("%v", err)

@@ -2,9 +2,12 @@ package main
 
 import (
 	"bytes"
+	"encoding/csv"
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -153,4 +156,86 @@ func roundTo(v float64, n int) float64 {
 		return 0
 	}
 	return batch.RoundDigits(v, n)
+}
+
+// The results name the planning period and the unit of costs (header
+// record and summary line), and carry the current policy's levels, as the
+// items file gives them, and its fill rate beside the recommended ones.
+func TestBatchUnitsAndCurrentPolicy(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "results.csv")
+	code, stderr := runBatchCmd(t, "--items", demoItems, "--history", demoHistory, "--out", out, "--period", "month", "--workers", "2")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stderr, "planning period month, costs per month: total cost ") || !strings.Contains(stderr, " per month over ") {
+		t.Errorf("summary line does not name the period: %s", stderr)
+	}
+	first := strings.SplitN(string(readFile(t, out)), "\n", 2)[0]
+	if !strings.Contains(first, "; period=month;") || !strings.HasSuffix(first, "; costs=per month") {
+		t.Errorf("header record %q: want period=month and costs=per month", first)
+	}
+	header, rows := readResults(t, out)
+	items := readCSV(t, demoItems)
+	ih := items[0]
+	with := 0
+	for _, r := range rows {
+		get := func(c string) string { return r[column(header, c)] }
+		item := items[1+atoiT(t, get("item"))]
+		iget := func(c string) string {
+			if i := slices.Index(ih, c); i >= 0 {
+				return strings.TrimSpace(item[i])
+			}
+			return ""
+		}
+		if get("current_policy") == "" {
+			if get("current_total_cost") != "" || get("current_fill_rate") != "" {
+				t.Errorf("%s: current figures without a current policy", get("sku"))
+			}
+			continue
+		}
+		with++
+		for _, c := range []string{"current_reorder_point", "current_order_up_to", "current_order_multiple"} {
+			if get(c) != iget(c) {
+				t.Errorf("%s: %s %q, the items file has %q", get("sku"), c, get(c), iget(c))
+			}
+		}
+		fr := parseFloatT(t, get("current_fill_rate"))
+		if !(fr >= 0 && fr <= 1) {
+			t.Errorf("%s: current_fill_rate %v", get("sku"), fr)
+		}
+		cur, tot, sav := parseFloatT(t, get("current_total_cost")), parseFloatT(t, get("total_cost")), parseFloatT(t, get("saving"))
+		if cur-tot != sav {
+			t.Errorf("%s: saving %v, want %v - %v", get("sku"), sav, cur, tot)
+		}
+	}
+	if with == 0 {
+		t.Error("no item with a current policy in the demo")
+	}
+}
+
+func readCSV(t *testing.T, path string) [][]string {
+	t.Helper()
+	recs, err := csv.NewReader(bytes.NewReader(readFile(t, path))).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return recs
+}
+
+func atoiT(t *testing.T, s string) int {
+	t.Helper()
+	n, err := strconv.Atoi(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return n
+}
+
+func parseFloatT(t *testing.T, s string) float64 {
+	t.Helper()
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return v
 }

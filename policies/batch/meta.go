@@ -19,8 +19,10 @@ const MetaFormat = 2
 // Meta is the header record of a results file: the comment line before
 // the CSV header that says what the rows were computed from, e.g.
 //
-//	# ergostock results v2; period=week; run=5d0c1a2b3e4f5a6b; items=0a1b2c3d4e5f6a7b; history=8c9d0e1f2a3b4c5d; max_states=5000000; shard=0/1; version=0.1.0
+//	# ergostock results v2; period=week; run=5d0c1a2b3e4f5a6b; items=0a1b2c3d4e5f6a7b; history=8c9d0e1f2a3b4c5d; max_states=5000000; shard=0/1; version=0.1.0; costs=per week
 //
+// period is the planning period: every figure is a long-run average per
+// period, and costs= says so in words (costs are money per period).
 // Fields are "key=value" separated by "; "; no value holds a comma, so the
 // line is one cell in a spreadsheet. Digests are the first 16 hex digits
 // (64 bits) of SHA-256: items and history of those files' bytes ("none"
@@ -60,8 +62,8 @@ func (m Meta) RunDigest() string {
 
 // String prints the header record (without a line end).
 func (m Meta) String() string {
-	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
-		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version)
+	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s; costs=per %s",
+		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version, m.Period)
 	if m.Cells.decimal() == ',' {
 		s += "; decimal=comma"
 	}

@@ -27,6 +27,10 @@ type Row struct {
 	Figures *inventory.Figures
 	// The cost of the policy in use; nil without one or when the item failed.
 	CurrentTotalCost *float64
+	// The policy in use and its fill rate; nil without one or when the
+	// item failed (see currentColumns).
+	Current         *policies.Policy
+	CurrentFillRate *float64
 
 	States    int     // states of the chosen policy's chain
 	Residual  float64 // of its stationary solve, ||pi P - pi||_1
@@ -54,8 +58,9 @@ func Header() []string {
 	for _, f := range (inventory.Figures{}).Fields() {
 		h = append(h, f.Name)
 	}
-	return append(h, "current_total_cost", "saving", "warnings", "error",
+	h = append(h, "current_total_cost", "saving", "warnings", "error",
 		"states", "residual", "balance", "neglected", "policies_evaluated", "item")
+	return append(h, currentColumns...)
 }
 
 // Writer writes the results file as CSV.
@@ -168,7 +173,8 @@ func (r *Row) appendRecord(rec []string) []string {
 	} else {
 		rec = append(rec, "", "", "", "", "")
 	}
-	return append(rec, strconv.Itoa(r.Item))
+	rec = append(rec, strconv.Itoa(r.Item))
+	return r.appendCurrent(rec)
 }
 
 // oneLine folds a message onto one line, so that every row of the results

@@ -28,8 +28,12 @@ type ResultRow struct {
 	Figures        *inventory.Figures // nil when the item failed
 	CurrentCost    *float64           // total cost of the policy in use, if given
 	Saving         *float64           // current minus recommended total cost
-	Warnings       []string
-	Err            string
+	// The policy in use and its fill rate, if given (files written before
+	// these columns existed have neither).
+	Current         *policies.Policy
+	CurrentFillRate *float64
+	Warnings        []string
+	Err             string
 }
 
 // resultColumns are the columns the report needs from a results file.
@@ -167,7 +171,7 @@ func readResultsTable(tr *tabular.Reader, res *Results) (*Results, error) {
 			return nil, err
 		}
 		cell := func(c string) string {
-			if i := col[c]; i < len(rec) {
+			if i, ok := col[c]; ok && i < len(rec) {
 				return strings.TrimSpace(rec[i])
 			}
 			return ""
@@ -255,6 +259,30 @@ func readResultsTable(tr *tabular.Reader, res *Results) (*Results, error) {
 			return nil, err
 		} else if ok {
 			row.Saving = &v
+		}
+		// The current policy's columns, in files since they were added.
+		if kind := text("current_policy"); kind != "" {
+			p := policies.Policy{Kind: policies.Kind(kind)}
+			if p.ReorderPoint, err = integer("current_reorder_point"); err != nil {
+				return nil, err
+			}
+			if p.OrderUpTo, err = integer("current_order_up_to"); err != nil {
+				return nil, err
+			}
+			if p.OrderMultiple, err = integer("current_order_multiple"); err != nil {
+				return nil, err
+			}
+			switch p.Kind {
+			case policies.BaseStock, policies.SS, policies.SNQ:
+			default:
+				return nil, bad("current_policy", "base-stock, s-S or s-nQ")
+			}
+			row.Current = &p
+		}
+		if v, ok, err := number("current_fill_rate"); err != nil {
+			return nil, err
+		} else if ok {
+			row.CurrentFillRate = &v
 		}
 		rows = append(rows, row)
 	}
