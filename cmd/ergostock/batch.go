@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"strings"
 	"runtime"
 	"sync/atomic"
 	"syscall"
@@ -253,9 +254,14 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		)
 	}
 	sum := batchSummary{period: period.String()}
-	bw, err := batch.NewFormatWriter(out, cells)
+	var bw resultsWriter
+	if isWorkbookName(outPath) {
+		bw, err = batch.NewWorkbookWriter(out, cells)
+	} else {
+		bw, err = batch.NewFormatWriter(out, cells)
+	}
 	if err != nil {
-		return usageErr("%v", err)
+		return usageErr("--out %s: %v", outPath, err)
 	}
 	err = bw.WriteMeta(meta)
 	if err == nil {
@@ -298,9 +304,28 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	return nil
 }
 
+// resultsWriter writes the results file: CSV (batch.Writer) or a
+// workbook (batch.WorkbookWriter).
+type resultsWriter interface {
+	WriteMeta(batch.Meta) error
+	WriteHeader() error
+	Write(*batch.Row) error
+	Flush() error
+}
+
+// isWorkbookName reports whether --out names an .xlsx workbook.
+func isWorkbookName(path string) bool { return strings.HasSuffix(strings.ToLower(path), ".xlsx") }
+
 // outFormat reads --out-delimiter, --out-decimal and --digits.
 func outFormat(c *cli.Context) (batch.Format, error) {
 	var f batch.Format
+	if out := c.String("out"); isWorkbookName(out) {
+		for _, flag := range []string{"out-delimiter", "out-decimal"} {
+			if c.IsSet(flag) {
+				return f, usageErr("--%s with --out %s: a workbook stores numbers as numbers and shows them in the spreadsheet's own locale; leave --%s out (it applies to CSV results)", flag, out, flag)
+			}
+		}
+	}
 	d, err := tabular.ParseDelimiter(c.String("out-delimiter"))
 	if err != nil || d == 0 {
 		return f, usageErr("--out-delimiter %q: want , ; or tab", c.String("out-delimiter"))

@@ -3,9 +3,11 @@ package main
 import (
 	"bytes"
 	"encoding/csv"
+	"math"
 	"os"
 	"path/filepath"
 	"reflect"
+	"regexp"
 	"slices"
 	"strconv"
 	"strings"
@@ -238,4 +240,44 @@ func parseFloatT(t *testing.T, s string) float64 {
 		t.Fatal(err)
 	}
 	return v
+}
+
+// dataV matches the sort keys of the batch page's table cells.
+var dataV = regexp.MustCompile(` data-v="[^"]*"`)
+
+// Results written as a workbook read back by the report as the same rows:
+// levels, text and warnings exactly, figures to the 15 significant digits
+// a workbook cell keeps; the page shows the same figures.
+func TestBatchOutWorkbookRoundTrip(t *testing.T) {
+	dir := t.TempDir()
+	plain, book := filepath.Join(dir, "plain.csv"), filepath.Join(dir, "results.xlsx")
+	batchTo(t, 0, plain)
+	batchTo(t, 0, book)
+	if b := readFile(t, book); !bytes.HasPrefix(b, []byte("PK\x03\x04")) {
+		t.Fatalf("%s is not a workbook: starts %.10q", book, b)
+	}
+	want, got := readResultsFileT(t, plain), readResultsFileT(t, book)
+	if got.Meta == nil || got.Meta.Run != want.Meta.Run || got.Meta.Period != "week" {
+		t.Fatalf("header record %+v, want %+v", got.Meta, want.Meta)
+	}
+	if len(got.Rows) != len(want.Rows) {
+		t.Fatalf("%d rows, want %d", len(got.Rows), len(want.Rows))
+	}
+	close := func(a, b float64) bool { return math.Abs(a-b) <= 1e-14*math.Max(math.Abs(a), math.Abs(b)) }
+	for i, g := range got.Rows {
+		w := want.Rows[i]
+		if g.SKU != w.SKU || g.Demand != w.Demand || *g.Policy != *w.Policy || strings.Join(g.Warnings, "|") != strings.Join(w.Warnings, "|") ||
+			(g.Current == nil) != (w.Current == nil) || g.Current != nil && *g.Current != *w.Current {
+			t.Fatalf("row %d: %+v, want %+v", i, g, w)
+		}
+		for j, f := range w.Figures.Fields() {
+			if v := g.Figures.Fields()[j].Value; !close(v, f.Value) {
+				t.Errorf("%s %s: %v, want %v", w.SKU, f.Name, v, f.Value)
+			}
+		}
+	}
+	page := dataV.ReplaceAllString(strings.ReplaceAll(reportPage(t, book), book, plain), "")
+	if page != dataV.ReplaceAllString(reportPage(t, plain), "") {
+		t.Error("the batch page of the workbook shows other figures than the CSV's")
+	}
 }
