@@ -55,9 +55,20 @@ the run, removes the temporary file and exits 130 or 143. --out - writes
 the results to stdout instead (no temporary file).
 --shard K/N plans only the items at positions K, K+N, K+2N, ... (0-based),
 so that N runs, for instance the tasks of a cluster array job, split the
-catalogue; their parts share one run digest in the header record and join
-(header record and column header once) into the full result, the item
-column restoring input order.
+catalogue; their parts share one run digest in the header record, and
+ergostock merge --out results.csv part-*.csv joins them into the file the
+unsharded run writes.
+
+For spreadsheets: --out-delimiter ';' --out-decimal , writes a file that a
+spreadsheet in a decimal-comma locale opens cleanly (tab works too; a file
+in such a dialect starts with a UTF-8 byte-order mark, and its header record
+says decimal=comma); --digits N rounds every figure to N significant digits
+(levels and counts are whole numbers and never rounded). --out FILE.xlsx
+writes a workbook instead: a results sheet (header row frozen, numbers as
+numbers, fill rate and stockout probability as percentages; figures keep
+the 15 significant digits a spreadsheet cell holds), a warnings sheet (sku,
+item, warning) and a run sheet with the header record. ergostock report
+reads every one of these.
 
 Exit status: 0 when every item was planned; 3 when the results file was
 written but some items failed; 1 when the run failed as a whole (an
@@ -207,14 +218,14 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if shard.N == 0 {
 		meta.Shard = batch.Shard{K: 0, N: 1}
 	}
-	items, digest, err := readItemsFile(ctx, itemsPath, shard)
+	items, count, digest, err := readItemsCounted(ctx, itemsPath, shard)
 	if e := interrupted(); e != nil {
 		return e
 	}
 	if err != nil {
 		return err
 	}
-	meta.Items = digest
+	meta.Items, meta.ItemCount = digest, count
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
 		h, digest, err := readHistoryFile(ctx, histPath, period)
@@ -376,11 +387,22 @@ func readDigested(ctx context.Context, flag, path string, read func(io.Reader) e
 }
 
 func readItemsFile(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, digest string, err error) {
+	items, _, digest, err = readItemsCounted(ctx, path, shard)
+	return items, digest, err
+}
+
+// readItemsCounted is readItemsFile that also counts the items of the
+// whole file (every shard's), for the header record's item_count.
+func readItemsCounted(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, count int, digest string, err error) {
+	keep := func(i int) bool {
+		count = max(count, i+1)
+		return shard.Contains(i)
+	}
 	digest, err = readDigested(ctx, "items", path, func(r io.Reader) (err error) {
-		items, err = batch.ReadItems(r, path, shard.Contains)
+		items, err = batch.ReadItems(r, path, keep)
 		return err
 	})
-	return items, digest, err
+	return items, count, digest, err
 }
 
 func readHistoryFile(ctx context.Context, path string, p history.Period) (h *history.History, digest string, err error) {

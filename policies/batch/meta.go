@@ -19,7 +19,7 @@ const MetaFormat = 2
 // Meta is the header record of a results file: the comment line before
 // the CSV header that says what the rows were computed from, e.g.
 //
-//	# ergostock results v2; period=week; run=5d0c1a2b3e4f5a6b; items=0a1b2c3d4e5f6a7b; history=8c9d0e1f2a3b4c5d; max_states=5000000; shard=0/1; version=0.1.0; costs=per week
+//	# ergostock results v2; period=week; run=5d0c1a2b3e4f5a6b; items=0a1b2c3d4e5f6a7b; history=8c9d0e1f2a3b4c5d; max_states=5000000; shard=0/1; version=0.1.0; item_count=196; costs=per week
 //
 // period is the planning period: every figure is a long-run average per
 // period, and costs= says so in words (costs are money per period).
@@ -40,6 +40,10 @@ type Meta struct {
 	MaxStates int
 	Shard     Shard
 	Version   string
+	// ItemCount is the number of items (data rows) of the whole items
+	// file, in every shard's record (item_count=; 0 means not recorded),
+	// so that a merge can tell a complete set of parts.
+	ItemCount int
 	// Cells is how the cells were written; the keys decimal= and digits=
 	// appear only when they differ from the plain form (decimal point,
 	// full precision), so plain files keep their header record.
@@ -62,8 +66,12 @@ func (m Meta) RunDigest() string {
 
 // String prints the header record (without a line end).
 func (m Meta) String() string {
-	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s; costs=per %s",
-		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version, m.Period)
+	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
+		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version)
+	if m.ItemCount > 0 {
+		s += fmt.Sprintf("; item_count=%d", m.ItemCount)
+	}
+	s += "; costs=per " + m.Period
 	if m.Cells.decimal() == ',' {
 		s += "; decimal=comma"
 	}
@@ -113,6 +121,10 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			}
 		case "version":
 			m.Version = val
+		case "item_count":
+			if n, err := strconv.Atoi(val); err == nil && n > 0 {
+				m.ItemCount = n
+			}
 		case "decimal":
 			if val == "comma" {
 				m.Cells.Decimal = ','
