@@ -93,6 +93,7 @@ func batchCommand() *cli.Command {
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
 			&cli.StringFlag{Name: "out-delimiter", Usage: "field separator of the results CSV: , ; or tab", Value: ","},
 			&cli.StringFlag{Name: "out-decimal", Usage: "decimal mark of the results CSV: . or , (a decimal comma needs --out-delimiter ';' or tab)", Value: "."},
+			&cli.StringFlag{Name: "carry", Usage: "item columns to copy to the results, comma-separated (e.g. supplier,category); appended after the results columns"},
 			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
 		},
 		Action: func(c *cli.Context) error {
@@ -157,6 +158,12 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	cells, err := outFormat(c)
 	if err != nil {
 		return err
+	}
+	var carry []string
+	if c.IsSet("carry") {
+		if carry, err = batch.ParseCarry(c.String("carry")); err != nil {
+			return usageErr("%v", err)
+		}
 	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
 	toStdout := outPath == "-"
@@ -226,6 +233,12 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return err
 	}
 	meta.Items, meta.ItemCount = digest, count
+	var carried []string
+	if len(carry) > 0 {
+		if carried, err = batch.Carry(items, itemsPath, carry); err != nil {
+			return usageErr("%v", err)
+		}
+	}
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
 		h, digest, err := readHistoryFile(ctx, histPath, period)
@@ -274,6 +287,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err != nil {
 		return usageErr("--out %s: %v", outPath, err)
 	}
+	bw.Carry(carried)
 	err = bw.WriteMeta(meta)
 	if err == nil {
 		err = bw.WriteHeader()
@@ -318,6 +332,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 // resultsWriter writes the results file: CSV (batch.Writer) or a
 // workbook (batch.WorkbookWriter).
 type resultsWriter interface {
+	Carry(names []string)
 	WriteMeta(batch.Meta) error
 	WriteHeader() error
 	Write(*batch.Row) error

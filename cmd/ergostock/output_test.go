@@ -281,3 +281,64 @@ func TestBatchOutWorkbookRoundTrip(t *testing.T) {
 		t.Error("the batch page of the workbook shows other figures than the CSV's")
 	}
 }
+
+// --carry copies item columns to the results, after every results column;
+// report and merge read such files.
+func TestBatchCarry(t *testing.T) {
+	dir := t.TempDir()
+	items := readCSV(t, demoItems)
+	var b bytes.Buffer
+	w := csv.NewWriter(&b)
+	for i, rec := range items {
+		extra := []string{"Supplier", "store group"}
+		if i > 0 {
+			extra = []string{"Brackwater Works " + strconv.Itoa(i%3), strings.SplitN(rec[0], "-", 2)[0]}
+		}
+		w.Write(append(rec, extra...))
+	}
+	w.Flush()
+	path := filepath.Join(dir, "items.csv")
+	if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "results.csv")
+	code, stderr := runBatchCmd(t, "--items", path, "--history", demoHistory, "--out", out, "--carry", "supplier,Store_Group")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	header, rows := readResults(t, out)
+	if n := len(header); header[n-2] != "Supplier" || header[n-1] != "store group" {
+		t.Fatalf("header ends %q", header[n-3:])
+	}
+	for i, r := range rows {
+		if want := items[1+i]; r[len(r)-1] != strings.SplitN(want[0], "-", 2)[0] || r[len(r)-2] != "Brackwater Works "+strconv.Itoa((i+1)%3) {
+			t.Fatalf("row %d carries %q", i, r[len(r)-2:])
+		}
+	}
+	readResultsFileT(t, out) // the report reads it
+	// Parts with the same --carry merge; the column header has the carried columns.
+	var parts []string
+	for k := 0; k < 2; k++ {
+		p := filepath.Join(dir, "part-"+strconv.Itoa(k)+".csv")
+		if code, stderr := runBatchCmd(t, "--items", path, "--history", demoHistory, "--out", p, "--carry", "supplier,Store_Group", "--shard", strconv.Itoa(k)+"/2"); code != 0 {
+			t.Fatalf("shard %d: exit %d: %s", k, code, stderr)
+		}
+		parts = append(parts, p)
+	}
+	merged := filepath.Join(dir, "merged.csv")
+	if code, _, stderr := runMergeCmd(append([]string{"--out", merged}, parts...)...); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, stderr)
+	}
+	if !bytes.Equal(readFile(t, merged), readFile(t, out)) {
+		t.Error("merged parts with carried columns differ from the unsharded run")
+	}
+	// An unknown column is refused naming the header found, before any
+	// work, and nothing is written.
+	code, stderr = runBatchCmd(t, "--items", path, "--history", demoHistory, "--out", filepath.Join(dir, "no.csv"), "--carry", "vendor")
+	if code != 2 || !strings.Contains(stderr, `--carry vendor: `+path+` has no such column: its header has "sku", "lead_time"`) || strings.Count(stderr, "\n") != 1 {
+		t.Errorf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "no.csv")); err == nil {
+		t.Error("a refused run wrote its results")
+	}
+}

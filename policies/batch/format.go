@@ -186,7 +186,7 @@ func (f Format) bom() bool { return f.comma() != ',' || f.decimal() != '.' }
 // header returns the column names the writer writes, and records their
 // kinds for reformat.
 func (w *Writer) header() []string {
-	h := Header()
+	h := append(Header(), w.carry...)
 	w.kinds = w.kinds[:0]
 	for _, name := range h {
 		w.kinds = append(w.kinds, ColumnKind(name))
@@ -205,4 +205,22 @@ func (w *Writer) start() error {
 	}
 	_, err := io.WriteString(w.out, "\ufeff")
 	return err
+}
+
+// Carry names the item columns carried to the results (the names Carry
+// returned), written after every results column as text cells. Call it
+// before WriteHeader.
+func (w *Writer) Carry(names []string) { w.carry, w.kinds = names, nil }
+
+// appendCarried appends a row's n carried cells (guarded text; empty
+// where the row has fewer).
+func appendCarried(rec, carried []string, n int) []string {
+	for i := 0; i < n; i++ {
+		c := ""
+		if i < len(carried) {
+			c = Guard(carried[i])
+		}
+		rec = append(rec, c)
+	}
+	return rec
 }

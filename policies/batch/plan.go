@@ -58,7 +58,7 @@ func (p *Planner) Plan(it Item) Row { return p.PlanContext(context.Background(),
 // A row whose figures are not finite and non-negative (an overflow) fails
 // too, with the first such figure named.
 func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
-	row = Row{Item: it.Index, SKU: it.SKU}
+	row = Row{Item: it.Index, SKU: it.SKU, Carried: it.Carried}
 	defer func() {
 		if v := recover(); v != nil {
 			row.Policy, row.Figures, row.CurrentTotalCost, row.Current, row.CurrentFillRate = nil, nil, nil, nil, nil
@@ -222,7 +222,7 @@ func (r *Row) checkFinite() error {
 // FailedRow is the row of an item that failed with err before or outside
 // its plan (a timeout, a panic caught by Run).
 func FailedRow(it Item, err error) Row {
-	return Row{Item: it.Index, SKU: it.SKU, Err: err}
+	return Row{Item: it.Index, SKU: it.SKU, Err: err, Carried: it.Carried}
 }
 
 // PlanAll plans items with Run: each item gets the budget opt.ItemTimeout,

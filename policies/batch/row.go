@@ -40,6 +40,8 @@ type Row struct {
 
 	Warnings []string
 	Err      error // why the item failed; nil when it did not
+
+	Carried []string // the item's carried columns (see Carry), last in the row
 }
 
 // Saving is the current policy's total cost minus the chosen one's, and
@@ -69,6 +71,7 @@ type Writer struct {
 	w   *csv.Writer
 	rec []string
 
+	carry   []string   // carried item columns, after every results column
 	format  Format     // how cells are written (see NewFormatWriter)
 	kinds   []CellKind // of the header's columns, when format is not plain
 	started bool       // the byte-order mark, if any, is written
@@ -106,6 +109,7 @@ func (w *Writer) WriteHeader() error {
 // Write writes one row.
 func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
+	w.rec = appendCarried(w.rec, r.Carried, len(w.carry))
 	if !w.format.Plain() {
 		if w.kinds == nil {
 			w.header()

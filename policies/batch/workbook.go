@@ -44,6 +44,7 @@ type WorkbookWriter struct {
 	rows   int            // written to the results sheet, header included
 	warns  [][]any        // rows of the warnings sheet
 	meta   *Meta
+	carry  []string // carried item columns
 	rec    []string
 	err    error
 }
@@ -93,6 +94,9 @@ func displayFormat(name string, k CellKind) string {
 	return fmtQuantity
 }
 
+// Carry names the item columns carried to the results, as Writer.Carry.
+func (w *WorkbookWriter) Carry(names []string) { w.carry = names }
+
 // WriteMeta records the header record; it is written to RunSheet at Flush.
 func (w *WorkbookWriter) WriteMeta(m Meta) error {
 	m.Cells = Format{Digits: w.format.Digits}
@@ -117,7 +121,7 @@ func (w *WorkbookWriter) WriteHeader() error {
 	if err != nil {
 		return w.fail(err)
 	}
-	w.header = Header()
+	w.header = append(Header(), w.carry...)
 	w.kinds = make([]CellKind, len(w.header))
 	w.styles = map[string]int{}
 	cells := make([]any, len(w.header))
@@ -161,6 +165,7 @@ func (w *WorkbookWriter) Write(r *Row) error {
 		return w.fail(fmt.Errorf("a worksheet holds at most %d rows: write the results of %d or more items as CSV", maxSheetRows, maxSheetRows))
 	}
 	w.rec = r.appendRecord(w.rec[:0])
+	w.rec = appendCarried(w.rec, r.Carried, len(w.carry))
 	cells := make([]any, len(w.rec))
 	for i, s := range w.rec {
 		cells[i] = w.cell(i, s)
