@@ -11,6 +11,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"ergostock/policies/batch"
 )
 
 // The hostile-input suite: inputs a careless or hostile user gives every
@@ -403,6 +405,87 @@ func hostileCases() []hostileCase {
 		{"batch-history-missing", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--items", "{dir}/items.csv", "--history", "{dir}/none.csv", "--out", "{dir}/out.csv"}, 1, []string{"none.csv"}},
 	} {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"batch"}, c.args...), code: c.code, names: c.want})
+	}
+
+	// The results' output flags and --carry (issue 11).
+	outItems := map[string]string{"items.csv": itemsHeader + goodItem}
+	batchOut := func(extra ...string) []string {
+		return append([]string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, extra...)
+	}
+	for _, c := range []struct {
+		name string
+		args []string
+		code int
+		want []string
+	}{
+		{"batch-out-delimiter-pipe", batchOut("--out-delimiter", "|"), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-two", batchOut("--out-delimiter", ";;"), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-quote", batchOut("--out-delimiter", `"`), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-empty", batchOut("--out-delimiter", ""), 2, []string{"--out-delimiter"}},
+		{"batch-out-decimal-comma-comma", batchOut("--out-decimal", ","), 2, []string{"--out-delimiter", "--out-decimal"}},
+		{"batch-out-decimal-x", batchOut("--out-decimal", "x"), 2, []string{"--out-decimal"}},
+		{"batch-digits-neg", batchOut("--digits", "-1"), 2, []string{"--digits"}},
+		{"batch-digits-18", batchOut("--digits", "18"), 2, []string{"--digits"}},
+		{"batch-digits-huge", batchOut("--digits", "1e300"), 2, []string{"--digits"}},
+		{"batch-digits-word", batchOut("--digits", "all"), 2, []string{"--digits"}},
+		{"batch-xlsx-with-delimiter", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.xlsx", "--out-delimiter", ";"}, 2, []string{"--out-delimiter", "out.xlsx"}},
+		{"batch-xlsx-dir-missing", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/no/out.xlsx"}, 1, []string{"out.xlsx"}},
+		{"batch-xlsx-upper-case", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/OUT.XLSX", "--digits", "4"}, 0, nil},
+		{"batch-semicolon-comma-digits", batchOut("--out-delimiter", "semicolon", "--out-decimal", "comma", "--digits", "1"), 0, nil},
+		{"batch-carry-empty", batchOut("--carry", ""), 2, []string{"--carry"}},
+		{"batch-carry-commas", batchOut("--carry", ",,,"), 2, []string{"--carry"}},
+		{"batch-carry-unknown", batchOut("--carry", "vendor"), 2, []string{"--carry vendor", "items.csv", `"sku"`}},
+		{"batch-carry-results-column", batchOut("--carry", "sku"), 2, []string{"--carry sku"}},
+		{"batch-carry-twice", batchOut("--carry", "unmet,UNMET"), 2, []string{"--carry", "twice"}},
+		{"batch-carry-long", batchOut("--carry", strings.Repeat("x", 100000)), 2, []string{"--carry"}},
+		{"batch-carry-known", batchOut("--carry", "unmet,min_fill_rate"), 0, nil},
+	} {
+		add(hostileCase{name: c.name, files: outItems, args: c.args, code: c.code, names: c.want})
+	}
+
+	// merge on parts that are not one run's.
+	part := func(k, n int, run string, rows ...string) string {
+		m := batch.Meta{Format: batch.MetaFormat, Period: "week", Items: "0123456789abcdef", History: "none", Shard: batch.Shard{K: k, N: n}, Version: "t"}
+		m.Run = run
+		return m.String() + "\n" + strings.Join(batch.Header(), ",") + "\n" + strings.Join(rows, "")
+	}
+	row := func(item string) string {
+		return "A" + item + strings.Repeat(",", 30) + item + ",,,,,\n"
+	}
+	for _, c := range []struct {
+		name  string
+		files map[string]string
+		args  []string
+		code  int
+		want  []string
+	}{
+		{"merge-no-parts", nil, []string{"--out", "{dir}/m.csv"}, 2, []string{"no parts"}},
+		{"merge-no-out", map[string]string{"p.csv": part(0, 1, "r", row("0"))}, []string{"{dir}/p.csv"}, 2, []string{"--out"}},
+		{"merge-part-missing", nil, []string{"--out", "{dir}/m.csv", "{dir}/none.csv"}, 1, []string{"none.csv"}},
+		{"merge-part-empty", map[string]string{"p.csv": ""}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv"}},
+		{"merge-part-foreign", map[string]string{"p.csv": "a,b\n1,2\n"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv:1", "header record"}},
+		{"merge-part-binary", map[string]string{"p.csv": "\x00\xff\xfe\x01garbage"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv"}},
+		{"merge-part-workbook", map[string]string{"p.xlsx": "PK\x03\x04junk"}, []string{"--out", "{dir}/m.csv", "{dir}/p.xlsx"}, 1, []string{"p.xlsx", "workbook"}},
+		{"merge-part-newer", map[string]string{"p.csv": "# ergostock results v9; period=week; items=x\n"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv:1", "v9"}},
+		{"merge-digest-mismatch", map[string]string{"a.csv": part(0, 2, "aaaa", row("0")), "b.csv": part(1, 2, "bbbb", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv", "{dir}/b.csv"}, 1, []string{"b.csv:1", "run digest bbbb", "aaaa"}},
+		{"merge-shard-missing", map[string]string{"a.csv": part(0, 3, "r", row("0")), "b.csv": part(1, 3, "r", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv", "{dir}/b.csv"}, 1, []string{"shard 2/3 is missing"}},
+		{"merge-duplicate", map[string]string{"a.csv": part(0, 1, "r", row("0"), row("0"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:4", "item 0"}},
+		{"merge-gap", map[string]string{"a.csv": part(0, 1, "r", row("0"), row("2"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv", "item 1"}},
+		{"merge-item-huge", map[string]string{"a.csv": part(0, 1, "r", row("99999999999999999999999"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:3", "item"}},
+		{"merge-item-negative", map[string]string{"a.csv": part(0, 1, "r", row("-1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:3", "item"}},
+		{"merge-out-is-part", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/a.csv", "{dir}/a.csv"}, 2, []string{"--out", "a.csv"}},
+		{"merge-out-xlsx", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/m.xlsx", "{dir}/a.csv"}, 2, []string{"--out", "m.xlsx"}},
+		{"merge-out-dir-missing", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/no/m.csv", "{dir}/a.csv"}, 1, []string{"m.csv"}},
+		{"merge-ok", map[string]string{"a.csv": part(0, 2, "r", row("0"), row("2")), "b.csv": part(1, 2, "r", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/b.csv", "{dir}/a.csv"}, 0, nil},
+	} {
+		add(hostileCase{name: c.name, files: c.files, args: append([]string{"merge"}, c.args...), code: c.code, names: c.want})
 	}
 
 	// Report on inputs that are not what it needs.

@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"io"
 	"os"
 
 	"github.com/urfave/cli/v2"
@@ -68,22 +67,23 @@ func runMerge(c *cli.Context) error {
 	// Merge checks every part before it writes a byte; the atomic file
 	// keeps an existing --out as it was if it fails even so.
 	var sum *batch.MergeSummary
-	write := func(w io.Writer) (err error) {
-		sum, err = batch.Merge(w, parts)
-		return err
-	}
 	var err error
 	if out == "-" {
-		err = write(c.App.Writer)
-	} else {
-		err = batch.WriteFileAtomic(out, write)
-		if err != nil && sum == nil {
-			// A refusal of the parts names them already.
-			return err
+		if sum, err = batch.Merge(c.App.Writer, parts); err != nil {
+			return err // a refusal names the part
 		}
-	}
-	if err != nil {
-		return fmt.Errorf("--out %s: %w", out, err)
+	} else {
+		af, err := batch.CreateAtomic(out)
+		if err != nil {
+			return fmt.Errorf("--out %s: %w", out, err)
+		}
+		defer af.Abort()
+		if sum, err = batch.Merge(af, parts); err != nil {
+			return err // a refusal names the part
+		}
+		if err := af.Commit(); err != nil {
+			return fmt.Errorf("--out %s: %w", out, err)
+		}
 	}
 	where := "results in " + out
 	if out == "-" {
