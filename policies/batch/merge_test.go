@@ -22,7 +22,7 @@ func mergeCatalogue(n int) []*Row {
 }
 
 // writeShard writes the rows of shard sh of the catalogue as batch would.
-func writeShard(t *testing.T, rows []*Row, sh Shard, f Format, run string) string {
+func writeShard(t testing.TB, rows []*Row, sh Shard, f Format, run string) string {
 	t.Helper()
 	var b bytes.Buffer
 	w, err := NewFormatWriter(&b, f)
