@@ -213,6 +213,13 @@ func TestBatchUnitsAndCurrentPolicy(t *testing.T) {
 	if with == 0 {
 		t.Error("no item with a current policy in the demo")
 	}
+	page := reportPage(t, out)
+	for _, want := range []string{"Planned by the month; costs are per month.", `<th class="num">current fill rate</th>`,
+		"aggregate fill rate of the current policies, where given (demand-weighted)"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("batch page lacks %q", want)
+		}
+	}
 }
 
 func readCSV(t *testing.T, path string) [][]string {
