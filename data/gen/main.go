@@ -205,6 +205,9 @@ func main() {
 	if err := writeItems(filepath.Join(*dir, "items.csv"), items, clean); err != nil {
 		log.Fatal(err)
 	}
+	if err := writeReceipts(filepath.Join(*dir, "receipts.csv"), items, clean); err != nil {
+		log.Fatal(err)
+	}
 	messyDir := filepath.Join(*dir, "messy")
 	if err := os.MkdirAll(messyDir, 0o755); err != nil {
 		log.Fatal(err)
@@ -224,10 +227,13 @@ var (
 	messyAlso = map[string]bool{"WIPE-CAB-100": true, "BRAKE-PAD-T4-FRONT": true}
 )
 
-// itemRow is one line of an items file, with its part.
+// itemRow is one line of an items file, with its part, its lead time in
+// weeks and whether unmet demand is lost.
 type itemRow struct {
 	p    *part
 	line string
+	lead int
+	lost bool
 }
 
 func uniform(rng *rand.Rand, r [2]float64) float64 { return r[0] + (r[1]-r[0])*rng.Float64() }
@@ -515,7 +521,7 @@ func itemRows(parts []*part, rng *rand.Rand) ([]itemRow, error) {
 				cur = [3]string{} // no policy on record
 			}
 		}
-		out = append(out, itemRow{p, fmt.Sprintf("%s,%d,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", p.sku, lead, ftoa(hold), ftoa(short), ftoa(order),
+		out = append(out, itemRow{p: p, lead: lead, lost: unmet == "lost", line: fmt.Sprintf("%s,%d,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", p.sku, lead, ftoa(hold), ftoa(short), ftoa(order),
 			ftoa(p.cost), unmet, policy, minFill, quote(demand), cur[0], cur[1], cur[2])})
 	}
 	return out, nil

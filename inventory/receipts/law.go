@@ -117,7 +117,7 @@ func (f *File) Laws() []Law {
 			if n > 1 {
 				more = fmt.Sprintf(" (and %d more)", n-1)
 			}
-			l.Warnings = append(l.Warnings, fmt.Sprintf("%d receipt rows refused, first %v%s", n, k.Errors[0], more))
+			l.Warnings = append(l.Warnings, fmt.Sprintf("%s refused, first %v%s", plural(n, "receipt row"), k.Errors[0], more))
 		}
 		if l.Orders == 0 {
 			l.Source = None
@@ -270,8 +270,8 @@ func outlierNote(file string, out []Outlier, pooled bool) string {
 		}
 		parts = append(parts, what)
 	}
-	return fmt.Sprintf("%d orders left out as far from the others (Tukey's far-out fences; check the dates, a real delay this long belongs in the law): %s",
-		len(out), strings.Join(parts, "; "))
+	return fmt.Sprintf("%s left out as far from the others (Tukey's far-out fences; check the dates, a real delay this long belongs in the law): %s",
+		plural(len(out), "order"), strings.Join(parts, "; "))
 }
 
 func quoteList(s []string) string {
@@ -280,4 +280,12 @@ func quoteList(s []string) string {
 		q[i] = strconv.Quote(x)
 	}
 	return strings.Join(q, ", ")
+}
+
+// plural writes a count with its noun: "1 order", "3 orders".
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return strconv.Itoa(n) + " " + noun + "s"
 }
