@@ -405,6 +405,64 @@ func hostileCases() []hostileCase {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"batch"}, c.args...), code: c.code, names: c.want})
 	}
 
+	// Receipts for fit and batch (issue 12): refusals name the file and
+	// line or the flag; a file with some usable rows plans (exit 0 or 3).
+	const okReceipts = "sku,supplier,order_date,receipt_date\nA,S,2025-03-03,2025-03-12\nA,S,2025-03-10,2025-03-24\n"
+	for _, c := range []struct {
+		name, body string
+		extra      []string
+		code       int
+		want       []string
+	}{
+		{"receipts-empty", "", nil, 1, []string{"r.csv"}},
+		{"receipts-header-only", "sku,order_date,receipt_date\n", nil, 1, []string{"r.csv", "no data rows"}},
+		{"receipts-binary", "\x00\x01\x02\xff\xfe", nil, 1, []string{"r.csv"}},
+		{"receipts-missing-column", "sku,order_date\nA,2025-03-03\n", nil, 1, []string{"r.csv:1", "receipt_date"}},
+		{"receipts-misspelt-column", "sku,order_date,recieved_date\nA,2025-03-03,2025-03-12\n", nil, 1, []string{"r.csv:1", "recieved_date", "receipt_date"}},
+		{"receipts-before-order", "sku,order_date,receipt_date\nA,2025-03-10,2025-03-03\n", nil, 1, []string{"r.csv:2", "receipt_date", "before"}},
+		{"receipts-year-typo", "sku,order_date,receipt_date\nA,2025-03-10,2205-03-13\n", nil, 1, []string{"r.csv:2", "receipt_date"}},
+		{"receipts-ten-years", "sku,order_date,receipt_date\nA,1990-03-10,2025-03-13\n", nil, 1, []string{"r.csv:2", "3653 days"}},
+		{"receipts-ambiguous-dates", "sku,order_date,receipt_date\nA,03/04/2025,05/04/2025\n", nil, 1, []string{"r.csv", "--receipts-date-format"}},
+		{"receipts-mixed-dates", "sku,order_date,receipt_date\nA,2025-03-04,05.04.2025\nA,31/03/2025,04/30/2025\n", nil, 1, []string{"r.csv", "--receipts-date-format"}},
+		{"receipts-quantity-negative", "sku,order_date,receipt_date,quantity\nA,2025-03-03,2025-03-12,-5\n", nil, 1, []string{"r.csv:2", "quantity"}},
+		{"receipts-quantity-nan", "sku,order_date,receipt_date,quantity\nA,2025-03-03,2025-03-12,NaN\n", nil, 1, []string{"r.csv:2", "quantity"}},
+		{"receipts-short-row", "sku,order_date,receipt_date\nA,2025-03-03\n", nil, 1, []string{"r.csv:2"}},
+		{"receipts-wrong-layout-given", okReceipts, []string{"--receipts-date-format", "DD.MM.YYYY"}, 1, []string{"r.csv:2", "DD.MM.YYYY"}},
+		{"receipts-layout-bad", okReceipts, []string{"--receipts-date-format", "YY-MM"}, 2, []string{"--receipts-date-format", "YY-MM"}},
+		{"receipts-columns-bad", okReceipts, []string{"--receipts-columns", "sku"}, 2, []string{"--receipts-columns"}},
+		{"receipts-columns-unknown", okReceipts, []string{"--receipts-columns", "vendor=Supplier"}, 2, []string{"--receipts-columns", "vendor"}},
+		{"receipts-columns-absent", okReceipts, []string{"--receipts-columns", "order_date=PO Date"}, 1, []string{"r.csv:1", "PO Date"}},
+		{"receipts-with-history", okReceipts, []string{"--history", "{dir}/r.csv"}, 2, []string{"--history", "--receipts"}},
+		{"receipts-json-and-out", okReceipts, []string{"--json", "--out", "{dir}/o.csv"}, 2, []string{"--json", "--out"}},
+		{"receipts-one-bad-sku", okReceipts + "B,S,2025-03-10,2025-03-03\n", nil, 3, nil},
+		{"receipts-ok", okReceipts, nil, 0, nil},
+		{"receipts-out", okReceipts, []string{"--out", "{dir}/o.csv"}, 0, nil},
+		{"receipts-daily-ten-years", "sku,order_date,receipt_date\nA,2015-03-10,2025-03-09\nA,2015-03-10,2015-03-10\nA,2015-03-11,2015-03-12\n", []string{"--period", "day"}, 0, nil},
+		{"receipts-utf16", "\xff\xfes\x00k\x00u\x00,\x00o\x00r\x00d\x00e\x00r\x00_\x00d\x00a\x00t\x00e\x00,\x00r\x00e\x00c\x00e\x00i\x00p\x00t\x00_\x00d\x00a\x00t\x00e\x00\n\x00A\x00,\x002\x000\x002\x005\x00-\x000\x003\x00-\x000\x003\x00,\x002\x000\x002\x005\x00-\x000\x003\x00-\x001\x002\x00\n\x00", nil, 0, nil},
+	} {
+		add(hostileCase{name: "fit-" + c.name, args: append([]string{"fit", "--receipts", "{dir}/r.csv"}, c.extra...), files: map[string]string{"r.csv": c.body}, code: c.code, names: c.want})
+	}
+	add(hostileCase{name: "fit-receipts-missing-file", args: []string{"fit", "--receipts", "{dir}/none.csv"}, code: 1, names: []string{"--receipts", "none.csv"}})
+	for _, c := range []struct {
+		name  string
+		files map[string]string
+		args  []string
+		code  int
+		want  []string
+	}{
+		{"batch-receipts-missing", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", "{dir}/none.csv"}, 1, []string{"--receipts", "none.csv"}},
+		{"batch-receipts-stdin", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", "-"}, 2, []string{"--receipts"}},
+		{"batch-receipts-empty-flag", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", ""}, 2, []string{"--receipts"}},
+		{"batch-receipts-is-out", map[string]string{"items.csv": itemsHeader + goodItem, "out.csv": okReceipts}, []string{"--receipts", "{dir}/out.csv"}, 2, []string{"--out", "--receipts"}},
+		{"batch-receipts-no-usable-row", map[string]string{"items.csv": itemsHeader + goodItem, "r.csv": "sku,order_date,receipt_date\nGOOD,2025-03-10,2025-03-03\n"}, []string{"--receipts", "{dir}/r.csv"}, 1, []string{"r.csv:2", "receipt_date"}},
+		{"batch-receipts-layout-bad", map[string]string{"items.csv": itemsHeader + goodItem, "r.csv": okReceipts}, []string{"--receipts", "{dir}/r.csv", "--receipts-date-format", "julian"}, 2, []string{"--receipts-date-format"}},
+		{"batch-receipts-ok", map[string]string{"items.csv": itemsHeader + goodItem + "A,2,0.4,12,0,1,,,,poisson:mean=3,,,\n", "r.csv": okReceipts}, []string{"--receipts", "{dir}/r.csv"}, 0, nil},
+		{"batch-receipts-lost-item", map[string]string{"items.csv": itemsHeader + "A,2,0.4,12,0,1,lost,,,poisson:mean=3,,,\n", "r.csv": "sku,order_date,receipt_date\nA,2025-03-03,2025-03-12\nA,2025-03-10,2025-03-24\nA,2025-03-17,2025-03-24\nA,2025-03-24,2025-04-07\nA,2025-03-31,2025-04-14\n"}, []string{"--receipts", "{dir}/r.csv"}, 3, nil},
+	} {
+		args := append([]string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, c.args...)
+		add(hostileCase{name: c.name, files: c.files, args: args, code: c.code, names: c.want})
+	}
+
 	// Report on inputs that are not what it needs.
 	for _, c := range []struct {
 		name  string

@@ -103,6 +103,8 @@ func (f *File) Laws() []Law {
 			}
 		}
 	}
+	// The pooled law of each set of suppliers, built once.
+	pools := map[string]*core{}
 	out := make([]Law, len(f.SKUs))
 	for i, k := range f.SKUs {
 		l := &out[i]
@@ -127,9 +129,11 @@ func (f *File) Laws() []Law {
 		if l.Partial > 0 {
 			l.Warnings = append(l.Warnings, fmt.Sprintf("%d of %d orders delivered in parts: each counted once, at its last receipt", l.Partial, l.Orders))
 		}
-		group := k.Orders
 		l.Source = Own
-		if len(group) < MinOrders {
+		var c *core
+		if len(k.Orders) >= MinOrders {
+			c = build(k.Orders, pdays)
+		} else {
 			seen := map[string]bool{}
 			for _, o := range k.Orders {
 				if o.Supplier != "" && !seen[o.Supplier] {
@@ -138,71 +142,104 @@ func (f *File) Laws() []Law {
 				}
 			}
 			sort.Strings(l.Suppliers)
-			var pool []*Order
-			skus := map[string]bool{}
-			for _, s := range l.Suppliers {
-				for _, o := range bySupplier[s] {
-					pool = append(pool, o)
-					skus[o.SKU] = true
+			key := strings.Join(l.Suppliers, "\x00")
+			pc, done := pools[key]
+			if !done && len(l.Suppliers) > 0 {
+				var pool []*Order
+				skus := map[string]bool{}
+				for _, s := range l.Suppliers {
+					for _, o := range bySupplier[s] {
+						pool = append(pool, o)
+						skus[o.SKU] = true
+					}
 				}
+				pc = build(pool, pdays)
+				pc.poolSKUs = len(skus)
+				pools[key] = pc
 			}
 			switch {
-			case len(pool) > len(group):
-				group, l.Source, l.PoolSKUs = pool, Pooled, len(skus)
+			case pc != nil && pc.orders > len(k.Orders):
+				c, l.Source, l.PoolSKUs = pc, Pooled, pc.poolSKUs
 				l.Warnings = append(l.Warnings, fmt.Sprintf("only %d orders of its own (fewer than %d): the law pools supplier %s, %d orders over %d SKUs",
-					l.Orders, MinOrders, quoteList(l.Suppliers), len(pool), len(skus)))
+					l.Orders, MinOrders, quoteList(l.Suppliers), pc.orders, pc.poolSKUs))
 			case len(l.Suppliers) > 0:
-				l.Source = Few
+				c, l.Source = build(k.Orders, pdays), Few
 				l.Warnings = append(l.Warnings, fmt.Sprintf("only %d orders (fewer than %d) and supplier %s has no others to pool: the law is not used for planning",
 					l.Orders, MinOrders, quoteList(l.Suppliers)))
 			default:
-				l.Source = Few
+				c, l.Source = build(k.Orders, pdays), Few
 				l.Warnings = append(l.Warnings, fmt.Sprintf("only %d orders (fewer than %d) and no supplier to pool with: the law is not used for planning, the item keeps its lead_time",
 					l.Orders, MinOrders))
 			}
 		}
-		kept, outl := fences(group, pdays)
-		l.Outliers = outl
-		if len(outl) > 0 {
-			l.Warnings = append(l.Warnings, outlierNote(f.Name, outl, l.Source == Pooled))
+		l.Outliers = c.outliers
+		if len(c.outliers) > 0 {
+			l.Warnings = append(l.Warnings, outlierNote(f.Name, c.outliers, l.Source == Pooled))
 		}
-		if len(kept) < MinOrders && l.Source == Pooled {
-			l.Warnings = append(l.Warnings, fmt.Sprintf("the pool holds only %d orders (fewer than %d): a law from few receipts", len(kept), MinOrders))
+		if c.basis < MinOrders && l.Source == Pooled {
+			l.Warnings = append(l.Warnings, fmt.Sprintf("the pool holds only %d orders (fewer than %d): a law from few receipts", c.basis, MinOrders))
 		}
-		maxL, sumDays := 0, 0
-		for _, o := range kept {
-			maxL = max(maxL, o.Lead)
-			sumDays += o.Days
-		}
-		l.Counts = make([]int, maxL+1)
-		for _, o := range kept {
-			l.Counts[o.Lead]++
-		}
-		l.Basis = len(kept)
-		l.MeanDays = float64(sumDays) / float64(len(kept))
-		p := make([]float64, len(l.Counts))
-		for j, n := range l.Counts {
-			p[j] = float64(n) / float64(l.Basis)
-		}
-		emp, err := inventory.NewPMF(p)
-		if err != nil { // cannot happen: lead times are at most MaxLeadDays
+		l.Counts, l.Basis, l.MeanDays = c.counts, c.basis, c.meanDays
+		if c.err != nil { // cannot happen: lead times are at most MaxLeadDays
 			l.Source = None
-			l.Warnings = append(l.Warnings, "no lead-time law: "+err.Error())
+			l.Warnings = append(l.Warnings, "no lead-time law: "+c.err.Error())
 			continue
 		}
-		// The printed law, read back, is the one planned with.
-		d, err := inventory.Parse(emp.String())
-		if err != nil {
-			d = emp
-		}
-		l.Empirical = d
-		l.Admissible = inventory.NearestKaplan(d)
+		l.Empirical, l.Admissible = c.emp, c.adm
 		if !l.Realisable() {
 			l.Warnings = append(l.Warnings, fmt.Sprintf("the observed law (mean %.4g periods) is not one sequential deliveries (Kaplan 1970) can realise: planning uses the nearest law they admit, mean %.4g periods (the independent lead-time model keeps the observed law)",
 				l.Empirical.Mean(), l.Admissible.Mean()))
 		}
 	}
 	return out
+}
+
+// core is a law built from a group of orders.
+type core struct {
+	orders   int // in the group, outliers included
+	poolSKUs int // SKUs of a pool
+	counts   []int
+	basis    int
+	meanDays float64
+	emp, adm inventory.Distribution
+	outliers []Outlier
+	err      error
+}
+
+// build makes the law of a group of orders: the far-out ones left out,
+// the others counted per lead time, the observed law and its nearest
+// admissible one.
+func build(group []*Order, pdays int) *core {
+	c := &core{orders: len(group)}
+	kept, outl := fences(group, pdays)
+	c.outliers = outl
+	maxL, sumDays := 0, 0
+	for _, o := range kept {
+		maxL = max(maxL, o.Lead)
+		sumDays += o.Days
+	}
+	c.counts = make([]int, maxL+1)
+	for _, o := range kept {
+		c.counts[o.Lead]++
+	}
+	c.basis = len(kept)
+	c.meanDays = float64(sumDays) / float64(len(kept))
+	p := make([]float64, len(c.counts))
+	for j, n := range c.counts {
+		p[j] = float64(n) / float64(c.basis)
+	}
+	emp, err := inventory.NewPMF(p)
+	if err != nil {
+		c.err = err
+		return c
+	}
+	// The printed law, read back, is the one planned with.
+	d, err := inventory.Parse(emp.String())
+	if err != nil {
+		d = emp
+	}
+	c.emp, c.adm = d, inventory.NearestKaplan(d)
+	return c
 }
 
 // fences splits orders into those kept and the far-out ones: beyond

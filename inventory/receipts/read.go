@@ -291,7 +291,7 @@ func layouts(name string, recs []record, opt Options) (tabular.DateLayout, tabul
 		}
 	}
 	both := append(append([]tabular.DateSample{}, ord...), rec...)
-	l, jointErr := tabular.DetectDates(name, ColOrder+" and "+ColReceipt, both)
+	l, jointErr := tabular.DetectDates(name, ColOrder+"/"+ColReceipt, both)
 	if jointErr == nil {
 		return l, l, nil
 	}
