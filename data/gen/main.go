@@ -8,7 +8,8 @@
 //	go run ./data/gen
 //
 // It writes data/history.csv and data/items.csv, a catalogue in which every
-// item can be planned, and data/messy/, a small example of items that
+// item can be planned, data/receipts.csv, goods receipts of some of its parts
+// (see receipts.go), and data/messy/, a small example of items that
 // cannot (a part listed before any issue, one whose history holds a
 // malformed row, one never issued) beside two that can. The output is a
 // pure function of the fixed seed below, so running it again reproduces
@@ -187,7 +188,7 @@ type part struct {
 }
 
 func main() {
-	dir := flag.String("dir", "data", "directory to write history.csv and items.csv into")
+	dir := flag.String("dir", "data", "directory to write history.csv, items.csv and receipts.csv into")
 	flag.Parse()
 	rng := rand.New(rand.NewPCG(seed1, seed2))
 	parts := makeParts(rng)
