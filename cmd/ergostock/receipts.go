@@ -354,7 +354,7 @@ func applyReceipts(items []batch.Item, f *receipts.File) (map[int][]string, rece
 		fixed, law, ok := l.LeadTime(it.System.Model())
 		if !ok {
 			tally.kept++
-			notes[it.Index] = append(w, fmt.Sprintf("receipts give no usable lead-time law: lead_time %d kept", it.System.LeadTime))
+			notes[it.Index] = append(w, "receipts give no usable lead-time law: lead_time "+itemLeadTime(it.System)+" kept")
 			continue
 		}
 		tally.set++
@@ -367,11 +367,20 @@ func applyReceipts(items []batch.Item, f *receipts.File) (map[int][]string, rece
 			from = fmt.Sprintf("%d orders of supplier %s", l.Basis, strings.Join(l.Suppliers, "+"))
 		}
 		msg := fmt.Sprintf("lead time from receipts: %s (periods=orders %s; %s in %s)", what, l.CountsText(), from, f.Name)
-		if law != nil || fixed != it.System.LeadTime {
-			msg += fmt.Sprintf(", instead of lead_time %d", it.System.LeadTime)
+		if cur := itemLeadTime(it.System); cur != what {
+			msg += ", instead of lead_time " + cur
 		}
 		it.System.LeadTime, it.System.LeadTimeLaw = fixed, law
 		notes[it.Index] = append([]string{msg}, w...)
 	}
 	return notes, tally
+}
+
+// itemLeadTime writes an item's lead time as its column gives it: a
+// number of periods or a law.
+func itemLeadTime(s inventory.System) string {
+	if s.LeadTimeLaw != nil {
+		return s.LeadTimeLaw.String()
+	}
+	return strconv.Itoa(s.LeadTime)
 }
