@@ -230,7 +230,7 @@ type receiptsJSON struct {
 	SKU          string                `json:"sku"`
 	Orders       int                   `json:"orders"`
 	Receipts     int                   `json:"receipts"`
-	Partial      int                   `json:"partial_orders"`
+	Partial      int                   `json:"orders_in_parts"`
 	Source       string                `json:"source"`
 	Suppliers    []string              `json:"suppliers"`
 	Basis        int                   `json:"basis_orders"`
@@ -288,7 +288,7 @@ type receiptsCSVRow struct {
 	SKU        string `csv:"sku"`
 	Orders     int    `csv:"orders"`
 	Receipts   int    `csv:"receipts"`
-	Partial    int    `csv:"partial_orders"`
+	Partial    int    `csv:"orders_in_parts"`
 	Source     string `csv:"source"`
 	Suppliers  string `csv:"suppliers"`
 	Basis      int    `csv:"basis_orders"`

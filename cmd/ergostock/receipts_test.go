@@ -205,3 +205,22 @@ func TestBatchReceipts(t *testing.T) {
 		t.Errorf("same header record with and without receipts")
 	}
 }
+
+func TestFitReceiptsOut(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "laws.csv")
+	code, stdout, errs := fitRun(fewReceipts, "--receipts", "-", "--out", out)
+	if code != 0 || stdout != "" {
+		t.Fatalf("exit %d, stdout %q: %s", code, stdout, errs)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	if len(lines) != 3 || !strings.HasPrefix(lines[0], "sku,orders,receipts,orders_in_parts,source,suppliers,basis_orders,counts,lead_time,") {
+		t.Fatalf("file:\n%s", b)
+	}
+	if !strings.HasPrefix(lines[2], `HORN-ASSY-T3,2,2,0,supplier,Kelbrook Castings,8,"1=5,2=3","pmf:1=0.625,2=0.375",1.375,`) {
+		t.Errorf("row %q", lines[2])
+	}
+}
