@@ -23,7 +23,7 @@ import (
 func fitCommand() *cli.Command {
 	return &cli.Command{
 		Name:      "fit",
-		Usage:     "fit a demand distribution to each SKU of a demand history",
+		Usage:     "fit a demand distribution to each SKU of a demand history, or a lead-time law to each SKU of a receipts file",
 		UsageText: "ergostock fit (--history FILE | --receipts FILE) [--period day|week|month] [--json | --out FILE]",
 		Description: "Reads a CSV with columns sku, date (YYYY-MM-DD) or an integer period, and quantity\n" +
 			"(other columns ignored), sums it into periods, and for every SKU reports the mean,\n" +
