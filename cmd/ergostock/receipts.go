@@ -177,8 +177,11 @@ func receiptsWriteTable(w io.Writer, laws []receipts.Law) error {
 	for i := range laws {
 		l := &laws[i]
 		basis := string(l.Source)
-		if l.Source == receipts.Pooled {
+		switch l.Source {
+		case receipts.Pooled:
 			basis = "supplier " + strings.Join(l.Suppliers, "+")
+		case receipts.Few:
+			basis = "few, not used"
 		}
 		law, mean, counts := "-", "-", l.CountsText()
 		if l.Admissible != nil {
