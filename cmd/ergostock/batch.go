@@ -253,8 +253,8 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		}
 		var tally receiptsTally
 		leadNotes, tally = applyReceipts(items, rf)
-		fmt.Fprintf(stderr, "ergostock: %s (%s; lead times in %s periods): lead-time laws set for %d items; lead_time kept for %d items on too few receipts and %d items without receipts\n",
-			receiptsPath, rf.Dialect, rf.Period, tally.set, tally.kept, tally.without)
+		fmt.Fprintf(stderr, "ergostock: %s (%s; lead times in %s periods): lead-time laws set for %d items; lead_time kept for %d items on too few receipts and %d items without receipts; %d SKUs of the receipts match no item planned in this run\n",
+			receiptsPath, rf.Dialect, rf.Period, tally.set, tally.kept, tally.without, tally.unmatched)
 		// The receipts shape the figures: they join the run digest, so
 		// shards planned with other receipts do not join this run.
 		h := batch.NewDigest()

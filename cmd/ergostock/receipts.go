@@ -323,7 +323,7 @@ func receiptsWriteCSV(w io.Writer, laws []receipts.Law) error {
 }
 
 // receiptsTally counts what applyReceipts did, for the summary line.
-type receiptsTally struct{ set, kept, without int }
+type receiptsTally struct{ set, kept, without, unmatched int }
 
 // applyReceipts sets each item's lead time from its SKU's receipts and
 // returns the warnings to add to each item's row, by item position. The
@@ -339,6 +339,16 @@ func applyReceipts(items []batch.Item, f *receipts.File) (map[int][]string, rece
 	for i := range laws {
 		bySKU[laws[i].SKU] = &laws[i]
 	}
+	// SKUs that differ only in case, surrounding spaces or leading zeros
+	// (as tabular.Near matches them), to name a near miss.
+	bySpelling := map[string][]string{}
+	for i := range laws {
+		k := spelling(laws[i].SKU)
+		if len(bySpelling[k]) < 3 {
+			bySpelling[k] = append(bySpelling[k], laws[i].SKU)
+		}
+	}
+	used := map[string]bool{}
 	notes := map[int][]string{}
 	for i := range items {
 		it := &items[i]
@@ -348,8 +358,13 @@ func applyReceipts(items []batch.Item, f *receipts.File) (map[int][]string, rece
 		l := bySKU[it.SKU]
 		if l == nil {
 			tally.without++
+			if near := bySpelling[spelling(it.SKU)]; len(near) > 0 {
+				notes[it.Index] = []string{fmt.Sprintf("no receipts for this sku in %s, but it has %s: the same part spelt differently? lead_time %s kept",
+					f.Name, quoteSKUs(near), itemLeadTime(it.System))}
+			}
 			continue
 		}
+		used[it.SKU] = true
 		var w []string
 		for _, x := range l.Warnings {
 			w = append(w, "receipts: "+x)
@@ -376,7 +391,30 @@ func applyReceipts(items []batch.Item, f *receipts.File) (map[int][]string, rece
 		it.System.LeadTime, it.System.LeadTimeLaw = fixed, law
 		notes[it.Index] = append([]string{msg}, w...)
 	}
+	for i := range laws {
+		if !used[laws[i].SKU] {
+			tally.unmatched++
+		}
+	}
 	return notes, tally
+}
+
+// spelling is the form in which two SKUs are a near miss of each other:
+// lower case, surrounding spaces and leading zeros removed.
+func spelling(sku string) string {
+	s := strings.ToLower(strings.TrimSpace(sku))
+	if t := strings.TrimLeft(s, "0"); t != "" {
+		return t
+	}
+	return s
+}
+
+func quoteSKUs(s []string) string {
+	q := make([]string, len(s))
+	for i, x := range s {
+		q[i] = strconv.Quote(x)
+	}
+	return "receipts for " + strings.Join(q, ", ")
 }
 
 // itemLeadTime writes an item's lead time as its column gives it: a

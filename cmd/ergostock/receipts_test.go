@@ -157,7 +157,7 @@ func TestBatchReceipts(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	if !strings.Contains(errs, "lead-time laws set for 2 items; lead_time kept for 0 items on too few receipts and 1 items without receipts") {
+	if !strings.Contains(errs, "lead-time laws set for 2 items; lead_time kept for 0 items on too few receipts and 1 items without receipts; 0 SKUs of the receipts match no item planned in this run") {
 		t.Errorf("stderr: %s", errs)
 	}
 	h, rows := readResults(t, withR)
@@ -222,5 +222,24 @@ func TestFitReceiptsOut(t *testing.T) {
 	}
 	if !strings.HasPrefix(lines[2], `HORN-ASSY-T3,2,2,0,supplier,Kelbrook Castings,8,"1=5,2=3","pmf:1=0.625,2=0.375",1.375,`) {
 		t.Errorf("row %q", lines[2])
+	}
+}
+
+// An item whose SKU the receipts spell otherwise (case, leading zeros)
+// keeps its lead time, with a warning naming the near miss.
+func TestBatchReceiptsNearMiss(t *testing.T) {
+	dir := t.TempDir()
+	items := filepath.Join(dir, "items.csv")
+	writeFile(t, items, "sku,lead_time,holding_cost,shortage_cost,demand\n00417,1,0.2,9,poisson:mean=4\n")
+	rec := filepath.Join(dir, "receipts.csv")
+	writeFile(t, rec, strings.ReplaceAll(strings.ReplaceAll(fewReceipts, "DOOR-ROLLER-T3", "417"), "HORN-ASSY-T3", "door-roller-t3"))
+	out := filepath.Join(dir, "out.csv")
+	code, errs := runBatchCmd(t, "--items", items, "--receipts", rec, "--out", out)
+	if code != 0 || !strings.Contains(errs, "lead-time laws set for 0 items; lead_time kept for 0 items on too few receipts and 1 items without receipts; 2 SKUs of the receipts match no item") {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	h, rows := readResults(t, out)
+	if w := rows[0][column(h, "warnings")]; !strings.HasPrefix(w, `no receipts for this sku in `+rec+`, but it has receipts for "417": the same part spelt differently? lead_time 1 kept`) {
+		t.Errorf("warnings %q", w)
 	}
 }
