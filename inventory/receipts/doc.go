@@ -20,7 +20,9 @@
 // the line and the column) and the rest of the file is read: an empty sku,
 // a date in no layout or outside the years history.MinYear..MaxYear, a
 // receipt before its order, a lead time over MaxLeadDays (ten years: a
-// typo in a year), a quantity that is not a number > 0.
+// typo in a year), a quantity that is not a number > 0, a receipt whose
+// order_ref names an order of another order_date or supplier. A file of
+// more than MaxRows rows is refused before its rows are kept.
 //
 // # Lead time in periods
 //
@@ -52,9 +54,9 @@
 //
 // A law from fewer than MinOrders orders is marked as resting on few
 // receipts (five is a common rule of thumb, not a published threshold).
-// Such a SKU is pooled by supplier when its orders name one: its law is
-// that of every order of those suppliers, over all their SKUs, with a
-// warning naming the pooling. Without a supplier the SKU keeps the law of
+// Such a SKU is pooled by supplier when its orders name one and the
+// suppliers have other orders: its law is that of every order of those
+// suppliers, over all their SKUs, with a warning naming the pooling. Without a supplier the SKU keeps the law of
 // its own few orders for display, but Law.Usable is false: a batch plan
 // keeps the item's lead_time column, with a warning.
 //
