@@ -22,7 +22,7 @@
 // receipt before its order, a lead time over MaxLeadDays (ten years: a
 // typo in a year), a quantity that is not a number > 0, a receipt whose
 // order_ref names an order of another order_date or supplier. A file of
-// more than MaxRows rows is refused before its rows are kept.
+// more than MaxRows rows is refused (no more are ever kept in memory).
 //
 // # Lead time in periods
 //

@@ -34,8 +34,9 @@ const MinOrders = 5
 // longer one is refused as a typo in a year.
 const MaxLeadDays = 3653
 
-// MaxRows bounds the data rows read from one file.
-const MaxRows = 10_000_000
+// MaxRows bounds the data rows read from one file (every row's cells are
+// kept between the two passes of Read: a few hundred bytes a row).
+const MaxRows = 5_000_000
 
 // Options say how to read a receipts file.
 type Options struct {
