@@ -234,8 +234,7 @@ func TestPooling(t *testing.T) {
 	b.WriteString("sku,supplier,order_date,receipt_date\n")
 	// Y: six orders from S of 1 or 2 weeks; X: two from S of 3 weeks; Z:
 	// two without a supplier; W: two from T, who has no others.
-	for i, r := range []string{"03-03,03-10", "03-10,03-17", "03-17,03-31", "03-24,04-07", "03-31,04-07", "04-07,04-14"} {
-		_ = i
+	for _, r := range []string{"03-03,03-10", "03-10,03-17", "03-17,03-31", "03-24,04-07", "03-31,04-07", "04-07,04-14"} {
 		o, rc, _ := strings.Cut(r, ",")
 		b.WriteString("Y,S,2025-" + o + ",2025-" + rc + "\n")
 	}
@@ -285,8 +284,8 @@ func TestKaplanNearest(t *testing.T) {
 	add(5, "2025-03-10")
 	add(1, "2025-03-17")
 	add(4, "2025-03-24")
-	// The orders share a day: each row is its own receipt of one order
-	// without a ref, so give each its own supplier-free order by ref.
+	// The orders share a day, so without a ref they would be one order
+	// delivered in parts: give each row an order_ref of its own.
 	text := strings.Replace(b.String(), "sku,order_date", "sku,order_ref,order_date", 1)
 	lines := strings.Split(strings.TrimSpace(text), "\n")
 	for i := 1; i < len(lines); i++ {
