@@ -19,6 +19,18 @@ type timing struct {
 	seq    bool     // sequential deliveries (Kaplan 1970); false: independent lead times
 	lmax   int      // the largest lead time (the cut-off never exceeds it)
 	draw   *sampler // the cut-off T (sequential) or the order's lead time (independent)
+	// fixed >= 0 when the law drawn has one point: it is used without a
+	// draw, so a one-point law with R = 1 consumes the random stream as a
+	// fixed lead time does and gives the same figures.
+	fixed int64
+}
+
+// lead returns the next cut-off or lead time.
+func (tm *timing) lead(rng *rand.PCG) int64 {
+	if tm.fixed >= 0 {
+		return tm.fixed
+	}
+	return tm.draw.draw(rng)
 }
 
 // newTiming returns the timing of sys. The laws are tabulated as the
@@ -51,6 +63,16 @@ func newTiming(sys inventory.System) (*timing, error) {
 		tm.lmax--
 	}
 	tm.draw = newWeightSampler(w[:tm.lmax+1])
+	tm.fixed = -1
+	points := 0
+	for _, v := range w[:tm.lmax+1] {
+		if v > 0 {
+			points++
+		}
+	}
+	if points == 1 {
+		tm.fixed = int64(tm.lmax)
+	}
 	return tm, nil
 }
 
@@ -116,7 +138,7 @@ func stepTimed(st *timedState, s *tally, p policies.Policy, smp *sampler, tm *ti
 				if tm.seq {
 					ring[t%size] = q
 				} else {
-					ring[(t+tm.draw.draw(rng))%size] += q
+					ring[(t+tm.lead(rng))%size] += q
 				}
 			}
 		}
@@ -127,7 +149,7 @@ func stepTimed(st *timedState, s *tally, p policies.Policy, smp *sampler, tm *ti
 		// 2. Receive.
 		var arr int64
 		if tm.seq {
-			for cut := t - tm.draw.draw(rng); front <= cut; front++ {
+			for cut := t - tm.lead(rng); front <= cut; front++ {
 				i := front % size
 				arr += ring[i]
 				ring[i] = 0
