@@ -331,8 +331,9 @@ func (t *table) Flush() error {
 const simulateHandlesTiming = true
 
 // reportHandlesTiming says the same of the one-SKU page of policies/report
-// (its cost map and charts).
-const reportHandlesTiming = false
+// (it does: the page shows the law, the model and the review period, draws
+// the law, and its cost map evaluates each cell on its chain).
+const reportHandlesTiming = true
 
 // leadTimeValue is the value of --lead-time: a whole number of periods or
 // a law, read by inventory.ParseLeadTime (a one-point law is the fixed

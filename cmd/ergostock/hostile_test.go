@@ -436,6 +436,10 @@ func hostileCases() []hostileCase {
 		{"report-sku-S-2e9", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--order-up-to", "2000000000", "--out", "{dir}/r.html"}, 1, []string{"--order-up-to"}},
 		{"report-sku-L-1e6-lost", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--unmet", "lost", "--lead-time", "1000000", "--out", "{dir}/r.html"}, 1, []string{"--lead-time"}},
 		{"report-nothing", nil, []string{"--out", "{dir}/r.html"}, 2, nil},
+		// Issue 12: a lead-time law, the models and a review period on the page, simulated too.
+		{"report-law-review-simulate", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:1=0.2,2=0.5,3=0.3", "--review-period", "7", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},
+		{"report-independent-base-stock", nil, []string{"--demand", "poisson:mean=4", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:0=0.2,1=0.3,4=0.5", "--lead-time-model", "independent", "--policy", "base-stock", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},
+		{"report-kaplan-refused", nil, []string{"--demand", "poisson:mean=4", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:2=0.2,3=0.5,5=0.3", "--out", "{dir}/r.html"}, 2, []string{"--lead-time", "hazard"}},
 	} {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"report"}, c.args...), code: c.code, names: c.want})
 	}

@@ -38,6 +38,9 @@ type batchView struct {
 	Warnings       []skuMessage
 	LeftOut        []string
 	Notes          []string
+	// Timing holds the cautions of random lead times and review periods
+	// (see skuView); empty: the line of a fixed lead time.
+	Timing []string
 }
 
 var batchTemplate = mustTemplate("batch", `{{template "head" .}}
