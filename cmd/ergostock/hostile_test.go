@@ -238,6 +238,7 @@ func hostileCases() []hostileCase {
 		add(hostileCase{name: "simulate-lost-law-review", args: with(with(law, "--review-period", "3"), "--unmet", "lost"), code: 0})
 		add(hostileCase{name: "simulate-independent-ss", args: with(with(base, "--lead-time", "pmf:0=0.2,1=0.3,4=0.5"), "--lead-time-model", "independent"), code: 0})
 		add(hostileCase{name: "simulate-law-short-warmup", args: with(with(law, "--review-period", "7"), "--warmup", "9"), code: 2, names: []string{"--warmup", "9"}})
+		add(hostileCase{name: "simulate-L-1e9-review", args: with(with(base, "--lead-time", "1000000000"), "--review-period", "7"), code: 1, names: []string{"--lead-time", "1000000000"}})
 		add(hostileCase{name: "simulate-law-wide", args: with(base, "--lead-time", "poisson:mean=1e6"), code: 1, names: []string{"--lead-time"}})
 	}
 	add(hostileCase{name: "evaluate-independent-ss", args: with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), code: 0}) // fixed lead time: both models agree

@@ -196,7 +196,7 @@ func check(sys inventory.System, p policies.Policy, opt Options) (limits, error)
 	// pipeline by lmax + R - 1 periods of orders.
 	leadSlots := float64(sys.LeadTime)
 	var lawCells float64
-	if !sys.FixedTiming() {
+	if sys.LeadTimeLaw != nil { // (a fixed lead time needs no table: no draw)
 		w, _, err := sys.LeadTimeWeights()
 		if err != nil {
 			return lim, err

@@ -37,6 +37,9 @@ func (tm *timing) lead(rng *rand.PCG) int64 {
 // System cuts them (tails below inventory.LeadTimeNeglect joined to the
 // last point), so the law simulated is the law evaluated.
 func newTiming(sys inventory.System) (*timing, error) {
+	if sys.LeadTimeLaw == nil { // a fixed lead time reviewed every R periods: no draw
+		return &timing{review: sys.Review(), seq: true, lmax: sys.LeadTime, fixed: int64(sys.LeadTime)}, nil
+	}
 	w, _, err := sys.LeadTimeWeights()
 	if err != nil {
 		return nil, err
