@@ -147,3 +147,32 @@ func TestReadResultsTiming(t *testing.T) {
 }
 
 var errFailed = errors.New("failed")
+
+// The batch page states the timing assumptions only when some row has a
+// lead-time law or a review period above 1.
+func TestBatchTimingCautions(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		rows []ResultRow
+		want []string // substrings, one per line; nil: no lines
+	}{
+		{"older file", []ResultRow{{SKU: "A"}}, nil},
+		{"fixed, every period", []ResultRow{{SKU: "A", LeadTime: "3", LeadTimeModel: "sequential", ReviewPeriod: 1}}, nil},
+		{"laws and weekly review", []ResultRow{
+			{SKU: "A", LeadTime: "pmf:1=0.2,2=0.8", LeadTimeModel: "sequential", ReviewPeriod: 7},
+			{SKU: "B", LeadTime: "pmf:0=0.5,3=0.5", LeadTimeModel: "independent", ReviewPeriod: 1},
+			{SKU: "C", LeadTime: "2", LeadTimeModel: "sequential", ReviewPeriod: 7},
+		}, []string{"lead_time column", "sequential deliveries (Kaplan 1970) for 1 item:", "Independent lead times for 1 item:", "for 2 items: orders are placed only at reviews"}},
+	} {
+		got := batchTimingCautions(c.rows)
+		if len(got) != len(c.want) {
+			t.Errorf("%s: %q, want %d lines", c.name, got, len(c.want))
+			continue
+		}
+		for i, w := range c.want {
+			if !strings.Contains(got[i], w) {
+				t.Errorf("%s: line %d %q, want %q", c.name, i, got[i], w)
+			}
+		}
+	}
+}
