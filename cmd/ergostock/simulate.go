@@ -106,7 +106,9 @@ func simulateAction(c *cli.Context) error {
 	var exact *inventory.Figures
 	if n := simChainSize(sys, p); n > float64(c.Int("max-states")) {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the chain of %v would have about %.3g states, over --max-states %d\n", p, n, c.Int("max-states"))
-	} else if ev, err := policies.Evaluate(sys, p, evalOptions(c)); err != nil {
+	} else if ev, err := policies.Evaluate(sys, p, evalOptions(c)); errors.Is(err, policies.ErrNotExact) {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: no exact values: the exact engine does not evaluate this case (%v); the figures are simulation estimates only\n", oneLine(err.Error()))
+	} else if err != nil {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: %v\n", oneLine(err.Error()))
 	} else if f := simInfinite(ev.Figures); f != "" {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the exact %s overflows float64 (costs too large)\n", f)
