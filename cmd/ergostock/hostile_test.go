@@ -223,6 +223,24 @@ func hostileCases() []hostileCase {
 		add(hostileCase{name: cmd + "-lost-review", args: with(with(base, "--unmet", "lost"), "--review-period", "7"), code: 1, names: []string{"--review-period", "simulate"}})
 		add(hostileCase{name: cmd + "-law-review-ok", args: with(law, "--review-period", "7"), code: 0})
 	}
+	// simulate plays the same laws, models and review periods literally
+	// (both modes); it refuses what the System refuses, and a warm-up too
+	// short for the longest lead time and the review period.
+	{
+		base := with(with(sys("simulate", "--reorder-point", "5", "--order-up-to", "20"), "--periods", "4000"), "--replications", "3")
+		for _, v := range []string{"-1", "0", "abc", "100001"} {
+			add(hostileCase{name: fmt.Sprintf("simulate--review-period=%q", v), args: with(base, "--review-period", v), code: 2, names: []string{"--review-period", v}})
+		}
+		add(hostileCase{name: "simulate--lead-time-model=crossing", args: with(base, "--lead-time-model", "crossing"), code: 2, names: []string{"--lead-time-model", "crossing"}})
+		add(hostileCase{name: "simulate-kaplan-refused", args: with(base, "--lead-time", "pmf:2=0.2,3=0.5,5=0.3"), code: 2, names: []string{"--lead-time", "hazard", "nearest"}})
+		law := with(base, "--lead-time", "pmf:1=0.2,2=0.5,3=0.3")
+		add(hostileCase{name: "simulate-law-review", args: with(law, "--review-period", "7"), code: 0})
+		add(hostileCase{name: "simulate-lost-law-review", args: with(with(law, "--review-period", "3"), "--unmet", "lost"), code: 0})
+		add(hostileCase{name: "simulate-independent-ss", args: with(with(base, "--lead-time", "pmf:0=0.2,1=0.3,4=0.5"), "--lead-time-model", "independent"), code: 0})
+		add(hostileCase{name: "simulate-law-short-warmup", args: with(with(law, "--review-period", "7"), "--warmup", "9"), code: 2, names: []string{"--warmup", "9"}})
+		add(hostileCase{name: "simulate-L-1e9-review", args: with(with(base, "--lead-time", "1000000000"), "--review-period", "7"), code: 1, names: []string{"--lead-time", "1000000000"}})
+		add(hostileCase{name: "simulate-law-wide", args: with(base, "--lead-time", "poisson:mean=1e6"), code: 1, names: []string{"--lead-time"}})
+	}
 	add(hostileCase{name: "evaluate-independent-ss", args: with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), code: 0}) // fixed lead time: both models agree
 	add(hostileCase{name: "evaluate-independent-law-ss", args: with(with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), "--lead-time", "pmf:1=0.5,3=0.5"), code: 1, names: []string{"--lead-time-model", "simulate"}})
 	add(hostileCase{name: "evaluate-independent-law-base-stock", args: with(with(sys("evaluate", "--order-up-to", "20"), "--lead-time-model", "independent"), "--lead-time", "pmf:1=0.5,3=0.5"), code: 0})
@@ -477,6 +495,10 @@ func hostileCases() []hostileCase {
 		{"report-sku-S-2e9", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--order-up-to", "2000000000", "--out", "{dir}/r.html"}, 1, []string{"--order-up-to"}},
 		{"report-sku-L-1e6-lost", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--unmet", "lost", "--lead-time", "1000000", "--out", "{dir}/r.html"}, 1, []string{"--lead-time"}},
 		{"report-nothing", nil, []string{"--out", "{dir}/r.html"}, 2, nil},
+		// Issue 12: a lead-time law, the models and a review period on the page, simulated too.
+		{"report-law-review-simulate", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:1=0.2,2=0.5,3=0.3", "--review-period", "7", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},
+		{"report-independent-base-stock", nil, []string{"--demand", "poisson:mean=4", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:0=0.2,1=0.3,4=0.5", "--lead-time-model", "independent", "--policy", "base-stock", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},
+		{"report-kaplan-refused", nil, []string{"--demand", "poisson:mean=4", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:2=0.2,3=0.5,5=0.3", "--out", "{dir}/r.html"}, 2, []string{"--lead-time", "hazard"}},
 	} {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"report"}, c.args...), code: c.code, names: c.want})
 	}
