@@ -475,7 +475,6 @@ func hostileCases() []hostileCase {
 		{"batch-receipts-no-usable-row", map[string]string{"items.csv": itemsHeader + goodItem, "r.csv": "sku,order_date,receipt_date\nGOOD,2025-03-10,2025-03-03\n"}, []string{"--receipts", "{dir}/r.csv"}, 1, []string{"r.csv:2", "receipt_date"}},
 		{"batch-receipts-layout-bad", map[string]string{"items.csv": itemsHeader + goodItem, "r.csv": okReceipts}, []string{"--receipts", "{dir}/r.csv", "--receipts-date-format", "julian"}, 2, []string{"--receipts-date-format"}},
 		{"batch-receipts-ok", map[string]string{"items.csv": itemsHeader + goodItem + "A,2,0.4,12,0,1,,,,poisson:mean=3,,,\n", "r.csv": okReceipts}, []string{"--receipts", "{dir}/r.csv"}, 0, nil},
-		{"batch-receipts-lost-item", map[string]string{"items.csv": itemsHeader + "A,2,0.4,12,0,1,lost,,,poisson:mean=3,,,\n", "r.csv": "sku,order_date,receipt_date\nA,2025-03-03,2025-03-12\nA,2025-03-10,2025-03-24\nA,2025-03-17,2025-03-24\nA,2025-03-24,2025-04-07\nA,2025-03-31,2025-04-14\n"}, []string{"--receipts", "{dir}/r.csv"}, 3, nil},
 	} {
 		args := append([]string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, c.args...)
 		add(hostileCase{name: c.name, files: c.files, args: args, code: c.code, names: c.want})

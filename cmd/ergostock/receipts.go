@@ -327,11 +327,11 @@ type receiptsTally struct{ set, kept, without, unmatched int }
 
 // applyReceipts sets each item's lead time from its SKU's receipts and
 // returns the warnings to add to each item's row, by item position. The
-// law replaces the lead_time column (the law itself is written into the
-// warning too: the results file has no lead-time column yet on this
-// branch); an item whose SKU has no usable law keeps its lead_time, with
+// law replaces the item's lead time, so the results row's lead_time column
+// shows it, and the warning gives the counts behind it and the value it
+// replaced; an item whose SKU has no usable law keeps its lead_time, with
 // a warning, and an item without receipts keeps it silently (counted in
-// the tally).
+// the tally) unless the receipts hold a near miss of its SKU.
 func applyReceipts(items []batch.Item, f *receipts.File) (map[int][]string, receiptsTally) {
 	var tally receiptsTally
 	laws := f.Laws()
@@ -384,9 +384,9 @@ func applyReceipts(items []batch.Item, f *receipts.File) (map[int][]string, rece
 		if l.Source == receipts.Pooled {
 			from = fmt.Sprintf("%d orders of supplier %s", l.Basis, strings.Join(l.Suppliers, "+"))
 		}
-		msg := fmt.Sprintf("lead time from receipts: %s (periods=orders %s; %s in %s)", what, l.CountsText(), from, f.Name)
+		msg := fmt.Sprintf("lead_time from receipts: %s in %s, periods=orders %s", from, f.Name, l.CountsText())
 		if cur := itemLeadTime(it.System); cur != what {
-			msg += ", instead of lead_time " + cur
+			msg += "; the items file said " + cur
 		}
 		it.System.LeadTime, it.System.LeadTimeLaw = fixed, law
 		notes[it.Index] = append([]string{msg}, w...)

@@ -162,16 +162,19 @@ func TestBatchReceipts(t *testing.T) {
 	}
 	h, rows := readResults(t, withR)
 	_, plainRows := readResults(t, plain)
-	warn, cost := column(h, "warnings"), column(h, "total_cost")
+	warn, cost, lead := column(h, "warnings"), column(h, "total_cost"), column(h, "lead_time")
 	laws := []string{"pmf:1=0.6666666666666666,2=0.3333333333333333", "pmf:1=0.625,2=0.375"}
 	type sys struct {
 		mean, hold, short, order float64
 	}
 	systems := []sys{{4, 0.2, 9, 25}, {0.5, 1.5, 40, 0}}
 	for i, law := range laws {
+		if rows[i][lead] != law {
+			t.Errorf("row %d lead_time %q, want %s", i, rows[i][lead], law)
+		}
 		w := rows[i][warn]
-		if !strings.HasPrefix(w, "lead time from receipts: "+law) || !strings.Contains(w, "instead of lead_time") {
-			t.Errorf("row %d warnings %q, want the law %s first", i, w, law)
+		if !strings.HasPrefix(w, "lead_time from receipts: ") || !strings.Contains(w, "periods=orders") || !strings.Contains(w, "the items file said ") {
+			t.Errorf("row %d warnings %q, want the receipts first", i, w)
 		}
 		d, _ := inventory.NewPoisson(systems[i].mean)
 		_, l, err := inventory.ParseLeadTime(law)
@@ -195,7 +198,10 @@ func TestBatchReceipts(t *testing.T) {
 			t.Errorf("row %d: the receipts did not change the cost %s", i, rows[i][cost])
 		}
 	}
-	if rows[2][warn] != plainRows[2][warn] || rows[2][cost] != plainRows[2][cost] {
+	if rows[0][warn] != "lead_time from receipts: 6 orders in "+rec+", periods=orders 1=4,2=2; the items file said 1; receipts: 1 of 6 orders delivered in parts: each counted once, at its last receipt" {
+		t.Errorf("row 0 warnings %q", rows[0][warn])
+	}
+	if rows[2][lead] != "2" || rows[2][warn] != plainRows[2][warn] || rows[2][cost] != plainRows[2][cost] {
 		t.Errorf("the item without receipts changed: %q %s against %q %s", rows[2][warn], rows[2][cost], plainRows[2][warn], plainRows[2][cost])
 	}
 	// The receipts join the run digest.
