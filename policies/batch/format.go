@@ -116,7 +116,7 @@ var shareColumns = map[string]bool{
 // wholeColumns are the columns of whole numbers.
 var wholeColumns = map[string]bool{
 	"reorder_point": true, "order_up_to": true, "order_multiple": true,
-	"states": true, "policies_evaluated": true, "item": true,
+	"states": true, "policies_evaluated": true, "item": true, "review_period": true,
 	"current_reorder_point": true, "current_order_up_to": true, "current_order_multiple": true,
 }
 
@@ -136,7 +136,8 @@ var figureColumns = func() map[string]bool {
 }()
 
 // ColumnKind returns the kind of a results column by its name; names it
-// does not know (carried item columns among them) are text.
+// does not know (carried item columns among them) are text, and so is
+// lead_time, which holds a whole number of periods or a law.
 func ColumnKind(name string) CellKind {
 	switch {
 	case shareColumns[name]:

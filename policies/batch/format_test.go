@@ -116,7 +116,7 @@ func TestFormatWriter(t *testing.T) {
 	if !strings.HasPrefix(semi, "\ufeff# ergostock results v2;") || !strings.Contains(strings.SplitN(semi, "\n", 2)[0], "; decimal=comma") {
 		t.Errorf("header record: %q", strings.SplitN(semi, "\n", 2)[0])
 	}
-	for _, want := range []string{"negbin:mean=2.5,var=4;2,5;4;erratic;s-S;4;19;;0,98123456789;0,0312;9,87654321;", ";1,2e-16;", `"a; b; =c"`, "\n'-LAMP;"} {
+	for _, want := range []string{"negbin:mean=2.5,var=4;2,5;4;erratic;s-S;4;19;;;;;0,98123456789;0,0312;9,87654321;", ";1,2e-16;", `"a; b; =c"`, "\n'-LAMP;"} {
 		if !strings.Contains(semi, want) {
 			t.Errorf("semicolon file lacks %q:\n%s", want, semi)
 		}

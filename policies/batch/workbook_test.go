@@ -129,7 +129,14 @@ func TestWorkbookWriter(t *testing.T) {
 
 func TestWorkbookWriterDigitsAndRefusals(t *testing.T) {
 	x, _ := writeWorkbook(t, Format{Digits: 3})
-	v, _ := x.GetCellValue(ResultsSheet, "J2", excelize.Options{RawCellValue: true})
+	col := 0
+	for i, h := range Header() {
+		if h == "fill_rate" {
+			col = i + 1
+		}
+	}
+	cell, _ := excelize.CoordinatesToCellName(col, 2)
+	v, _ := x.GetCellValue(ResultsSheet, cell, excelize.Options{RawCellValue: true})
 	if v != "0.981" {
 		t.Errorf("fill_rate with --digits 3: %q, want 0.981", v)
 	}
