@@ -80,7 +80,7 @@ func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D]",
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...]",
 		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced.",
 		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
