@@ -38,9 +38,9 @@ func optimizeCommand() *cli.Command {
 	)
 	flags = append(flags, uncertaintyFlags()...)
 	return &cli.Command{
-		Name:        "optimize",
-		Usage:       "the cheapest policy of a type, exactly where theory allows, under an optional service floor",
-		UsageText:   "ergostock optimize --demand SPEC --holding-cost h --shortage-cost b [--lead-time L|LAW] [--lead-time-model sequential|independent] [--review-period R] [--order-cost K] [--unit-cost c] [--unmet backorder|lost] [--policy base-stock|s-S|s-nQ] [--min-fill-rate F] [--max-stockout-probability P] [--json]\n" +
+		Name:  "optimize",
+		Usage: "the cheapest policy of a type, exactly where theory allows, under an optional service floor",
+		UsageText: "ergostock optimize --demand SPEC --holding-cost h --shortage-cost b [--lead-time L|LAW] [--lead-time-model sequential|independent] [--review-period R] [--order-cost K] [--unit-cost c] [--unmet backorder|lost] [--policy base-stock|s-S|s-nQ] [--min-fill-rate F] [--max-stockout-probability P] [--json]\n" +
 			"ergostock optimize --history FILE --sku ID [--period day|week|month] --holding-cost h --shortage-cost b [...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric]] [--robust [--floor-confidence F]]",
 		Description: timingHelp + "\n\n" + uncertaintyHelp,
 		Flags:       flags,

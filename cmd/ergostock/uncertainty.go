@@ -110,23 +110,23 @@ type robustJSON struct {
 }
 
 type uncertaintyJSON struct {
-	Resamples       int         `json:"resamples"`
-	Used            int         `json:"resamples_used"`
-	Seed            uint64      `json:"seed"`
-	Resampling      string      `json:"resampling"`
-	BlockLength     int         `json:"block_length"`
-	Periods         int         `json:"periods"`
-	Lag1            float64     `json:"lag1_autocorrelation"`
-	ReorderPoint    *bandJSON   `json:"reorder_point,omitempty"`
-	OrderUpTo       *bandJSON   `json:"order_up_to,omitempty"`
-	OrderMultiple   *bandJSON   `json:"order_multiple,omitempty"`
-	FillRate        spreadJSON  `json:"fill_rate"`
-	Stockout        spreadJSON  `json:"stockout_probability"`
-	TotalCost       spreadJSON  `json:"total_cost"`
-	Regret          spreadJSON  `json:"regret"`
-	FloorShare      float64     `json:"share_meeting_floor"`
-	Warnings        []string    `json:"warnings"`
-	Robust          *robustJSON `json:"robust,omitempty"`
+	Resamples     int         `json:"resamples"`
+	Used          int         `json:"resamples_used"`
+	Seed          uint64      `json:"seed"`
+	Resampling    string      `json:"resampling"`
+	BlockLength   int         `json:"block_length"`
+	Periods       int         `json:"periods"`
+	Lag1          float64     `json:"lag1_autocorrelation"`
+	ReorderPoint  *bandJSON   `json:"reorder_point,omitempty"`
+	OrderUpTo     *bandJSON   `json:"order_up_to,omitempty"`
+	OrderMultiple *bandJSON   `json:"order_multiple,omitempty"`
+	FillRate      spreadJSON  `json:"fill_rate"`
+	Stockout      spreadJSON  `json:"stockout_probability"`
+	TotalCost     spreadJSON  `json:"total_cost"`
+	Regret        spreadJSON  `json:"regret"`
+	FloorShare    float64     `json:"share_meeting_floor"`
+	Warnings      []string    `json:"warnings"`
+	Robust        *robustJSON `json:"robust,omitempty"`
 }
 
 func toUncertaintyJSON(res *uncertainty.Result, opt uncertainty.Options) *uncertaintyJSON {
