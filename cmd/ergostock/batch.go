@@ -19,6 +19,7 @@ import (
 	"ergostock/inventory/history"
 	"ergostock/policies"
 	"ergostock/policies/batch"
+	"ergostock/policies/uncertainty"
 )
 
 const batchDescription = `Plans every item of the items file: fits a demand model to the item's
@@ -63,13 +64,25 @@ unreadable file, a missing column, a write error, --out busy or not
 writable) and nothing was written; 2 for a usage error; 130 (SIGINT) or 143
 (SIGTERM) when the run was interrupted and nothing was written.`
 
+// batchUncertaintyHelp says what --uncertainty adds to the results.
+const batchUncertaintyHelp = `In a batch, --uncertainty appends columns after the usual ones (a plain run's
+file is unchanged): resampling, resamples_used; reorder_point_p05/_p50/_p95,
+order_up_to_p05/..., order_multiple_p05/... (the levels' bands);
+expected_fill_rate, fill_rate_p05, fill_rate_p95, expected_stockout_probability,
+expected_total_cost, total_cost_p95 (the recommendation under the resampled
+models); regret_mean, regret_p95; share_meeting_min_fill_rate; and with
+--robust robust_policy, robust_reorder_point, robust_order_up_to,
+robust_order_multiple, robust_mean_total_cost,
+robust_share_meeting_min_fill_rate, plug_in_mean_total_cost, robust_extra_cost.
+Items planned from a demand column get empty cells and a warning.`
+
 func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D]",
-		Description: batchDescription,
-		Flags: []cli.Flag{
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]]",
+		Description: batchDescription + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
 			&cli.StringFlag{Name: "out", Usage: "results file (CSV) to write; - writes the results to stdout", Required: true},
@@ -78,7 +91,7 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
-		},
+		}, uncertaintyFlags()...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -132,6 +145,10 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	period, err := history.ParsePeriod(c.String("period"))
 	if err != nil {
 		return usageErr("--%v", err)
+	}
+	uopt, withUnc, err := uncertaintyOptions(c)
+	if err != nil {
+		return err
 	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
 	toStdout := outPath == "-"
@@ -224,6 +241,17 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			return nil, errors.New("no demand column and no --history file")
 		}
 	}
+	if withUnc {
+		planner.Uncertainty = batch.UncertaintyStep(uopt, planner.Options)
+		meta.Uncertainty = fmt.Sprintf("%s,resamples=%d,seed=%d,robust=%v", uopt.Scheme, uopt.Resamples, uopt.Seed, uopt.Robust)
+		if uopt.Robust {
+			conf := uopt.FloorConfidence
+			if conf == 0 {
+				conf = uncertainty.DefaultFloorConfidence
+			}
+			meta.Uncertainty += fmt.Sprintf(",floor_confidence=%g", conf)
+		}
+	}
 	meta.Run = meta.RunDigest()
 
 	var bar *progressbar.ProgressBar
@@ -241,6 +269,10 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	}
 	var sum batchSummary
 	bw := batch.NewWriter(out)
+	if withUnc {
+		robust := uopt.Robust
+		bw.Uncertainty = &robust
+	}
 	err = bw.WriteMeta(meta)
 	if err == nil {
 		err = bw.WriteHeader()

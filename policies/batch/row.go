@@ -36,6 +36,10 @@ type Row struct {
 
 	Warnings []string
 	Err      error // why the item failed; nil when it did not
+
+	// Uncertainty holds the resampling cells of a run with --uncertainty
+	// (see UncertaintyHeader); nil otherwise or when the analysis failed.
+	Uncertainty *UncertaintyCells
 }
 
 // Saving is the current policy's total cost minus the chosen one's, and
@@ -63,6 +67,10 @@ type Writer struct {
 	out io.Writer
 	w   *csv.Writer
 	rec []string
+	// Uncertainty, when not nil, appends the columns of
+	// UncertaintyHeader(*Uncertainty) after the standard ones (true: with
+	// the robust policy's); nil keeps the plain file.
+	Uncertainty *bool
 }
 
 // NewWriter returns a Writer on w; call WriteMeta (optional) and
@@ -83,11 +91,20 @@ func (w *Writer) WriteMeta(m Meta) error {
 }
 
 // WriteHeader writes the header line.
-func (w *Writer) WriteHeader() error { return w.w.Write(Header()) }
+func (w *Writer) WriteHeader() error {
+	h := Header()
+	if w.Uncertainty != nil {
+		h = append(h, UncertaintyHeader(*w.Uncertainty)...)
+	}
+	return w.w.Write(h)
+}
 
 // Write writes one row.
 func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
+	if w.Uncertainty != nil {
+		w.rec = r.Uncertainty.appendCells(w.rec, *w.Uncertainty)
+	}
 	return w.w.Write(w.rec)
 }
 
