@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -97,5 +98,42 @@ func TestOptimizeHistoryWithoutUncertainty(t *testing.T) {
 	code, out2, errs := optRun("--demand", d, "--holding-cost", "1", "--shortage-cost", "9", "--json")
 	if code != 0 || out2 != out {
 		t.Errorf("--demand %s (exit %d, %s) differs from --history", d, code, errs)
+	}
+}
+
+// TestBatchUncertainty: --uncertainty appends its columns after the plain
+// ones and leaves the plain columns as they are; failed items stay failed
+// with empty cells.
+func TestBatchUncertainty(t *testing.T) {
+	dir := t.TempDir()
+	plain, unc := filepath.Join(dir, "plain.csv"), filepath.Join(dir, "unc.csv")
+	if code, stderr := runBatchCmd(t, "--items", batchItems, "--history", batchHistory, "--out", plain); code != 3 {
+		t.Fatalf("plain: exit %d: %s", code, stderr)
+	}
+	if code, stderr := runBatchCmd(t, "--items", batchItems, "--history", batchHistory, "--out", unc,
+		"--uncertainty", "--resamples", "20", "--robust"); code != 3 {
+		t.Fatalf("uncertainty: exit %d: %s", code, stderr)
+	}
+	ph, prows := readResults(t, plain)
+	uh, urows := readResults(t, unc)
+	if len(uh) <= len(ph) || !slices.Equal(uh[:len(ph)], ph) {
+		t.Fatalf("header %v does not extend %v", uh, ph)
+	}
+	warn, errc, regret := column(ph, "warnings"), column(ph, "error"), column(uh, "regret_p95")
+	for i := range prows {
+		for j := range ph {
+			if j != warn && urows[i][j] != prows[i][j] {
+				t.Errorf("row %d column %s: %q with --uncertainty, %q without", i, ph[j], urows[i][j], prows[i][j])
+			}
+		}
+		if (prows[i][errc] != "") != (urows[i][regret] == "") && !strings.Contains(urows[i][warn], "uncertainty") {
+			t.Errorf("row %d: error %q, regret_p95 %q", i, prows[i][errc], urows[i][regret])
+		}
+	}
+	for _, args := range [][]string{{"--resamples", "50"}, {"--uncertainty", "--resamples", "1"}, {"--uncertainty", "--resampling", "x"}} {
+		code, stderr := runBatchCmd(t, append([]string{"--items", batchItems, "--history", batchHistory, "--out", filepath.Join(dir, "x.csv")}, args...)...)
+		if code != 2 || strings.Count(stderr, "\n") != 1 {
+			t.Errorf("%v: exit %d, stderr %q; want 2 and one line", args, code, stderr)
+		}
 	}
 }
