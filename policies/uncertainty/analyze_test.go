@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"ergostock/inventory"
+	"ergostock/inventory/history"
 	"ergostock/policies"
 )
 
@@ -348,3 +349,6 @@ func TestRobustHoldsTheFloor(t *testing.T) {
 			rob.short, rob.meets, plug.short, plug.meets)
 	}
 }
+
+// fitOf is the default refit, for the benchmarks.
+func fitOf(y []int) (history.Summary, error) { return history.Fit(y) }
