@@ -17,6 +17,7 @@ import (
 	"ergostock/policies/batch"
 	"ergostock/policies/report"
 	"ergostock/policies/sim"
+	"ergostock/policies/uncertainty"
 )
 
 const reportDescription = `Writes one self-contained HTML page (--out): charts drawn inline as SVG,
@@ -72,6 +73,9 @@ func reportCommand() *cli.Command {
 		&cli.IntFlag{Name: "workers", Usage: "searches run at once for the exchange curve (default: all cores)", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
 		&cli.StringFlag{Name: "out", Usage: "HTML file to write", Required: true},
 	)
+	// One-SKU page with --history --sku: the resampling charts; --seed is
+	// shared with --simulate.
+	flags = append(flags, uncertaintyFlags("seed")...)
 	return &cli.Command{
 		Name:  "report",
 		Usage: "a self-contained HTML page with charts for one SKU or for a batch's results",
@@ -202,6 +206,28 @@ func reportSKU(c *cli.Context) (*report.SKUPage, error) {
 			return &report.Simulated{Mean: r.Mean, HalfWidth: r.HalfWidth, Level: r.Level,
 				Periods: r.Periods, Warmup: r.Warmup, Replications: r.Replications, Seed: r.Seed}, nil
 		}
+	}
+	uopt, withUnc, err := uncertaintyOptions(c, "seed")
+	if err != nil {
+		return nil, err
+	}
+	if withUnc {
+		if in.History == nil || in.DemandSource == "--demand" {
+			return nil, usageErr("--uncertainty: needs --history FILE --sku ID without --demand (the resamples are refitted from the history)")
+		}
+		uopt.Kind = in.Kind
+		if uopt.Kind == "" {
+			uopt.Kind = policies.SS
+			if in.Current != nil {
+				uopt.Kind = in.Current.Kind
+			}
+		}
+		uopt.Search = policies.SearchOptions{MinFillRate: in.MinFillRate, Eval: in.Options}
+		res, err := uncertainty.Analyze(in.SKU, in.History.Demand, sys, uopt)
+		if err != nil {
+			return nil, engineErr(c, fmt.Errorf("--uncertainty: %w", err))
+		}
+		in.Uncertainty = res
 	}
 	pg, err := report.BuildSKU(in)
 	if err != nil {

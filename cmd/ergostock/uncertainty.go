@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 
 	"github.com/urfave/cli/v2"
 
@@ -24,9 +25,19 @@ in at least --floor-confidence of them. The bootstrap sees only what the
 history holds (no season or trend beyond it); for critical items use the
 bands as an aid to judgement beside local practice and regulation.`
 
-// uncertaintyFlags are the flags of the resampling analysis (optimize and
-// batch).
-func uncertaintyFlags() []cli.Flag {
+// uncertaintyFlags are the flags of the resampling analysis (optimize,
+// batch, and report without its own --seed), less those named in except.
+func uncertaintyFlags(except ...string) []cli.Flag {
+	var out []cli.Flag
+	for _, f := range allUncertaintyFlags() {
+		if !slices.Contains(except, f.Names()[0]) {
+			out = append(out, f)
+		}
+	}
+	return out
+}
+
+func allUncertaintyFlags() []cli.Flag {
 	return []cli.Flag{
 		&cli.BoolFlag{Name: "uncertainty", Usage: "resample the history and report bands on the levels, the figures to expect and the regret"},
 		intFlag("resamples", "number of resampled models B (with --uncertainty)", uncertainty.DefaultResamples),
@@ -38,12 +49,13 @@ func uncertaintyFlags() []cli.Flag {
 }
 
 // uncertaintyOptions reads the flags; ok is false when no analysis is
-// asked for.
-func uncertaintyOptions(c *cli.Context) (opt uncertainty.Options, ok bool, err error) {
+// asked for. Flags named in shared belong to other options of the command
+// too (report's --seed also seeds --simulate) and may be given alone.
+func uncertaintyOptions(c *cli.Context, shared ...string) (opt uncertainty.Options, ok bool, err error) {
 	ok = c.Bool("uncertainty") || c.Bool("robust")
 	if !ok {
 		for _, f := range []string{"resamples", "seed", "resampling", "floor-confidence"} {
-			if c.IsSet(f) {
+			if c.IsSet(f) && !slices.Contains(shared, f) {
 				return opt, false, usageErr("--%s: goes with --uncertainty or --robust", f)
 			}
 		}

@@ -197,6 +197,7 @@ func (pg *SKUPage) render() {
 			add(c, err)
 		}
 	}
+	pg.renderUncertainty()
 }
 
 // WriteHTML writes the page.

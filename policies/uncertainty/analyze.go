@@ -95,7 +95,10 @@ type Result struct {
 	Lag1Significant bool
 	// Point is the recommendation: the optimum on the model fitted to the
 	// whole history.
-	Point     *policies.Optimum
+	Point *policies.Optimum
+	// Demand is the point model (the given one, or the fit of the whole
+	// history).
+	Demand    inventory.Distribution
 	Resamples []Resample // in order of b
 	Used      int        // resamples with an answer
 	// Bands of the resampled models' optimal levels; a level the policy
@@ -194,6 +197,7 @@ func Analyze(sku string, y []int, sys inventory.System, opt Options) (*Result, e
 		}
 		sys.Demand = s.Demand
 	}
+	res.Demand = sys.Demand
 	kind := opt.Kind
 	if kind == "" {
 		kind = defaultKind(sys)
