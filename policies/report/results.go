@@ -29,6 +29,9 @@ type ResultRow struct {
 	Saving         *float64           // current minus recommended total cost
 	Warnings       []string
 	Err            string
+	// Uncertainty holds the resampling columns of a run with
+	// --uncertainty; nil without them or for an item without figures.
+	Uncertainty *ResultUncertainty
 }
 
 // resultColumns are the columns the report needs from a results file.
@@ -230,6 +233,11 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 			return nil, err
 		} else if ok {
 			row.Saving = &v
+		}
+		if u, err := readUncertainty(col, number); err != nil {
+			return nil, err
+		} else {
+			row.Uncertainty = u
 		}
 		rows = append(rows, row)
 	}
