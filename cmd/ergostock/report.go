@@ -30,12 +30,18 @@ policy of its type (or of --policy); without them it shows the cheapest
 policy of --policy (default s-S). --history FILE --sku ID adds the demand
 history and the fitted distribution over its histogram; without --demand the
 fitted model is used. --simulate adds the exact-versus-simulated table.
+--uncertainty (with --history and --sku, without --demand) adds the stock
+levels under the point model with their spread over resampled models and the
+fill rate of the recommendation as a distribution (--resamples, --resampling,
+--robust, --floor-confidence as for optimize; --seed is shared with
+--simulate).
 
 A batch: --results FILE (written by ergostock batch) gives the table of
 items, the saving by demand pattern, and the warnings and errors; with
 --items FILE (the batch's items file) also the exchange curve, which
 re-optimises every item under common fill-rate targets (--targets); with
---history also the map of demand patterns. The --items, --history and
+--history also the map of demand patterns. Results of batch --uncertainty
+add the items ranked by regret. The --items, --history and
 --period given must be those in the header record of the results (the
 line batch writes first); a mismatch is refused, naming both. Without
 --period the record's period is used.
@@ -310,7 +316,8 @@ func reportReadHistory(path string, p history.Period) (*history.History, error) 
 // reportBatch gathers the batch page.
 func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 	for _, f := range []string{"demand", "lead-time", "holding-cost", "shortage-cost", "order-cost", "unit-cost", "unmet",
-		"reorder-point", "order-up-to", "order-multiple", "policy", "min-fill-rate", "sku", "simulate"} {
+		"reorder-point", "order-up-to", "order-multiple", "policy", "min-fill-rate", "sku", "simulate",
+		"uncertainty", "resamples", "resampling", "robust", "floor-confidence"} {
 		if c.IsSet(f) {
 			return nil, usageErr("--%s belongs to a one-SKU page; a batch page (--results) takes --items, --history, --targets and --workers", f)
 		}

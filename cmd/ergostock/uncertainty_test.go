@@ -137,3 +137,33 @@ func TestBatchUncertainty(t *testing.T) {
 		}
 	}
 }
+
+// TestReportUncertainty: the one-SKU page with --uncertainty carries the
+// two resampling charts; --uncertainty with --demand or on a batch page is
+// a usage error.
+func TestReportUncertainty(t *testing.T) {
+	h := writeUncHistory(t)
+	dir := t.TempDir()
+	page := filepath.Join(dir, "p.html")
+	base := []string{"ergostock", "report", "--history", h, "--sku", "PANTO-CARBON", "--holding-cost", "0.4", "--shortage-cost", "9",
+		"--order-cost", "25", "--out", page}
+	var out, errb strings.Builder
+	if code := run(append(append([]string{}, base...), "--uncertainty", "--resamples", "20"), nil, &out, &errb); code != 0 {
+		t.Fatalf("exit %d: %s", code, errb.String())
+	}
+	b, err := os.ReadFile(page)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, id := range []string{`id="level-band"`, `id="fill-band"`} {
+		if !strings.Contains(string(b), id) {
+			t.Errorf("page lacks %s", id)
+		}
+	}
+	for _, extra := range [][]string{{"--uncertainty", "--demand", "poisson:mean=3"}, {"--resamples", "20"}} {
+		errb.Reset()
+		if code := run(append(append([]string{}, base...), extra...), nil, &out, &errb); code != 2 {
+			t.Errorf("%v: exit %d (%s), want 2", extra, code, errb.String())
+		}
+	}
+}
