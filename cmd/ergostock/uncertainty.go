@@ -226,7 +226,7 @@ func writeUncertainty(w io.Writer, res *uncertainty.Result, opt uncertainty.Opti
 		return err
 	}
 	_, err := fmt.Fprintf(w, "the robust policy costs %s per period more on average over the models (negative: less)\n"+
-		"%d candidates evaluated on every model (%d exact evaluations); %s\n",
+		"%d candidates considered (%d exact evaluations; a candidate is given up once it provably cannot be the best); %s\n",
 		num(rb.ExtraCost), rb.Candidates, rb.Evaluations, rb.Guarantee)
 	return err
 }

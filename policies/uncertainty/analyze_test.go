@@ -352,3 +352,53 @@ func TestRobustHoldsTheFloor(t *testing.T) {
 
 // fitOf is the default refit, for the benchmarks.
 func fitOf(y []int) (history.Summary, error) { return history.Fit(y) }
+
+// TestRobustSSBoxByBruteForce: the robust s-S policy (with pruning) is
+// feasible and no dearer on average than any feasible policy of the box
+// spanned by the resampled optima, each evaluated on every model here.
+func TestRobustSSBoxByBruteForce(t *testing.T) {
+	y := draw(poisson(t, 4), 16, rand.New(rand.NewPCG(21, 22)))
+	sys := inventory.System{LeadTime: 1, Holding: 0.5, Shortage: 5, OrderCost: 15, Mode: inventory.Backorder}
+	const floor = 0.93
+	res, err := Analyze("x", y, sys, Options{Resamples: 20, Seed: 9, Kind: policies.SS,
+		Search: policies.SearchOptions{MinFillRate: floor}, Robust: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	meanShare := func(p policies.Policy) (float64, float64) {
+		var c float64
+		meets := 0
+		for _, r := range res.Resamples {
+			s := sys
+			s.Demand = r.Demand
+			e, err := policies.Evaluate(s, p, policies.Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			c += e.Figures.TotalCost
+			if e.Figures.FillRate >= floor-1e-12 {
+				meets++
+			}
+		}
+		n := float64(len(res.Resamples))
+		return c / n, float64(meets) / n
+	}
+	rb := res.Robust
+	m, sh := meanShare(rb.Policy)
+	if math.Abs(m-rb.MeanCost) > 1e-9*m || sh != rb.FloorShare || sh < 0.9 {
+		t.Fatalf("robust %v: mean %g share %g, reported %g %g", rb.Policy, m, sh, rb.MeanCost, rb.FloorShare)
+	}
+	sLo, sHi, SLo, SHi := math.MaxInt, math.MinInt, math.MaxInt, math.MinInt
+	for _, r := range res.Resamples {
+		sLo, sHi = min(sLo, r.Optimum.ReorderPoint), max(sHi, r.Optimum.ReorderPoint)
+		SLo, SHi = min(SLo, r.Optimum.OrderUpTo), max(SHi, r.Optimum.OrderUpTo)
+	}
+	for s := sLo; s <= sHi; s++ {
+		for S := max(SLo, s+1); S <= SHi; S++ {
+			p := policies.Policy{Kind: policies.SS, ReorderPoint: s, OrderUpTo: S}
+			if c, share := meanShare(p); share >= 0.9-1e-12 && c < rb.MeanCost-1e-12 {
+				t.Errorf("%v: mean %g, share %g beats the robust %v (%g)", p, c, share, rb.Policy, rb.MeanCost)
+			}
+		}
+	}
+}

@@ -2,6 +2,7 @@ package uncertainty
 
 import (
 	"fmt"
+	"math"
 	"runtime"
 	"sync"
 
@@ -40,8 +41,9 @@ type Robust struct {
 	// costs over the plug-in, on average over the models; negative when it
 	// is also cheaper on average).
 	ExtraCost float64
-	// Candidates is the number of policies evaluated on every model,
-	// Evaluations the exact evaluations in all.
+	// Candidates is the number of policies considered (each evaluated on
+	// every model, or given up once it provably cannot be the best; see
+	// robustSearcher.get), Evaluations the exact evaluations in all.
 	Candidates  int
 	Evaluations int
 	// Guarantee says what is known of the result.
@@ -50,10 +52,11 @@ type Robust struct {
 
 // candidate is a policy's figures over the used resampled models.
 type candidate struct {
-	mean  float64
-	share float64
-	fill  []float64
-	err   error
+	mean   float64
+	share  float64
+	fill   []float64
+	err    error
+	pruned bool // given up early: not the best (see get)
 }
 
 type robustSearcher struct {
@@ -69,7 +72,7 @@ type robustSearcher struct {
 }
 
 func (rs *robustSearcher) feasible(c *candidate) bool {
-	return c.err == nil && (rs.floor == 0 || c.share >= rs.conf-1e-12)
+	return c.err == nil && !c.pruned && (rs.floor == 0 || c.share >= rs.conf-1e-12)
 }
 
 // errCap is the error of a search that ran out of its evaluation budget.
@@ -79,9 +82,21 @@ func (e errCap) Error() string {
 	return fmt.Sprintf("the search needs more than %d exact evaluations (candidates x resamples); use fewer resamples", e.cap)
 }
 
-// get evaluates p on every model (once).
-func (rs *robustSearcher) get(p policies.Policy) *candidate {
-	if c, ok := rs.memo[p]; ok {
+// pruneChunk is the number of models evaluated between two checks of the
+// pruning bounds: fixed, so that the count of evaluations does not depend
+// on the worker count.
+const pruneChunk = 16
+
+// get evaluates p on every model (once). With prune, the evaluation stops
+// early when p can no longer be the best: costs are non-negative, so the
+// cost summed over the models evaluated so far, divided by their total
+// number, is a lower bound of the mean cost, and p is given up once that
+// bound passes the best feasible mean cost found (limit); it is also given
+// up once more models miss the floor than the required share allows. A
+// pruned candidate is never better than the best found then, nor than any
+// found later (the best only gets cheaper), so pruning changes no result.
+func (rs *robustSearcher) get(p policies.Policy, prune bool, limit float64) *candidate {
+	if c, ok := rs.memo[p]; ok && (!c.pruned || prune) {
 		return c
 	}
 	c := &candidate{}
@@ -90,45 +105,54 @@ func (rs *robustSearcher) get(p policies.Policy) *candidate {
 		c.err = err
 		return c
 	}
-	if rs.evals+len(rs.sys) > rs.cap {
-		c.err = errCap{rs.cap}
-		return c
-	}
-	rs.evals += len(rs.sys)
 	n := len(rs.sys)
 	cost := make([]float64, n)
 	c.fill = make([]float64, n)
 	errs := make([]error, n)
-	var wg sync.WaitGroup
-	w := min(rs.workers, n)
-	for k := 0; k < w; k++ {
-		wg.Add(1)
-		go func(k int) {
-			defer wg.Done()
-			for i := k; i < n; i += w {
-				e, err := policies.Evaluate(rs.sys[i], p, rs.eval)
-				if err != nil {
-					errs[i] = err
-					continue
-				}
-				cost[i], c.fill[i] = e.Figures.TotalCost, e.Figures.FillRate
-			}
-		}(k)
-	}
-	wg.Wait()
-	meets := 0
-	for i := range n {
-		if errs[i] != nil {
-			c.err = fmt.Errorf("%v on resampled model %d: %w", p, i, errs[i])
+	maxMiss := n - int(math.Ceil(rs.conf*float64(n)-1e-9))
+	sum, miss := 0.0, 0
+	for lo := 0; lo < n; lo += pruneChunk {
+		hi := min(n, lo+pruneChunk)
+		if rs.evals+hi-lo > rs.cap {
+			c.err = errCap{rs.cap}
 			return c
 		}
-		c.mean += cost[i]
-		if rs.floor == 0 || c.fill[i] >= rs.floor-1e-12 {
-			meets++
+		rs.evals += hi - lo
+		var wg sync.WaitGroup
+		w := min(rs.workers, hi-lo)
+		for k := 0; k < w; k++ {
+			wg.Add(1)
+			go func(k int) {
+				defer wg.Done()
+				for i := lo + k; i < hi; i += w {
+					e, err := policies.Evaluate(rs.sys[i], p, rs.eval)
+					if err != nil {
+						errs[i] = err
+						continue
+					}
+					cost[i], c.fill[i] = e.Figures.TotalCost, e.Figures.FillRate
+				}
+			}(k)
+		}
+		wg.Wait()
+		for i := lo; i < hi; i++ {
+			if errs[i] != nil {
+				c.err = fmt.Errorf("%v on resampled model %d: %w", p, i, errs[i])
+				return c
+			}
+			sum += cost[i]
+			if rs.floor != 0 && c.fill[i] < rs.floor-1e-12 {
+				miss++
+			}
+		}
+		if prune && hi < n && (sum/float64(n) > limit || (rs.floor != 0 && miss > maxMiss)) {
+			c.pruned = true
+			c.mean = math.Inf(1)
+			return c
 		}
 	}
-	c.mean /= float64(n)
-	c.share = float64(meets) / float64(n)
+	c.mean = sum / float64(n)
+	c.share = float64(n-miss) / float64(n)
 	return c
 }
 
@@ -166,7 +190,9 @@ func (rs *robustSearcher) better(a policies.Policy, ca *candidate, b *policies.P
 //
 // s-S and s-nQ: every candidate in the box spanned by the resampled
 // models' optima (reorder points times order-up-to levels or multiples)
-// is evaluated on every model, then a compass search moves from the best
+// is considered (evaluated on every model unless it provably cannot be
+// the best: see get), after the plug-in policy and the median levels, then
+// a compass search moves from the best
 // of the box by unit steps of both levels (eight neighbours) while a
 // feasible neighbour is cheaper. The result is the best of the box and a
 // local optimum beyond it (the mean of costs that are each well behaved
@@ -203,7 +229,11 @@ func robustSearch(res *Result, sys inventory.System, kind policies.Kind, opt Opt
 	var best *policies.Policy
 	var bc *candidate
 	consider := func(p policies.Policy) (*candidate, error) {
-		c := rs.get(p)
+		limit := math.Inf(1)
+		if bc != nil {
+			limit = bc.mean
+		}
+		c := rs.get(p, true, limit)
 		if ce, ok := c.err.(errCap); ok {
 			return c, ce
 		}
@@ -240,7 +270,19 @@ func robustSearch(res *Result, sys inventory.System, kind policies.Kind, opt Opt
 		}
 		loB, hiB := *second(&lo), *second(&hi)
 		box := (hi.ReorderPoint - lo.ReorderPoint + 1) * (hiB - loB + 1)
-		starts := []policies.Policy{res.Point.Policy}
+		mid := policies.Policy{Kind: kind, ReorderPoint: int(res.ReorderPoint.P50)}
+		if kind == policies.SS {
+			mid.OrderUpTo = int(res.OrderUpTo.P50)
+		} else {
+			mid.OrderMultiple = int(res.OrderMultiple.P50)
+		}
+		// The plug-in policy and the median levels first: a good early
+		// best lets the box prune most candidates after a few models.
+		for _, p := range []policies.Policy{res.Point.Policy, mid} {
+			if _, err := consider(p); err != nil {
+				return nil, err
+			}
+		}
 		if box*len(rs.sys) <= rs.cap/2 {
 			for s := lo.ReorderPoint; s <= hi.ReorderPoint; s++ {
 				for v := loB; v <= hiB; v++ {
@@ -253,19 +295,7 @@ func robustSearch(res *Result, sys inventory.System, kind policies.Kind, opt Opt
 			}
 			guarantee = fmt.Sprintf("best of the %d candidates spanned by the resampled optima, and a local optimum beyond (compass search)", box)
 		} else {
-			mid := policies.Policy{Kind: kind, ReorderPoint: int(res.ReorderPoint.P50)}
-			if kind == policies.SS {
-				mid.OrderUpTo = int(res.OrderUpTo.P50)
-			} else {
-				mid.OrderMultiple = int(res.OrderMultiple.P50)
-			}
-			starts = append(starts, mid)
 			guarantee = "local optimum (compass search from the plug-in policy and the median levels; the box of resampled optima was too large to evaluate whole)"
-		}
-		for _, p := range starts {
-			if _, err := consider(p); err != nil {
-				return nil, err
-			}
 		}
 		if best == nil {
 			// Nothing feasible yet: raise both levels from the top corner.
@@ -312,7 +342,7 @@ func robustSearch(res *Result, sys inventory.System, kind policies.Kind, opt Opt
 	if err != nil {
 		return nil, fmt.Errorf("evaluate %v on the point model: %w", *best, err)
 	}
-	plug := rs.get(res.Point.Policy)
+	plug := rs.get(res.Point.Policy, false, 0)
 	if plug.err != nil {
 		return nil, plug.err
 	}
