@@ -2,8 +2,10 @@ package batch
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"strconv"
+	"time"
 
 	"ergostock/inventory"
 	"ergostock/policies"
@@ -107,13 +109,22 @@ func (c *UncertaintyCells) appendCells(rec []string, robust bool) []string {
 // the item's policy type and fill-rate floor, eval for the evaluations,
 // the item's context). An item whose demand column replaced the fit gets a
 // warning and empty cells; so does an item whose analysis fails (the plan
-// itself stands). Each item runs its resamples on one goroutine unless
+// itself stands; the analysis gets nine tenths of the item's remaining
+// time budget, so that running out of it costs the cells, not the plan).
+// Each item runs its resamples on one goroutine unless
 // opt.Workers says otherwise: the batch already plans items in parallel.
 func UncertaintyStep(opt uncertainty.Options, eval policies.Options) func(ctx context.Context, it Item, sys inventory.System, fitted *Fitted, row *Row) {
 	return func(ctx context.Context, it Item, sys inventory.System, fitted *Fitted, row *Row) {
 		if fitted == nil || len(fitted.Series) == 0 {
 			row.Warnings = append(row.Warnings, "no uncertainty figures: the demand column replaces the history")
 			return
+		}
+		// Leave a tenth of the item's remaining budget: an analysis that
+		// runs out of time costs its cells (with a warning), not the plan.
+		if dl, ok := ctx.Deadline(); ok {
+			var cancel context.CancelFunc
+			ctx, cancel = context.WithDeadline(ctx, time.Now().Add(time.Until(dl)*9/10))
+			defer cancel()
 		}
 		o := opt
 		if o.Workers == 0 {
@@ -125,6 +136,9 @@ func UncertaintyStep(opt uncertainty.Options, eval policies.Options) func(ctx co
 		o.Context = ctx
 		res, err := uncertainty.Analyze(it.SKU, fitted.Series, sys, o)
 		if err != nil {
+			if errors.Is(err, context.DeadlineExceeded) {
+				err = fmt.Errorf("the resampling ran out of the item's time budget (raise --item-timeout or lower --resamples): %w", err)
+			}
 			row.Warnings = append(row.Warnings, "no uncertainty figures: "+oneLine(err.Error()))
 			return
 		}

@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"ergostock/inventory/history"
 	"ergostock/policies"
@@ -127,5 +128,30 @@ func TestMetaUncertainty(t *testing.T) {
 	back, err := ParseMeta(m.String(), "r.csv", 1)
 	if err != nil || back.Uncertainty != m.Uncertainty {
 		t.Errorf("ParseMeta: %v, %+v", err, back)
+	}
+}
+
+// TestUncertaintyOutOfTime: an analysis that cannot finish in the item's
+// budget costs its cells and leaves a warning; the plan stands.
+func TestUncertaintyOutOfTime(t *testing.T) {
+	items, err := ReadItems(strings.NewReader(uncItems), "items.csv", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	h, err := history.Read(strings.NewReader(uncHistoryCSV()), "h.csv", history.Week)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := &Planner{}
+	p.Fit, p.Pattern = HistoryFit(h, nil)
+	p.Uncertainty = UncertaintyStep(uncertainty.Options{Resamples: uncertainty.MaxResamples}, policies.Options{})
+	ctx, cancel := context.WithTimeout(context.Background(), 300*time.Millisecond)
+	defer cancel()
+	row := p.PlanContext(ctx, items[0])
+	if row.Err != nil || row.Policy == nil {
+		t.Fatalf("plan failed: %v", row.Err)
+	}
+	if row.Uncertainty != nil || !strings.Contains(strings.Join(row.Warnings, "; "), "time budget") {
+		t.Errorf("cells %v, warnings %q", row.Uncertainty, row.Warnings)
 	}
 }
