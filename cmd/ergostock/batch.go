@@ -80,8 +80,8 @@ func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]]",
-		Description: batchDescription + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]]",
+		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced." + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
 		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
@@ -91,7 +91,7 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
-		}, uncertaintyFlags()...),
+		}, append(receiptsFlags(), uncertaintyFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -151,8 +151,19 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return err
 	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
+	receiptsPath := c.String("receipts")
+	if c.IsSet("receipts") && receiptsPath == "" {
+		return usageErr("--receipts: want the receipts file")
+	}
+	if receiptsPath == "-" {
+		return usageErr("--receipts -: batch reads the receipts from a file, not standard input")
+	}
+	ropt, err := receiptsOptions(c, period)
+	if err != nil {
+		return err
+	}
 	toStdout := outPath == "-"
-	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}} {
+	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}, {"receipts", receiptsPath}} {
 		if in.path != "" && !toStdout && sameFile(in.path, outPath) {
 			return usageErr("--out %s: it is the --%s file; choose another results file", outPath, in.flag)
 		}
@@ -253,6 +264,31 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		}
 	}
 	meta.Run = meta.RunDigest()
+	var leadNotes map[int][]string
+	if receiptsPath != "" {
+		rf, digest, err := readReceiptsFile(ctx, nil, receiptsPath, ropt)
+		if e := interrupted(); e != nil {
+			return e
+		}
+		if err != nil {
+			return err
+		}
+		if err := receiptsNoLaw(rf); err != nil {
+			return err
+		}
+		if n := len(rf.Errors); n > 0 {
+			fmt.Fprintf(stderr, "ergostock: %s: %d receipt rows without a sku skipped, first %v\n", receiptsPath, n, rf.Errors[0])
+		}
+		var tally receiptsTally
+		leadNotes, tally = applyReceipts(items, rf)
+		fmt.Fprintf(stderr, "ergostock: %s (%s; lead times in %s periods): lead-time laws set for %d items; lead_time kept for %d items on too few receipts and %d items without receipts; %d SKUs of the receipts match no item planned in this run\n",
+			receiptsPath, rf.Dialect, rf.Period, tally.set, tally.kept, tally.without, tally.unmatched)
+		// The receipts shape the figures: they join the run digest, so
+		// shards planned with other receipts do not join this run.
+		h := batch.NewDigest()
+		fmt.Fprintf(h, "run=%s\nreceipts=%s\n", meta.Run, digest)
+		meta.Run = batch.DigestSum(h)
+	}
 
 	var bar *progressbar.ProgressBar
 	if isTerminal(stderr) && len(items) > 0 {
@@ -280,6 +316,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err == nil {
 		err = planner.PlanAll(ctx, items, batch.RunOptions{Workers: workers, ItemTimeout: timeout},
 			func(r *batch.Row) error {
+				if n := leadNotes[r.Item]; len(n) > 0 {
+					r.Warnings = append(append([]string(nil), n...), r.Warnings...)
+				}
 				sum.add(r)
 				if bar != nil {
 					bar.Add(1)

@@ -93,6 +93,7 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	}
 	sys := it.System
 	var fitted *Fitted
+	row.SetTiming(sys)
 	if sys.Demand != nil && p.Pattern != nil {
 		SetStage(ctx, "reading the demand pattern")
 		row.Pattern = p.Pattern(it.SKU)
