@@ -239,6 +239,7 @@ func reportSKU(c *cli.Context) (*report.SKUPage, error) {
 			}
 		}
 		uopt.Search = policies.SearchOptions{MinFillRate: in.MinFillRate, Eval: in.Options}
+		uopt.KeepModels = true // the level band chart evaluates each model
 		res, err := uncertainty.Analyze(in.SKU, in.History.Demand, sys, uopt)
 		if err != nil {
 			return nil, engineErr(c, fmt.Errorf("--uncertainty: %w", err))

@@ -21,6 +21,15 @@ const DefaultResamples = 200
 // MaxResamples caps B: each resample keeps its fitted law and figures.
 const MaxResamples = 100_000
 
+// MaxModelBytes caps the estimated memory of the refitted laws kept
+// (Options.KeepModels, Robust).
+const MaxModelBytes = 1 << 30
+
+// ErrTooLarge is wrapped by the refusal of an analysis whose kept models
+// would pass MaxModelBytes; it is the engine's size limit, so it is
+// errors.Is policies.ErrLimit.
+var ErrTooLarge = fmt.Errorf("uncertainty: %w", policies.ErrLimit)
+
 // DefaultFloorConfidence is the share of resampled models in which the
 // robust policy must meet the fill-rate floor, when none is given.
 const DefaultFloorConfidence = 0.9
@@ -46,6 +55,10 @@ type Options struct {
 	// MaxRobustEvaluations caps the exact evaluations of the robust search
 	// (candidates x resampled models); 0 means DefaultMaxRobustEvaluations.
 	MaxRobustEvaluations int
+	// KeepModels keeps every resample's refitted law in Resample.Demand
+	// (the report's charts need them; the robust search keeps them anyway).
+	// Otherwise each law is dropped once its resample is planned.
+	KeepModels bool
 	// Fit refits a resampled series; nil means history.Fit, the rule of
 	// the command fit.
 	Fit func(y []int) (history.Summary, error)
@@ -69,7 +82,7 @@ type Spread struct {
 type Resample struct {
 	Index  int
 	Model  string                 // the refitted model's family
-	Demand inventory.Distribution // the refitted law; nil when Err
+	Demand inventory.Distribution // the refitted law; nil when Err or not kept
 	// Optimum is this model's own cheapest policy (under the floors), and
 	// OptimalCost its total cost.
 	Optimum     policies.Policy
@@ -175,6 +188,19 @@ func Analyze(sku string, y []int, sys inventory.System, opt Options) (*Result, e
 	if opt.Search.Eval.Context == nil {
 		opt.Search.Eval.Context = opt.Context
 	}
+	keep := opt.KeepModels || opt.Robust
+	if keep {
+		top := slices.Max(y)
+		// A refitted law can hold a table over its support (the empirical
+		// pmf: three numbers per value up to the largest demand; the
+		// discretised laws a little beyond it).
+		per := 24 * (2*float64(max(top, 0)) + 64)
+		if est := float64(B) * per; est > MaxModelBytes {
+			return nil, &inventory.FieldError{Field: "resamples", Value: fmt.Sprint(B),
+				Want: fmt.Sprintf("fewer resamples: keeping %d refitted laws of demands up to %d would take about %.3g GB (the limit is %.3g GB)", B, top, est/1e9, MaxModelBytes/1e9),
+				Err:  ErrTooLarge}
+		}
+	}
 	res := &Result{SKU: sku, Periods: len(y), BlockLength: 1}
 	res.Lag1, res.Lag1Significant = Lag1(y)
 	if scheme == Auto {
@@ -253,6 +279,9 @@ func Analyze(sku string, y []int, sys inventory.System, opt Options) (*Result, e
 					resampleIID(buf, y, rng)
 				}
 				planResample(r, buf, sys, kind, rec, opt.Search, fit)
+				if !keep {
+					r.Demand = nil
+				}
 			}
 		}()
 	}

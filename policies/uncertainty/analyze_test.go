@@ -453,3 +453,24 @@ func TestBlockBootstrapKeepsDependence(t *testing.T) {
 		t.Errorf("block bootstrap variance %.4f not above twice the iid %.4f", vb, vi)
 	}
 }
+
+// TestKeptModelsRefusedBeforeAllocating: keeping many refitted laws of a
+// series with huge demands is refused by the size estimate; without
+// keeping them the laws are dropped.
+func TestKeptModelsRefusedBeforeAllocating(t *testing.T) {
+	y := []int{0, 900000, 3, 0, 1200000, 7}
+	sys := inventory.System{LeadTime: 1, Holding: 1, Shortage: 9, Mode: inventory.Backorder}
+	_, err := Analyze("x", y, sys, Options{Resamples: 50000, KeepModels: true})
+	if !errors.Is(err, policies.ErrLimit) {
+		t.Fatalf("error %v, want the size limit", err)
+	}
+	res, err := Analyze("x", []int{3, 1, 4, 1, 5, 9, 2, 6}, sys, Options{Resamples: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range res.Resamples {
+		if r.Demand != nil {
+			t.Fatal("a refitted law kept without KeepModels")
+		}
+	}
+}
