@@ -536,6 +536,12 @@ func hostileCases() []hostileCase {
 	add(hostileCase{name: "optimize-history-unknown-sku", args: with(unc, "--sku", "Q"), files: hist, code: 1, names: []string{"h.csv", "\"Q\""}})
 	add(hostileCase{name: "optimize-history-no-demand", args: with(unc, "--sku", "Z"), files: hist, code: 1, names: []string{"h.csv", "\"Z\""}})
 	add(hostileCase{name: "optimize-uncertainty-with-demand", args: append(append([]string{}, unc...), "--demand", "poisson:mean=3"), files: hist, code: 2, names: []string{"--demand", "--uncertainty"}})
+	uitems := map[string]string{"h.csv": hist["h.csv"], "items.csv": "sku,lead_time,holding_cost,shortage_cost\nA,1,1,9\n"}
+	ubatch := []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--uncertainty", "--resamples", "10"}
+	add(hostileCase{name: "batch-uncertainty-ok", args: ubatch, files: uitems, code: 0})
+	add(hostileCase{name: "batch-uncertainty-resamples-1", args: with(ubatch, "--resamples", "1"), files: uitems, code: 2, names: []string{"--resamples"}})
+	add(hostileCase{name: "batch-robust-confidence-alone", args: []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--floor-confidence", "0.8"}, files: uitems, code: 2, names: []string{"--floor-confidence"}})
+	add(hostileCase{name: "report-uncertainty-no-history", args: []string{"report", "--demand", "poisson:mean=3", "--holding-cost", "1", "--shortage-cost", "9", "--out", "{dir}/p.html", "--uncertainty"}, code: 2, names: []string{"--uncertainty", "--history"}})
 	return cs
 }
 
