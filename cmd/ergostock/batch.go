@@ -21,6 +21,7 @@ import (
 	"ergostock/inventory/tabular"
 	"ergostock/policies"
 	"ergostock/policies/batch"
+	"ergostock/policies/uncertainty"
 )
 
 const batchDescription = `Plans every item of the items file: fits a demand model to the item's
@@ -76,12 +77,24 @@ unreadable file, a missing column, a write error, --out busy or not
 writable) and nothing was written; 2 for a usage error; 130 (SIGINT) or 143
 (SIGTERM) when the run was interrupted and nothing was written.`
 
+// batchUncertaintyHelp says what --uncertainty adds to the results.
+const batchUncertaintyHelp = `In a batch, --uncertainty appends columns after the usual ones (a plain run's
+file is unchanged): resampling, resamples_used; reorder_point_p05/_p50/_p95,
+order_up_to_p05/..., order_multiple_p05/... (the levels' bands);
+expected_fill_rate, fill_rate_p05, fill_rate_p95, expected_stockout_probability,
+expected_total_cost, total_cost_p95 (the recommendation under the resampled
+models); regret_mean, regret_p95; share_meeting_min_fill_rate; and with
+--robust robust_policy, robust_reorder_point, robust_order_up_to,
+robust_order_multiple, robust_mean_total_cost,
+robust_share_meeting_min_fill_rate, plug_in_mean_total_cost, robust_extra_cost.
+Items planned from a demand column get empty cells and a warning.`
+
 func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...]",
-		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced.",
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]]",
+		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced." + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
 		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
@@ -95,7 +108,7 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "out-decimal", Usage: "decimal mark of the results CSV: . or , (a decimal comma needs --out-delimiter ';' or tab)", Value: "."},
 			&cli.StringFlag{Name: "carry", Usage: "item columns to copy to the results, comma-separated (e.g. supplier,category); appended after the results columns"},
 			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
-		}, receiptsFlags()...),
+		}, append(receiptsFlags(), uncertaintyFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -164,6 +177,10 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		if carry, err = batch.ParseCarry(c.String("carry")); err != nil {
 			return usageErr("%v", err)
 		}
+	}
+	uopt, withUnc, err := uncertaintyOptions(c)
+	if err != nil {
+		return err
 	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
 	receiptsPath := c.String("receipts")
@@ -273,6 +290,17 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			return nil, errors.New("no demand column and no --history file")
 		}
 	}
+	if withUnc {
+		planner.Uncertainty = batch.UncertaintyStep(uopt, planner.Options)
+		meta.Uncertainty = fmt.Sprintf("%s,resamples=%d,seed=%d,robust=%v", uopt.Scheme, uopt.Resamples, uopt.Seed, uopt.Robust)
+		if uopt.Robust {
+			conf := uopt.FloorConfidence
+			if conf == 0 {
+				conf = uncertainty.DefaultFloorConfidence
+			}
+			meta.Uncertainty += fmt.Sprintf(",floor_confidence=%g", conf)
+		}
+	}
 	meta.Run = meta.RunDigest()
 	var leadNotes map[int][]string
 	if receiptsPath != "" {
@@ -324,6 +352,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return usageErr("--out %s: %v", outPath, err)
 	}
 	bw.Carry(carried)
+	if withUnc {
+		bw.SetUncertainty(uopt.Robust)
+	}
 	err = bw.WriteMeta(meta)
 	if err == nil {
 		err = bw.WriteHeader()
@@ -372,6 +403,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 // workbook (batch.WorkbookWriter).
 type resultsWriter interface {
 	Carry(names []string)
+	SetUncertainty(robust bool)
 	WriteMeta(batch.Meta) error
 	WriteHeader() error
 	Write(*batch.Row) error

@@ -611,6 +611,34 @@ func hostileCases() []hostileCase {
 	add(hostileCase{name: "simulate-replications-1", args: sys("simulate", "--order-up-to", "20", "--replications", "1"), code: 2, names: []string{"--replications"}})
 	add(hostileCase{name: "simulate-periods-0", args: sys("simulate", "--order-up-to", "20", "--periods", "0"), code: 2, names: []string{"--periods"}})
 	add(hostileCase{name: "simulate-warmup-over", args: sys("simulate", "--order-up-to", "20", "--periods", "100", "--warmup", "100"), code: 2, names: []string{"--periods", "warm-up"}})
+
+	// optimize --history --sku --uncertainty (issue 13).
+	hist := map[string]string{"h.csv": "sku,period,quantity\nA,1,3\nA,2,0\nA,3,5\nA,4,2\nA,5,4\nA,6,1\nA,7,6\nA,8,2\nZ,1,0\nZ,2,0\n"}
+	unc := []string{"optimize", "--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--uncertainty", "--resamples", "20"}
+	add(hostileCase{name: "optimize-uncertainty-ok", args: unc, files: hist, code: 0})
+	for _, v := range []string{"1", "0", "-5", "abc", "1e9", "100001", ""} {
+		add(hostileCase{name: fmt.Sprintf("optimize--resamples=%q", v), args: with(unc, "--resamples", v), files: hist, code: 2, names: []string{"--resamples"}})
+	}
+	for _, v := range []string{"-1", "abc", "1.5"} {
+		add(hostileCase{name: fmt.Sprintf("optimize--seed=%q", v), args: with(unc, "--seed", v), files: hist, code: 2, names: []string{"--seed"}})
+	}
+	add(hostileCase{name: "optimize-resampling-bad", args: with(unc, "--resampling", "jackknife"), files: hist, code: 2, names: []string{"--resampling", "jackknife"}})
+	for _, v := range []string{"0", "1.5", "NaN", "abc"} {
+		add(hostileCase{name: fmt.Sprintf("optimize--floor-confidence=%q", v), args: append(with(unc, "--floor-confidence", v), "--robust"), files: hist, code: 2, names: []string{"--floor-confidence"}})
+	}
+	add(hostileCase{name: "optimize-uncertainty-no-history", args: sys("optimize", "--uncertainty"), code: 2, names: []string{"--uncertainty", "--history"}})
+	add(hostileCase{name: "optimize-resamples-alone", args: sys("optimize", "--resamples", "50"), code: 2, names: []string{"--resamples", "--uncertainty"}})
+	add(hostileCase{name: "optimize-history-no-sku", args: []string{"optimize", "--history", "{dir}/h.csv", "--holding-cost", "1", "--shortage-cost", "9"}, files: hist, code: 2, names: []string{"--history", "--sku"}})
+	add(hostileCase{name: "optimize-history-missing", args: with(unc, "--history", "{dir}/none.csv"), code: 1, names: []string{"--history", "none.csv"}})
+	add(hostileCase{name: "optimize-history-unknown-sku", args: with(unc, "--sku", "Q"), files: hist, code: 1, names: []string{"h.csv", "\"Q\""}})
+	add(hostileCase{name: "optimize-history-no-demand", args: with(unc, "--sku", "Z"), files: hist, code: 1, names: []string{"h.csv", "\"Z\""}})
+	add(hostileCase{name: "optimize-uncertainty-with-demand", args: append(append([]string{}, unc...), "--demand", "poisson:mean=3"), files: hist, code: 2, names: []string{"--demand", "--uncertainty"}})
+	uitems := map[string]string{"h.csv": hist["h.csv"], "items.csv": "sku,lead_time,holding_cost,shortage_cost\nA,1,1,9\n"}
+	ubatch := []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--uncertainty", "--resamples", "10"}
+	add(hostileCase{name: "batch-uncertainty-ok", args: ubatch, files: uitems, code: 0})
+	add(hostileCase{name: "batch-uncertainty-resamples-1", args: with(ubatch, "--resamples", "1"), files: uitems, code: 2, names: []string{"--resamples"}})
+	add(hostileCase{name: "batch-robust-confidence-alone", args: []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--floor-confidence", "0.8"}, files: uitems, code: 2, names: []string{"--floor-confidence"}})
+	add(hostileCase{name: "report-uncertainty-no-history", args: []string{"report", "--demand", "poisson:mean=3", "--holding-cost", "1", "--shortage-cost", "9", "--out", "{dir}/p.html", "--uncertainty"}, code: 2, names: []string{"--uncertainty", "--history"}})
 	return cs
 }
 

@@ -111,6 +111,10 @@ const (
 // shareColumns are the figure columns that are shares of 1.
 var shareColumns = map[string]bool{
 	"fill_rate": true, "stockout_probability": true, "current_fill_rate": true,
+	// --uncertainty (see UncertaintyHeader)
+	"expected_fill_rate": true, "fill_rate_p05": true, "fill_rate_p95": true,
+	"expected_stockout_probability": true, "share_meeting_min_fill_rate": true,
+	"robust_share_meeting_min_fill_rate": true,
 }
 
 // wholeColumns are the columns of whole numbers.
@@ -118,6 +122,8 @@ var wholeColumns = map[string]bool{
 	"reorder_point": true, "order_up_to": true, "order_multiple": true,
 	"states": true, "policies_evaluated": true, "item": true, "review_period": true,
 	"current_reorder_point": true, "current_order_up_to": true, "current_order_multiple": true,
+	// --uncertainty (see UncertaintyHeader)
+	"resamples_used": true, "robust_reorder_point": true, "robust_order_up_to": true, "robust_order_multiple": true,
 }
 
 // figureColumns are the other figure columns. A column added to the
@@ -128,6 +134,14 @@ var figureColumns = func() map[string]bool {
 		"demand_mean": true, "demand_variance": true,
 		"current_total_cost": true, "saving": true,
 		"residual": true, "balance": true, "neglected": true,
+		// --uncertainty (see UncertaintyHeader): level quantiles and costs
+		"expected_total_cost": true, "total_cost_p95": true, "regret_mean": true, "regret_p95": true,
+		"robust_mean_total_cost": true, "plug_in_mean_total_cost": true, "robust_extra_cost": true,
+	}
+	for _, l := range []string{"reorder_point", "order_up_to", "order_multiple"} {
+		for _, q := range []string{"_p05", "_p50", "_p95"} {
+			m[l+q] = true
+		}
 	}
 	for _, fd := range (inventory.Figures{}).Fields() {
 		m[fd.Name] = true
@@ -187,7 +201,11 @@ func (f Format) bom() bool { return f.comma() != ',' || f.decimal() != '.' }
 // header returns the column names the writer writes, and records their
 // kinds for reformat.
 func (w *Writer) header() []string {
-	h := append(Header(), w.carry...)
+	h := Header()
+	if w.Uncertainty != nil {
+		h = append(h, UncertaintyHeader(*w.Uncertainty)...)
+	}
+	h = append(h, w.carry...)
 	w.kinds = w.kinds[:0]
 	for _, name := range h {
 		w.kinds = append(w.kinds, ColumnKind(name))
@@ -225,3 +243,8 @@ func appendCarried(rec, carried []string, n int) []string {
 	}
 	return rec
 }
+
+// SetUncertainty appends the columns of UncertaintyHeader(robust) after
+// the standard ones (and before any carried columns), as setting
+// Writer.Uncertainty does. Call it before WriteHeader.
+func (w *Writer) SetUncertainty(robust bool) { w.Uncertainty, w.kinds = &robust, nil }

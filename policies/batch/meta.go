@@ -48,6 +48,10 @@ type Meta struct {
 	// appear only when they differ from the plain form (decimal point,
 	// full precision), so plain files keep their header record.
 	Cells Format
+	// Uncertainty describes the resampling of a run with --uncertainty
+	// (e.g. "iid,resamples=200,seed=1"); "" for a plain run, whose record
+	// and run digest then stay as they were.
+	Uncertainty string
 }
 
 // NewDigest returns the hash whose sum DigestSum prints.
@@ -61,6 +65,9 @@ func (m Meta) RunDigest() string {
 	h := NewDigest()
 	fmt.Fprintf(h, "ergostock results v%d\nperiod=%s\nitems=%s\nhistory=%s\nmax_states=%d\nversion=%s\n",
 		m.Format, m.Period, m.Items, m.History, m.MaxStates, m.Version)
+	if m.Uncertainty != "" {
+		fmt.Fprintf(h, "uncertainty=%s\n", m.Uncertainty)
+	}
 	return DigestSum(h)
 }
 
@@ -68,6 +75,9 @@ func (m Meta) RunDigest() string {
 func (m Meta) String() string {
 	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
 		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version)
+	if m.Uncertainty != "" {
+		s += "; uncertainty=" + m.Uncertainty
+	}
 	if m.ItemCount > 0 {
 		s += fmt.Sprintf("; item_count=%d", m.ItemCount)
 	}
@@ -133,6 +143,8 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			if d, err := strconv.Atoi(val); err == nil && d > 0 && d <= MaxDigits {
 				m.Cells.Digits = d
 			}
+		case "uncertainty":
+			m.Uncertainty = val
 		}
 	}
 	if m.Period == "" || m.Items == "" {

@@ -50,6 +50,9 @@ type Row struct {
 	Err      error // why the item failed; nil when it did not
 
 	Carried []string // the item's carried columns (see Carry), last in the row
+	// Uncertainty holds the resampling cells of a run with --uncertainty
+	// (see UncertaintyHeader); nil otherwise or when the analysis failed.
+	Uncertainty *UncertaintyCells
 }
 
 // SetTiming records the lead time, the lead-time model and the review
@@ -103,6 +106,10 @@ type Writer struct {
 	format  Format     // how cells are written (see NewFormatWriter)
 	kinds   []CellKind // of the header's columns, when format is not plain
 	started bool       // the byte-order mark, if any, is written
+	// Uncertainty, when not nil, appends the columns of
+	// UncertaintyHeader(*Uncertainty) after the standard ones (true: with
+	// the robust policy's); nil keeps the plain file.
+	Uncertainty *bool
 }
 
 // NewWriter returns a Writer on w; call WriteMeta (optional) and
@@ -137,6 +144,9 @@ func (w *Writer) WriteHeader() error {
 // Write writes one row.
 func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
+	if w.Uncertainty != nil {
+		w.rec = r.Uncertainty.appendCells(w.rec, *w.Uncertainty)
+	}
 	w.rec = appendCarried(w.rec, r.Carried, len(w.carry))
 	if !w.format.Plain() {
 		if w.kinds == nil {

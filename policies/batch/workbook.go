@@ -45,6 +45,7 @@ type WorkbookWriter struct {
 	warns  [][]any        // rows of the warnings sheet
 	meta   *Meta
 	carry  []string // carried item columns
+	unc    *bool    // the --uncertainty columns, with the robust policy's if true
 	rec    []string
 	err    error
 }
@@ -94,6 +95,9 @@ func displayFormat(name string, k CellKind) string {
 	return fmtQuantity
 }
 
+// SetUncertainty adds the --uncertainty columns, as Writer.SetUncertainty.
+func (w *WorkbookWriter) SetUncertainty(robust bool) { w.unc = &robust }
+
 // Carry names the item columns carried to the results, as Writer.Carry.
 func (w *WorkbookWriter) Carry(names []string) { w.carry = names }
 
@@ -121,7 +125,11 @@ func (w *WorkbookWriter) WriteHeader() error {
 	if err != nil {
 		return w.fail(err)
 	}
-	w.header = append(Header(), w.carry...)
+	w.header = Header()
+	if w.unc != nil {
+		w.header = append(w.header, UncertaintyHeader(*w.unc)...)
+	}
+	w.header = append(w.header, w.carry...)
 	w.kinds = make([]CellKind, len(w.header))
 	w.styles = map[string]int{}
 	cells := make([]any, len(w.header))
@@ -165,6 +173,9 @@ func (w *WorkbookWriter) Write(r *Row) error {
 		return w.fail(fmt.Errorf("a worksheet holds at most %d rows: write the results of %d or more items as CSV", maxSheetRows, maxSheetRows))
 	}
 	w.rec = r.appendRecord(w.rec[:0])
+	if w.unc != nil {
+		w.rec = r.Uncertainty.appendCells(w.rec, *w.unc)
+	}
 	w.rec = appendCarried(w.rec, r.Carried, len(w.carry))
 	cells := make([]any, len(w.rec))
 	for i, s := range w.rec {

@@ -40,6 +40,8 @@ type batchView struct {
 	Warnings       []skuMessage
 	LeftOut        []string
 	Notes          []string
+	Regret         []regretRow // items ranked by regret (--uncertainty runs)
+	RegretNote     string
 	// Timing holds the cautions of random lead times and review periods
 	// (see skuView); empty: the line of a fixed lead time.
 	Timing []string
@@ -59,6 +61,13 @@ var batchTemplate = mustTemplate("batch", `{{template "head" .}}
 {{if .LeftOut}}<p>Left out of the exchange curve:</p>
 <ul>{{range .LeftOut}}<li>{{.}}</li>{{end}}</ul>{{end}}
 {{if .Notes}}<ul>{{range .Notes}}<li>{{.}}</li>{{end}}</ul>{{end}}
+{{if .Regret}}<h2 id="regret">Where more history pays: items ranked by regret</h2>
+<p>{{.RegretNote}}</p>
+<table class="items">
+<thead><tr><th>SKU</th><th>pattern</th><th>levels</th><th class="num">regret, mean</th><th class="num">regret, 95%</th><th class="num">fill rate, point model</th><th class="num">fill rate to expect</th><th class="num">fill rate, 5%</th><th>reorder point band</th></tr></thead>
+<tbody>
+{{range .Regret}}<tr><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="lv">{{.Levels}}</td><td class="num">{{.Mean}}</td><td class="num">{{.P95}}</td><td class="num">{{.Fill}}</td><td class="num">{{.Expected}}</td><td class="num">{{.FillP05}}</td><td class="lv">{{.Band}}</td></tr>
+{{end}}</tbody></table>{{end}}
 <h2 id="items" class="pagebreak">Items</h2>
 <p>One row per item, in the order of the results file{{if .Sortable}}; click a column head to sort (optional script){{end}}. Costs are per period; the saving is the current policy's total cost minus the recommended one's.</p>
 <table class="items sortable">
@@ -216,6 +225,7 @@ func (pg *BatchPage) view() batchView {
 	} else {
 		v.Notes = append(v.Notes, "The exchange curve needs the items file (--items), to re-optimise every item under common fill-rate targets.")
 	}
+	v.Regret, v.RegretNote = regretRows(in.Rows)
 	return v
 }
 

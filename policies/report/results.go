@@ -34,6 +34,9 @@ type ResultRow struct {
 	CurrentFillRate *float64
 	Warnings        []string
 	Err             string
+	// Uncertainty holds the resampling columns of a run with
+	// --uncertainty; nil without them or for an item without figures.
+	Uncertainty *ResultUncertainty
 	// The timing the item was planned under (columns lead_time,
 	// lead_time_model and review_period, see batch.TimingColumns); empty
 	// and 0 in files written before they were added.
@@ -315,6 +318,11 @@ func readResultsTable(tr *tabular.Reader, res *Results) (*Results, error) {
 			return nil, err
 		} else if ok {
 			row.CurrentFillRate = &v
+		}
+		if u, err := readUncertainty(col, number); err != nil {
+			return nil, err
+		} else {
+			row.Uncertainty = u
 		}
 		rows = append(rows, row)
 	}

@@ -11,6 +11,7 @@ import (
 
 	"ergostock/inventory"
 	"ergostock/policies"
+	"ergostock/policies/uncertainty"
 )
 
 // SKUInput is what the page for one SKU is built from.
@@ -31,6 +32,11 @@ type SKUInput struct {
 	// table; it is called for the recommended and the current policy.
 	Simulate func(policies.Policy) (*Simulated, error)
 	Version  string // of the program, for the page footer
+	// Uncertainty, when set, is the resampling analysis of the SKU
+	// (policies/uncertainty.Analyze, with its resamples kept): the page
+	// adds the level distribution's spread over the resampled models and
+	// the fill rate of the recommendation as a distribution.
+	Uncertainty *uncertainty.Result
 }
 
 // History is the demand history of one SKU with its fitted model.

@@ -202,6 +202,7 @@ func (pg *SKUPage) render() {
 		}
 	}
 	pg.leadTimeChart(add)
+	pg.renderUncertainty()
 }
 
 // leadTimeChart adds the chart of the lead-time law, drawn beside the
