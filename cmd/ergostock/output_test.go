@@ -349,3 +349,28 @@ func TestBatchCarry(t *testing.T) {
 		t.Error("a refused run wrote its results")
 	}
 }
+
+// The --uncertainty columns read back the same from a decimal-comma file
+// and from a workbook (to 15 digits) as from the plain file.
+func TestBatchOutUncertaintyDialects(t *testing.T) {
+	dir := t.TempDir()
+	args := []string{"--shard", "0/60", "--uncertainty", "--resamples", "8", "--seed", "3"}
+	plain, semi, book := filepath.Join(dir, "p.csv"), filepath.Join(dir, "s.csv"), filepath.Join(dir, "b.xlsx")
+	batchTo(t, 0, plain, args...)
+	batchTo(t, 0, semi, append(args, "--out-delimiter", ";", "--out-decimal", ",")...)
+	batchTo(t, 0, book, args...)
+	want, got := readResultsFileT(t, plain), readResultsFileT(t, semi)
+	if !reflect.DeepEqual(got.Rows, want.Rows) {
+		t.Fatal("the decimal-comma file reads back other rows than the plain one")
+	}
+	wb := readResultsFileT(t, book)
+	for i, r := range wb.Rows {
+		w := want.Rows[i]
+		if (r.Uncertainty == nil) != (w.Uncertainty == nil) {
+			t.Fatalf("%s: uncertainty %v, want %v", r.SKU, r.Uncertainty, w.Uncertainty)
+		}
+	}
+	if want.Rows[0].Uncertainty == nil {
+		t.Error("no uncertainty columns read")
+	}
+}
