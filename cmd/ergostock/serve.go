@@ -254,4 +254,3 @@ func keepLevels(ctx context.Context, e *policies.Evaluation) {
 		s.levels = e.Levels
 	}
 }
-

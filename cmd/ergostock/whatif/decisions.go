@@ -154,14 +154,14 @@ func (s *Server) decisions(w http.ResponseWriter, r *http.Request) {
 // decisionRequest is the body of POST /api/decisions. Version is the
 // version of the SKU's latest decision the page showed (0: none).
 type decisionRequest struct {
-	SKU           string  `json:"sku"`
-	Decision      string  `json:"decision"`
-	Version       *int    `json:"version"`
-	Note          string  `json:"note"`
-	Policy        string  `json:"policy"`
-	ReorderPoint  *int    `json:"reorder_point"`
-	OrderUpTo     *int    `json:"order_up_to"`
-	OrderMultiple *int    `json:"order_multiple"`
+	SKU           string `json:"sku"`
+	Decision      string `json:"decision"`
+	Version       *int   `json:"version"`
+	Note          string `json:"note"`
+	Policy        string `json:"policy"`
+	ReorderPoint  *int   `json:"reorder_point"`
+	OrderUpTo     *int   `json:"order_up_to"`
+	OrderMultiple *int   `json:"order_multiple"`
 }
 
 // maxNote is the longest note kept, in bytes.

@@ -129,7 +129,6 @@ func (s *Server) ServeHTTP(w http.ResponseWriter, r *http.Request) {
 	s.mux.ServeHTTP(w, r)
 }
 
-
 // localHost reports whether a Host header names this machine's loopback.
 func localHost(host string) bool {
 	h := host
