@@ -78,6 +78,7 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
+			&cli.StringFlag{Name: "decisions", Usage: "decisions file of ergostock serve: each SKU's latest decision becomes its policy in use"},
 		},
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
@@ -201,6 +202,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return err
 	}
 	meta.Items = digest
+	if err := applyDecisionsFile(c.String("decisions"), items, stderr); err != nil {
+		return err
+	}
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
 		h, digest, err := readHistoryFile(ctx, histPath, period)
