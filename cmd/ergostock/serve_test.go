@@ -10,6 +10,7 @@ import (
 	"net/http/httptest"
 	"os"
 	"path/filepath"
+	"reflect"
 	"regexp"
 	"strconv"
 	"strings"
@@ -248,6 +249,7 @@ func TestServeLevels(t *testing.T) {
 		Min          int
 		P            []float64
 		Below, Above float64
+		Evaluation   map[string]any
 	}
 	if err := json.Unmarshal(rec.Body.Bytes(), &l); err != nil || rec.Code != 200 {
 		t.Fatalf("%d %s", rec.Code, rec.Body.String())
@@ -256,6 +258,9 @@ func TestServeLevels(t *testing.T) {
 	var f struct{ MeanOnHand, StockoutProbability float64 }
 	var raw map[string]any
 	json.Unmarshal(e.Body.Bytes(), &raw)
+	if !reflect.DeepEqual(raw, l.Evaluation) {
+		t.Errorf("levels' evaluation differs from POST /api/evaluate:\n%v\n%v", l.Evaluation, raw)
+	}
 	f.MeanOnHand, f.StockoutProbability = raw["mean_on_hand"].(float64), raw["stockout_probability"].(float64)
 	sum, onHand, short := l.Below+l.Above, 0.0, 0.0
 	for i, p := range l.P {
@@ -442,7 +447,8 @@ func TestServeConcurrentDecisions(t *testing.T) {
 
 // BenchmarkServeEvaluate10k times POST /api/evaluate (the handler, the
 // command's flag parsing and the exact evaluation) and GET /api/levels on
-// an s-S chain of 10,000 states: what the page asks for at each change.
+// an s-S chain of 10,000 states, and POST /api/evaluate on a lost-sales
+// chain of 9,591 states: what the page asks for at each change.
 func BenchmarkServeEvaluate10k(b *testing.B) {
 	srv, _, _ := newServeHandler(b)
 	body := `{"demand":"poisson:mean=40","lead_time":2,"holding_cost":1,"shortage_cost":20,"order_cost":50,"reorder_point":100,"order_up_to":10100}`
@@ -453,6 +459,14 @@ func BenchmarkServeEvaluate10k(b *testing.B) {
 	b.Run("evaluate", func(b *testing.B) {
 		for b.Loop() {
 			if rec := post(b, srv, "/api/evaluate", body); rec.Code != 200 {
+				b.Fatal(rec.Body.String())
+			}
+		}
+	})
+	lost := `{"demand":"poisson:mean=47","lead_time":2,"unmet":"lost","holding_cost":1,"shortage_cost":20,"order_up_to":140}`
+	b.Run("evaluate-lost", func(b *testing.B) { // 9,591 states of on-hand and pipeline
+		for b.Loop() {
+			if rec := post(b, srv, "/api/evaluate", lost); rec.Code != 200 {
 				b.Fatal(rec.Body.String())
 			}
 		}

@@ -17,7 +17,8 @@
 //	GET  /api/items/{sku}      one item: inputs, levels, history, fit
 //	POST /api/evaluate         evaluate's JSON for the request's inputs
 //	POST /api/optimize         optimize's JSON for the request's inputs
-//	GET  /api/levels?...       stationary stock-level law for the inputs
+//	GET  /api/levels?...       stationary stock-level law for the inputs,
+//	                           with evaluate's answer beside it
 //	GET  /api/decisions        the latest decision of every SKU
 //	POST /api/decisions        record a decision (409 when stale)
 //

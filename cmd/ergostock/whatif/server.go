@@ -232,13 +232,18 @@ func (s *Server) run(command string) http.HandlerFunc {
 	}
 }
 
-// levelsJSON is the stationary law of the stock level for the chart.
+// levelsJSON is the stationary law of the stock level for the chart,
+// P(level = Min + k) = P[k], with the mass Below and Above the levels
+// listed, and the evaluation it comes from (what POST /api/evaluate
+// answers for the same inputs), so that the page needs one request a
+// change.
 type levelsJSON struct {
-	Of    policies.Level `json:"of"`
-	Min   int            `json:"min"`
-	P     []float64      `json:"p"`
-	Below float64        `json:"below"`
-	Above float64        `json:"above"`
+	Of         policies.Level  `json:"of"`
+	Min        int             `json:"min"`
+	P          []float64       `json:"p"`
+	Below      float64         `json:"below"`
+	Above      float64         `json:"above"`
+	Evaluation json.RawMessage `json:"evaluation"`
 }
 
 // levels is GET /api/levels with evaluate's request names as parameters.
@@ -258,5 +263,5 @@ func (s *Server) levels(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	l := a.Levels
-	writeJSON(w, http.StatusOK, levelsJSON{Of: l.Of, Min: l.Min, P: l.P, Below: l.Below, Above: l.Above})
+	writeJSON(w, http.StatusOK, levelsJSON{Of: l.Of, Min: l.Min, P: l.P, Below: l.Below, Above: l.Above, Evaluation: a.JSON})
 }

@@ -228,7 +228,8 @@ async function evaluate() {
   fig.dataset.state = "pending";
   const t0 = performance.now();
   const q = new URLSearchParams(req).toString();
-  const [r, lv] = await Promise.all([api("POST", "/api/evaluate", req), api("GET", "/api/levels?" + q)]);
+  // One request: the stock-level law comes with evaluate's answer.
+  const r = await api("GET", "/api/levels?" + q);
   if (seq !== state.seq) return;
   if (!r.ok) {
     fig.dataset.state = "error";
@@ -237,9 +238,10 @@ async function evaluate() {
     return;
   }
   markInvalid("");
-  drawFigures(r.data, req);
-  if (lv.ok) drawLevels(lv.data, r.data);
-  setStatus("evaluated exactly: " + r.data.states + " states, solver " + r.data.diagnostics.method + ", in " + Math.round(performance.now() - t0) + " ms", false);
+  const e = r.data.evaluation;
+  drawFigures(e, req);
+  drawLevels(r.data, e);
+  setStatus("evaluated exactly: " + e.states + " states, solver " + e.diagnostics.method + ", in " + Math.round(performance.now() - t0) + " ms", false);
 }
 
 function drawFigures(e, req) {
