@@ -16,6 +16,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"time"
 
 	"ergostock/cmd/ergostock/whatif"
 	"ergostock/policies/batch"
@@ -481,4 +482,79 @@ func BenchmarkServeEvaluate10k(b *testing.B) {
 			}
 		}
 	})
+}
+
+// TestServeTimeout: an evaluation past the server's budget is stopped
+// and answered 503; the server goes on.
+func TestServeTimeout(t *testing.T) {
+	dir, items, hist, results := serveFixture(t)
+	cfg, err := serveConfig(context.Background(), results, items, hist, filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cfg.Timeout = time.Millisecond
+	srv, err := whatif.New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// A lost-sales chain of about 40,000 states: far more than 1 ms.
+	rec := post(t, srv, "/api/evaluate", `{"demand":"poisson:mean=15","lead_time":3,"unmet":"lost","holding_cost":1,"shortage_cost":20,"order_up_to":60}`)
+	if rec.Code != http.StatusServiceUnavailable || !strings.Contains(rec.Body.String(), "evaluate: stopped after 1ms") {
+		t.Errorf("%d %s", rec.Code, rec.Body.String())
+	}
+}
+
+// TestServeRegret: a regret column in the results reaches the list.
+func TestServeRegret(t *testing.T) {
+	dir, items, hist, results := serveFixture(t)
+	b, err := os.ReadFile(results)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSuffix(string(b), "\n"), "\n")
+	for i := 1; i < len(lines); i++ {
+		switch {
+		case i == 1:
+			lines[i] += ",regret"
+		case strings.HasPrefix(lines[i], "GLOVE-NITRILE-S,"):
+			lines[i] += ",2.5"
+		default:
+			lines[i] += ","
+		}
+	}
+	withRegret := filepath.Join(dir, "regret.csv")
+	if err := os.WriteFile(withRegret, []byte(strings.Join(lines, "\n")+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cfg, err := serveConfig(context.Background(), withRegret, items, hist, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv, err := whatif.New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec := httptest.NewRecorder()
+	srv.ServeHTTP(rec, httptest.NewRequest("GET", "http://127.0.0.1/api/items", nil))
+	var got struct {
+		Uncertainty bool
+		Items       []struct {
+			SKU    string
+			Regret *float64
+		}
+	}
+	if err := json.Unmarshal(rec.Body.Bytes(), &got); err != nil {
+		t.Fatal(err)
+	}
+	if !got.Uncertainty {
+		t.Errorf("uncertainty not shown")
+	}
+	for _, it := range got.Items {
+		if (it.SKU == "GLOVE-NITRILE-S") != (it.Regret != nil) || it.Regret != nil && *it.Regret != 2.5 {
+			t.Errorf("%s: regret %v", it.SKU, it.Regret)
+		}
+	}
+	if d := cfg.Decisions; filepath.Base(d) != "regret-decisions.csv" {
+		t.Errorf("default decisions file %s", d)
+	}
 }
