@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bufio"
 	"bytes"
 	"context"
 	"encoding/csv"
@@ -9,6 +10,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"reflect"
 	"regexp"
@@ -556,5 +558,83 @@ func TestServeRegret(t *testing.T) {
 	}
 	if d := cfg.Decisions; filepath.Base(d) != "regret-decisions.csv" {
 		t.Errorf("default decisions file %s", d)
+	}
+}
+
+// TestServeSignal runs the built binary: it listens on a free loopback
+// port, records a decision, and on SIGINT stops with status 0, the
+// decision in the file.
+func TestServeSignal(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the binary")
+	}
+	bin := buildBinary(t)
+	dir, items, hist, results := serveFixture(t)
+	decisions := filepath.Join(dir, "d.csv")
+	cmd := exec.Command(bin, "serve", "--results", results, "--items", items, "--history", hist,
+		"--addr", "127.0.0.1:0", "--decisions", decisions)
+	stderr, err := cmd.StderrPipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	done := make(chan error, 1)
+	t.Cleanup(func() {
+		if cmd.ProcessState == nil {
+			cmd.Process.Kill()
+			<-done
+		}
+	})
+	lines := make(chan string, 16)
+	go func() {
+		sc := bufio.NewScanner(stderr)
+		for sc.Scan() {
+			lines <- sc.Text()
+		}
+		close(lines)
+		done <- cmd.Wait()
+	}()
+	var addr string
+	timeout := time.After(60 * time.Second)
+	for addr == "" {
+		select {
+		case l, ok := <-lines:
+			if !ok {
+				t.Fatal("serve ended before listening")
+			}
+			if i := strings.Index(l, "http://"); i >= 0 {
+				addr = strings.SplitN(l[i+len("http://"):], "/", 2)[0]
+			}
+		case <-timeout:
+			t.Fatal("serve did not listen within 60 s")
+		}
+	}
+	resp, err := http.Post("http://"+addr+"/api/decisions", "application/json",
+		strings.NewReader(`{"sku":"GLOVE-NITRILE-S","decision":"keep","version":0,"note":"packs of 25 stay"}`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	resp.Body.Close()
+	if resp.StatusCode != 200 {
+		t.Fatalf("decision: status %d", resp.StatusCode)
+	}
+	if err := cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+	var rest []string
+	for l := range lines {
+		rest = append(rest, l)
+	}
+	if err := <-done; err != nil {
+		t.Errorf("serve after SIGINT: %v (%s)", err, strings.Join(rest, " | "))
+	}
+	if !strings.Contains(strings.Join(rest, "\n"), "stopped; decisions in") {
+		t.Errorf("stderr after SIGINT: %q", rest)
+	}
+	b, err := os.ReadFile(decisions)
+	if err != nil || !strings.Contains(string(b), "GLOVE-NITRILE-S,1,keep,s-nQ,28,,25,packs of 25 stay,") {
+		t.Errorf("decisions file: %q %v", b, err)
 	}
 }
