@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"net/http"
 	"net/url"
 	"regexp"
 	"sort"
@@ -54,8 +55,8 @@ func decodeObject(r io.Reader) (map[string]json.RawMessage, error) {
 	dec := json.NewDecoder(r)
 	var obj map[string]json.RawMessage
 	if err := dec.Decode(&obj); err != nil {
-		var mbe interface{ Error() string }
-		if errors.As(err, &mbe) && strings.Contains(err.Error(), "request body too large") {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
 			return nil, &requestError{status: 413, msg: "request body too large: want at most " + fmt.Sprint(maxBody) + " bytes"}
 		}
 		if err == io.EOF {
@@ -67,7 +68,8 @@ func decodeObject(r io.Reader) (map[string]json.RawMessage, error) {
 		return nil, badRequest("request body: want a JSON object, not null")
 	}
 	if _, err := dec.Token(); err != io.EOF {
-		if err != nil && strings.Contains(err.Error(), "request body too large") {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
 			return nil, &requestError{status: 413, msg: "request body too large: want at most " + fmt.Sprint(maxBody) + " bytes"}
 		}
 		return nil, badRequest("request body: want one JSON object and nothing after it")

@@ -98,6 +98,11 @@ func New(cfg Config) (*Server, error) {
 	s.mux.HandleFunc("GET /api/levels", s.levels)
 	s.mux.HandleFunc("GET /api/decisions", s.decisions)
 	s.mux.HandleFunc("POST /api/decisions", s.decide)
+	noAPI := func(w http.ResponseWriter, r *http.Request) {
+		s.fail(w, r, http.StatusNotFound, fmt.Sprintf("%s %s: no such endpoint (see the package documentation of ergostock/cmd/ergostock/whatif)", r.Method, r.URL.Path))
+	}
+	s.mux.HandleFunc("GET /api/", noAPI)
+	s.mux.HandleFunc("POST /api/", noAPI)
 	return s, nil
 }
 
