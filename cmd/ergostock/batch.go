@@ -68,8 +68,8 @@ func batchCommand() *cli.Command {
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
 		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D]",
-		Description: batchDescription,
-		Flags: []cli.Flag{
+		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced.",
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
 			&cli.StringFlag{Name: "out", Usage: "results file (CSV) to write; - writes the results to stdout", Required: true},
@@ -79,7 +79,7 @@ func batchCommand() *cli.Command {
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
 			&cli.StringFlag{Name: "decisions", Usage: "decisions file of ergostock serve: each SKU's latest decision becomes its policy in use"},
-		},
+		}, receiptsFlags()...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -135,8 +135,19 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return usageErr("--%v", err)
 	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
+	receiptsPath := c.String("receipts")
+	if c.IsSet("receipts") && receiptsPath == "" {
+		return usageErr("--receipts: want the receipts file")
+	}
+	if receiptsPath == "-" {
+		return usageErr("--receipts -: batch reads the receipts from a file, not standard input")
+	}
+	ropt, err := receiptsOptions(c, period)
+	if err != nil {
+		return err
+	}
 	toStdout := outPath == "-"
-	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}} {
+	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}, {"receipts", receiptsPath}} {
 		if in.path != "" && !toStdout && sameFile(in.path, outPath) {
 			return usageErr("--out %s: it is the --%s file; choose another results file", outPath, in.flag)
 		}
@@ -229,6 +240,31 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		}
 	}
 	meta.Run = meta.RunDigest()
+	var leadNotes map[int][]string
+	if receiptsPath != "" {
+		rf, digest, err := readReceiptsFile(ctx, nil, receiptsPath, ropt)
+		if e := interrupted(); e != nil {
+			return e
+		}
+		if err != nil {
+			return err
+		}
+		if err := receiptsNoLaw(rf); err != nil {
+			return err
+		}
+		if n := len(rf.Errors); n > 0 {
+			fmt.Fprintf(stderr, "ergostock: %s: %d receipt rows without a sku skipped, first %v\n", receiptsPath, n, rf.Errors[0])
+		}
+		var tally receiptsTally
+		leadNotes, tally = applyReceipts(items, rf)
+		fmt.Fprintf(stderr, "ergostock: %s (%s; lead times in %s periods): lead-time laws set for %d items; lead_time kept for %d items on too few receipts and %d items without receipts; %d SKUs of the receipts match no item planned in this run\n",
+			receiptsPath, rf.Dialect, rf.Period, tally.set, tally.kept, tally.without, tally.unmatched)
+		// The receipts shape the figures: they join the run digest, so
+		// shards planned with other receipts do not join this run.
+		h := batch.NewDigest()
+		fmt.Fprintf(h, "run=%s\nreceipts=%s\n", meta.Run, digest)
+		meta.Run = batch.DigestSum(h)
+	}
 
 	var bar *progressbar.ProgressBar
 	if isTerminal(stderr) && len(items) > 0 {
@@ -252,6 +288,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err == nil {
 		err = planner.PlanAll(ctx, items, batch.RunOptions{Workers: workers, ItemTimeout: timeout},
 			func(r *batch.Row) error {
+				if n := leadNotes[r.Item]; len(n) > 0 {
+					r.Warnings = append(append([]string(nil), n...), r.Warnings...)
+				}
 				sum.add(r)
 				if bar != nil {
 					bar.Add(1)

@@ -30,6 +30,16 @@ policy of --policy (default s-S). --history FILE --sku ID adds the demand
 history and the fitted distribution over its histogram; without --demand the
 fitted model is used. --simulate adds the exact-versus-simulated table.
 
+Random lead times and review periods (--lead-time LAW, --lead-time-model,
+--review-period R) are shown in the item table, the law is drawn beside the
+demand history, and the page's cautions state the model: under sequential
+deliveries orders arrive in the order placed (Kaplan 1970), under
+independent each order draws its own lead time and may overtake another;
+with a review period orders are placed only every R periods while costs and
+figures stay per period. The cost map is then evaluated cell by cell on the
+exact chain, and left out for independent lead times (its s-S and s-nQ
+cells have no exact figures).
+
 A batch: --results FILE (written by ergostock batch) gives the table of
 items, the saving by demand pattern, and the warnings and errors; with
 --items FILE (the batch's items file) also the exchange curve, which

@@ -85,6 +85,7 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 		return row
 	}
 	sys := it.System
+	row.SetTiming(sys)
 	if sys.Demand != nil && p.Pattern != nil {
 		SetStage(ctx, "reading the demand pattern")
 		row.Pattern = p.Pattern(it.SKU)

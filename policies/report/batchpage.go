@@ -5,6 +5,7 @@ import (
 	"io"
 	"strconv"
 
+	"ergostock/inventory"
 	"ergostock/inventory/history"
 	"ergostock/policies"
 )
@@ -38,6 +39,9 @@ type batchView struct {
 	Warnings       []skuMessage
 	LeftOut        []string
 	Notes          []string
+	// Timing holds the cautions of random lead times and review periods
+	// (see skuView); empty: the line of a fixed lead time.
+	Timing []string
 }
 
 var batchTemplate = mustTemplate("batch", `{{template "head" .}}
@@ -193,6 +197,7 @@ func (pg *BatchPage) view() batchView {
 	if demand > 0 {
 		v.Totals = append(v.Totals, kv{"aggregate fill rate of the recommendations (demand-weighted)", pct(served / demand)})
 	}
+	v.Timing = batchTimingCautions(in.Rows)
 	if ex := pg.Exchange; ex != nil {
 		v.LeftOut = ex.LeftOut
 		if len(v.LeftOut) > 25 {
@@ -203,6 +208,41 @@ func (pg *BatchPage) view() batchView {
 		v.Notes = append(v.Notes, "The exchange curve needs the items file (--items), to re-optimise every item under common fill-rate targets.")
 	}
 	return v
+}
+
+// batchTimingCautions states the lead-time assumptions of a batch whose
+// rows carry a lead-time law or a review period above 1 (the columns
+// lead_time, lead_time_model, review_period); nil when every row has a
+// fixed lead time reviewed every period, or the file predates the columns.
+func batchTimingCautions(rows []ResultRow) []string {
+	var laws, indep, reviews int
+	for _, r := range rows {
+		if r.LeadTime != "" {
+			if _, law, err := inventory.ParseLeadTime(r.LeadTime); err == nil && law != nil {
+				laws++
+				if r.LeadTimeModel == string(inventory.Independent) {
+					indep++
+				}
+			}
+		}
+		if r.ReviewPeriod > 1 {
+			reviews++
+		}
+	}
+	if laws == 0 && reviews == 0 {
+		return nil
+	}
+	c := []string{"Lead times are as in each row's lead_time column: a whole number of periods, or a random lead time with the law given there, independent of demand; suppliers always deliver in full."}
+	if laws > indep {
+		c = append(c, fmt.Sprintf("Random lead times with sequential deliveries (Kaplan 1970) for %s: orders arrive in the order placed.", plural(laws-indep, "item")))
+	}
+	if indep > 0 {
+		c = append(c, fmt.Sprintf("Independent lead times for %s: each order draws its own, and a later order may arrive first.", plural(indep, "item")))
+	}
+	if reviews > 0 {
+		c = append(c, fmt.Sprintf("Review only every few periods (review_period) for %s: orders are placed only at reviews, and costs and figures stay per period.", plural(reviews, "item")))
+	}
+	return c
 }
 
 func levels(p policies.Policy) string {
