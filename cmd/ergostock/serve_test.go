@@ -638,3 +638,93 @@ func TestServeSignal(t *testing.T) {
 		t.Errorf("decisions file: %q %v", b, err)
 	}
 }
+
+// checkInputs: for every item, the inputs the page starts from with the
+// recommended levels give the recommended figures of the results, so the
+// page shows the item as the batch planned it.
+func checkInputs(t *testing.T, srv http.Handler) {
+	t.Helper()
+	rec := httptest.NewRecorder()
+	srv.ServeHTTP(rec, httptest.NewRequest("GET", "http://127.0.0.1/api/items", nil))
+	var list struct{ Items []struct{ SKU string } }
+	if err := json.Unmarshal(rec.Body.Bytes(), &list); err != nil || len(list.Items) == 0 {
+		t.Fatalf("items: %v %s", err, rec.Body.String())
+	}
+	for _, it := range list.Items {
+		rec := httptest.NewRecorder()
+		srv.ServeHTTP(rec, httptest.NewRequest("GET", "http://127.0.0.1/api/items/"+it.SKU, nil))
+		var d struct {
+			Inputs             map[string]string
+			Recommended        map[string]any
+			RecommendedFigures map[string]float64 `json:"recommended_figures"`
+			Error              string
+		}
+		if err := json.Unmarshal(rec.Body.Bytes(), &d); err != nil {
+			t.Fatal(err)
+		}
+		if d.Error != "" {
+			continue
+		}
+		req := map[string]any{}
+		for k, v := range d.Inputs {
+			if k != "policy" && k != "min_fill_rate" {
+				req[k] = v
+			}
+		}
+		for k, v := range d.Recommended {
+			if k != "type" {
+				req[k] = v
+			}
+		}
+		body, _ := json.Marshal(req)
+		e := post(t, srv, "/api/evaluate", string(body))
+		var got map[string]any
+		if err := json.Unmarshal(e.Body.Bytes(), &got); err != nil || e.Code != 200 {
+			t.Fatalf("%s: %d %s", it.SKU, e.Code, e.Body.String())
+		}
+		for k, w := range d.RecommendedFigures {
+			if g := got[k].(float64); math.Abs(g-w) > 1e-9*math.Max(1, math.Abs(w)) {
+				t.Errorf("%s: %s %v from the inputs, %v in the results", it.SKU, k, g, w)
+			}
+		}
+	}
+}
+
+func TestServeInputsReproduceResults(t *testing.T) {
+	srv, _, _ := newServeHandler(t)
+	checkInputs(t, srv)
+}
+
+// TestServeReceiptsTiming: an item planned with a lead-time law from
+// receipts starts from that law, not the items file's whole number.
+func TestServeReceiptsTiming(t *testing.T) {
+	dir := t.TempDir()
+	items := filepath.Join(dir, "items.csv")
+	const row = "GLOVE-NITRILE-M,2,0.0356,2.68,100.08,7.4,,s-nQ,,,87,,10\n"
+	if err := os.WriteFile(items, []byte(strings.SplitN(serveItems, "\n", 2)[0]+"\n"+row), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	hist := filepath.Join("..", "..", "data", "history.csv")
+	results := filepath.Join(dir, "results.csv")
+	var stderr bytes.Buffer
+	if code := run([]string{"ergostock", "batch", "--items", items, "--history", hist, "--receipts", filepath.Join("..", "..", "data", "receipts.csv"),
+		"--out", results, "--workers", "1"}, nil, &bytes.Buffer{}, &stderr); code != 0 {
+		t.Fatalf("batch exit %d: %s", code, stderr.String())
+	}
+	cfg, err := serveConfig(context.Background(), results, items, hist, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv, err := whatif.New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec := httptest.NewRecorder()
+	srv.ServeHTTP(rec, httptest.NewRequest("GET", "http://127.0.0.1/api/items/GLOVE-NITRILE-M", nil))
+	var d struct{ Inputs map[string]string }
+	json.Unmarshal(rec.Body.Bytes(), &d)
+	if !strings.Contains(d.Inputs["lead_time"], ":") {
+		t.Errorf("lead_time input %q, want the law from the receipts", d.Inputs["lead_time"])
+	}
+	checkInputs(t, srv)
+}

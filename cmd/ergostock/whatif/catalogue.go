@@ -96,7 +96,11 @@ type Summary struct {
 }
 
 // NewCatalogue joins the results rows with the items (by SKU; the first
-// item of a SKU counts) and the history (nil when there is none). regret,
+// item of a SKU counts) and the history (nil when there is none). The
+// inputs of an item are its costs and mode from the items file, the
+// demand law of the results, and the lead time, lead-time model and
+// review period of the results when they give them (else the items
+// file's). regret,
 // when not nil, holds the regret of each results row.
 func NewCatalogue(rows []report.ResultRow, regret []*float64, items []batch.Item, h *history.History, period string) *Catalogue {
 	c := &Catalogue{Period: period, bySKU: map[string]*entry{}, hist: map[string]*history.SKU{}, h: h, Uncertainty: regret != nil}
@@ -168,6 +172,18 @@ func NewCatalogue(rows []report.ResultRow, regret []*float64, items []batch.Item
 				e.current = &p
 				e.Current = policyJSON(&p)
 			}
+		}
+		// The timing the batch planned under (a law from receipts, say)
+		// comes before the items file's.
+		if r.LeadTime != "" {
+			e.inputs["lead_time"] = r.LeadTime
+			delete(e.inputs, "lead_time_model")
+			if r.LeadTimeModel != "" && strings.Contains(r.LeadTime, ":") {
+				e.inputs["lead_time_model"] = r.LeadTimeModel
+			}
+		}
+		if r.ReviewPeriod > 1 {
+			e.inputs["review_period"] = strconv.Itoa(r.ReviewPeriod)
 		}
 		c.entries = append(c.entries, e)
 		c.bySKU[r.SKU] = e
