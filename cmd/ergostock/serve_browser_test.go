@@ -13,6 +13,8 @@ import (
 	"testing"
 	"time"
 
+	"github.com/chromedp/cdproto/cdp"
+	"github.com/chromedp/cdproto/emulation"
 	"github.com/chromedp/chromedp"
 
 	"ergostock/policies/batch"
@@ -149,6 +151,48 @@ func TestServeBrowser(t *testing.T) {
 			t.Errorf("%s: page %s, evaluate %s", f, got, w)
 		}
 	}
+
+	// Every control has a label; the list sorts from the keyboard.
+	type access struct {
+		Unlabelled []string `json:"unlabelled"`
+		Sort       string   `json:"sort"`
+	}
+	acc, err := chromedp.Run(ctx, chromedp.Evaluate[access](`({
+		unlabelled: [...document.querySelectorAll('input, select, textarea')].filter(e => !e.labels || e.labels.length === 0).map(e => e.id || e.name),
+		sort: document.querySelector('#items th[aria-sort="descending"] button').dataset.sort })`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(acc.Unlabelled) > 0 {
+		t.Errorf("controls without a label: %v", acc.Unlabelled)
+	}
+	err = chromedp.Do(ctx,
+		chromedp.Focus(chromedp.CSS(`#items th button[data-sort="sku"]`)),
+		chromedp.KeyEvent("\r"),
+		chromedp.Poll[chromedp.Void](`document.querySelector('#items th[aria-sort="ascending"] button')?.dataset.sort === 'sku'`, chromedp.WithPollingTimeout(10*time.Second)),
+	)
+	if err != nil {
+		t.Errorf("sorting by SKU from the keyboard (the list was sorted by %s): %v", acc.Sort, err)
+	}
+	// Printed, the page shows the item without the list and the controls.
+	err = chromedp.Do(ctx, chromedp.Func(func(ctx context.Context, tg *chromedp.Target) error {
+		_, err := cdp.Call(ctx, tg, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: "print"})
+		return err
+	}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	printed, err := chromedp.Run(ctx, chromedp.Evaluate[[]string](`['list', 'item', 'cheapest'].map(id => document.getElementById(id).getClientRects().length > 0 ? 'shown' : 'none')`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(printed) != 3 || printed[0] != "none" || printed[1] != "shown" || printed[2] != "none" {
+		t.Errorf("print view: list, item, button = %v, want none, shown, none", printed)
+	}
+	chromedp.Do(ctx, chromedp.Func(func(ctx context.Context, tg *chromedp.Target) error {
+		_, err := cdp.Call(ctx, tg, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{})
+		return err
+	}))
 
 	// An override with a note, read back from the decisions file.
 	err = chromedp.Do(ctx,
