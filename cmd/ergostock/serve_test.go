@@ -230,7 +230,7 @@ func TestServeGuards(t *testing.T) {
 		code int
 	}{{"/api/items", 200}, {"/api/items/BRAKE-PAD-X", 200}, {"/api/items/NOPE", 404}, {"/", 200}, {"/page.js", 200},
 		{"/api/levels?demand=poisson:mean%3D4&holding_cost=1&shortage_cost=9&order_up_to=7", 200},
-		{"/api/levels?demand=poisson:mean%3D4&holding_cost=1&shortage_cost=9", 400}, {"/api/decisions", 200}, {"/api/nothing", 404}} {
+		{"/api/levels?demand=poisson:mean%3D4&holding_cost=1&shortage_cost=9", 400}, {"/api/decisions", 200}, {"/api/nothing", 404}, {"/api/evaluate", 405}} {
 		req := httptest.NewRequest("GET", "http://localhost:8080"+c.path, nil)
 		rec := httptest.NewRecorder()
 		srv.ServeHTTP(rec, req)

@@ -99,6 +99,16 @@ func New(cfg Config) (*Server, error) {
 	s.mux.HandleFunc("GET /api/decisions", s.decisions)
 	s.mux.HandleFunc("POST /api/decisions", s.decide)
 	noAPI := func(w http.ResponseWriter, r *http.Request) {
+		switch r.URL.Path {
+		case "/api/evaluate", "/api/optimize":
+			w.Header().Set("Allow", "POST")
+			s.fail(w, r, http.StatusMethodNotAllowed, fmt.Sprintf("%s %s: want POST with a JSON object", r.Method, r.URL.Path))
+			return
+		case "/api/items", "/api/levels":
+			w.Header().Set("Allow", "GET")
+			s.fail(w, r, http.StatusMethodNotAllowed, fmt.Sprintf("%s %s: want GET", r.Method, r.URL.Path))
+			return
+		}
 		s.fail(w, r, http.StatusNotFound, fmt.Sprintf("%s %s: no such endpoint (see the package documentation of ergostock/cmd/ergostock/whatif)", r.Method, r.URL.Path))
 	}
 	s.mux.HandleFunc("GET /api/", noAPI)
