@@ -220,9 +220,11 @@ func (e *entry) systemArgs() []string {
 }
 
 // EvaluateCurrent evaluates the policy in use of every item that has one
-// and a demand model, with workers at once (0: all cores), each under
-// timeout, filling the current figures and the fill-rate gap of the list.
-// An item whose evaluation fails keeps the message in CurrentError.
+// and a demand model, with workers at once (0: all cores), each under the
+// server's time limit, filling the current figures and the fill-rate gap
+// of the list. An item whose evaluation fails keeps the message in
+// CurrentError. Call it before the server takes requests: it writes the
+// catalogue without a lock.
 func (s *Server) EvaluateCurrent(ctx context.Context, workers int) {
 	c := s.cfg.Catalogue
 	if workers <= 0 {
