@@ -50,6 +50,7 @@ func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
 			fitCommand(),
 			batchCommand(),
 			reportCommand(),
+			networkCommand(),
 		},
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
 			return usageErr("%s (see --help)", flagMessage(nil, err))

@@ -13,7 +13,8 @@
 //
 //  1. Review. Each store orders from the centre what raises its inventory
 //     position (on hand + in transit + owed by the centre - backorders) to
-//     its level. The centre then orders from the supplier what raises its
+//     its level (orders of the same review queue at the centre in an order
+//     that rotates from period to period). The centre then orders from the supplier what raises its
 //     own position to its level.
 //  2. Receive. The centre receives the order it placed L0 periods ago
 //     (L0 = 0: the order just placed), then ships to the stores what it

@@ -64,7 +64,7 @@ type Result struct {
 // Method names.
 const (
 	MethodSerial = "exact serial decomposition (Clark-Scarf)"
-	MethodMETRIC = "METRIC decomposition, binomial split of the centre's backorders (approximation)"
+	MethodMETRIC = "METRIC decomposition, binomial split of the centre's backorders"
 )
 
 // Evaluate computes every location's figures for the levels of n: exactly

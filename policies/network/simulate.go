@@ -201,7 +201,10 @@ func replicate(n *Network, s0 int, s []int, smp []*sampler, opt SimOptions, r in
 	for t := 0; t < opt.Periods; t++ {
 		// 1. Review: the stores order, then the centre.
 		var newOrders int64
-		for i := range n.Stores {
+		for j := range n.Stores {
+			// Orders of the same review join the queue in an order that
+			// rotates from period to period: no store has priority.
+			i := (j + t) % N
 			if q := int64(s[i]) - (net[i] + transit[i] + owed[i]); q > 0 {
 				queue = append(queue, order{i, q})
 				owed[i] += q
