@@ -435,6 +435,7 @@ func hostileCases() []hostileCase {
 	add(hostileCase{name: "simulate-replications-1", args: sys("simulate", "--order-up-to", "20", "--replications", "1"), code: 2, names: []string{"--replications"}})
 	add(hostileCase{name: "simulate-periods-0", args: sys("simulate", "--order-up-to", "20", "--periods", "0"), code: 2, names: []string{"--periods"}})
 	add(hostileCase{name: "simulate-warmup-over", args: sys("simulate", "--order-up-to", "20", "--periods", "100", "--warmup", "100"), code: 2, names: []string{"--periods", "warm-up"}})
+	cs = append(cs, networkHostileCases()...)
 	return cs
 }
 

@@ -90,6 +90,9 @@ func read(r *tabular.Reader, levels Levels) (*Network, error) {
 		if cell("lead_time") == "" {
 			return nil, bad("lead_time", "empty: want a whole number of periods >= 0")
 		}
+		if strings.Contains(cell("lead_time"), ":") {
+			return nil, bad("lead_time", "%q: want a whole number of periods (lead-time laws are not modelled in a network)", cell("lead_time"))
+		}
 		if l.LeadTime, err = whole("lead_time", 0, 100000); err != nil {
 			return nil, err
 		}
