@@ -192,6 +192,17 @@ type networkObject struct {
 	Neglected float64           `json:"neglected"`
 	Search    string            `json:"search,omitempty"`
 	Check     *checkObject      `json:"approximation_error,omitempty"`
+	Alone     *aloneObject      `json:"each_location_alone,omitempty"`
+}
+
+// aloneObject is the network planned one location at a time, evaluated as
+// a network, for comparison with the network plan (optimize).
+type aloneObject struct {
+	TotalCost float64           `json:"total_cost"`
+	Locations []network.Figures `json:"locations"`
+	// ExpectedFillRates are what each store's own plan promised.
+	ExpectedFillRates []float64 `json:"expected_fill_rates"`
+	Method            string    `json:"method"`
 }
 
 func networkEvaluate(c *cli.Context) error {
@@ -235,17 +246,26 @@ func networkOptimize(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	return writeNetwork(c.App.Writer, c.Bool("json"), plan.Network, plan.Result, plan.Search, ck)
+	alone, err := network.Alone(n)
+	if err != nil {
+		return err
+	}
+	al := &aloneObject{TotalCost: alone.Result.TotalCost, Locations: alone.Result.Locations, ExpectedFillRates: alone.Expected, Method: alone.Search}
+	return writeNetworkAlone(c.App.Writer, c.Bool("json"), plan.Network, plan.Result, plan.Search, ck, al)
 }
 
 func writeNetwork(w io.Writer, asJSON bool, n *network.Network, res *network.Result, search string, ck *checkObject) error {
+	return writeNetworkAlone(w, asJSON, n, res, search, ck, nil)
+}
+
+func writeNetworkAlone(w io.Writer, asJSON bool, n *network.Network, res *network.Result, search string, ck *checkObject, al *aloneObject) error {
 	levels := string(n.Levels)
 	if levels == "" {
 		levels = string(network.Echelon)
 	}
 	if asJSON {
 		return writeJSON(w, networkObject{Locations: res.Locations, TotalCost: res.TotalCost, Method: res.Method,
-			Exact: res.Exact, Levels: levels, Neglected: res.Neglected, Search: search, Check: ck})
+			Exact: res.Exact, Levels: levels, Neglected: res.Neglected, Search: search, Check: ck, Alone: al})
 	}
 	t := newTable(w)
 	fmt.Fprintln(t, "location\tparent\tlead time\tbase-stock (own)\tbase-stock (echelon)\tfill rate\tstockout\ton hand\tbackorders\tholding\tshortage\ttotal")
@@ -271,6 +291,18 @@ func writeNetwork(w io.Writer, asJSON bool, n *network.Network, res *network.Res
 			ck.Replications, ck.Periods, ck.Seed, ck.MaxFillRateError, ck.MaxFillRateCI95, ck.TotalCostError, ck.TotalCostCI95)
 	} else if !res.Exact {
 		fmt.Fprintln(w, "approximation error: not measured (--check-periods 0)")
+	}
+	if al != nil {
+		var lv []string
+		for i, l := range al.Locations {
+			s := fmt.Sprintf("%s %d", l.Location, l.InstallationLevel)
+			if i > 0 {
+				s += fmt.Sprintf(" (fill rate %s, its own plan promised %s)", num(l.FillRate), num(al.ExpectedFillRates[i-1]))
+			}
+			lv = append(lv, s)
+		}
+		fmt.Fprintf(w, "each location planned alone: total cost %s per period, %s more than the network plan; levels %s\n",
+			num(al.TotalCost), num(al.TotalCost-res.TotalCost), strings.Join(lv, ", "))
 	}
 	return nil
 }

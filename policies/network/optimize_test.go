@@ -103,3 +103,25 @@ func TestClarkScarfAgainstBruteForce(t *testing.T) {
 		}
 	}
 }
+
+// Planning each location alone never beats the network optimum, and on
+// the demo-like serial system it costs more; its stores get less than
+// their single-location plans promise when the centre runs short.
+func TestAloneCostsMore(t *testing.T) {
+	n := serial(t, "poisson:mean=3.2", 5, 1, 0.2, 0.32, 18, 0, 0)
+	opt, err := Optimize(n)
+	if err != nil {
+		t.Fatal(err)
+	}
+	al, err := Alone(n)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if al.Result.TotalCost < opt.Result.TotalCost-1e-12 {
+		t.Errorf("alone %g cheaper than the optimum %g", al.Result.TotalCost, opt.Result.TotalCost)
+	}
+	if got := al.Result.Locations[1].FillRate; got > al.Expected[0]+1e-12 {
+		t.Errorf("store gets %g in the network, more than the %g its plan promised", got, al.Expected[0])
+	}
+	t.Logf("network %g, alone %g (store promised %.4f, gets %.4f)", opt.Result.TotalCost, al.Result.TotalCost, al.Expected[0], al.Result.Locations[1].FillRate)
+}
