@@ -11,7 +11,9 @@ import (
 
 	"ergostock/inventory"
 	"ergostock/inventory/tabular"
+	"ergostock/policies/batch"
 	"ergostock/policies/network"
+	"ergostock/policies/report"
 )
 
 // Defaults of the simulation that measures the error of the decomposition
@@ -80,6 +82,18 @@ func networkCommand() *cli.Command {
 				"half-width of its 95% Student t interval, beside the exact or approximate value." + assumptions,
 			Flags:  append(common(), simFlags...),
 			Action: networkSimulate,
+		},
+		{
+			Name:  "report",
+			Usage: "an HTML page of the network: a tree with each location's levels and fill rate, planned as a network against each location alone",
+			Description: "Optimizes the network (or, with --as-given, evaluates the levels in the file), plans each\n" +
+				"location alone for comparison, and writes one self-contained HTML page (--out)." + assumptions,
+			Flags: append(append(common(),
+				&cli.StringFlag{Name: "min-fill-rate", Usage: "fill-rate floor for every store whose min_fill_rate cell is empty (0.95 or 95%)"},
+				&cli.BoolFlag{Name: "as-given", Usage: "show the levels in the file instead of the cheapest ones"},
+				&cli.StringFlag{Name: "out", Usage: "HTML file to write"}),
+				check...),
+			Action: networkReport,
 		},
 	}
 	for _, s := range subs {
@@ -226,17 +240,8 @@ func networkOptimize(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
-	if c.IsSet("min-fill-rate") {
-		var nums tabular.Numbers
-		v, _, err := nums.Fraction(c.String("min-fill-rate"), 0)
-		if err != nil || v < 0 || v > network.MaxFillRate {
-			return usageErr("--min-fill-rate %s: want a fraction from 0 to 1 - 1e-9 (such as 0.95 or 95%%)", showValue(c.String("min-fill-rate")))
-		}
-		for i := range n.Stores {
-			if n.Stores[i].MinFillRate == 0 {
-				n.Stores[i].MinFillRate = v
-			}
-		}
+	if err := applyFloor(c, n); err != nil {
+		return err
 	}
 	plan, err := network.Optimize(n)
 	if err != nil {
@@ -252,6 +257,68 @@ func networkOptimize(c *cli.Context) error {
 	}
 	al := &aloneObject{TotalCost: alone.Result.TotalCost, Locations: alone.Result.Locations, ExpectedFillRates: alone.Expected, Method: alone.Search}
 	return writeNetworkAlone(c.App.Writer, c.Bool("json"), plan.Network, plan.Result, plan.Search, ck, al)
+}
+
+// applyFloor gives --min-fill-rate to every store without a floor of its own.
+func applyFloor(c *cli.Context, n *network.Network) error {
+	if c.IsSet("min-fill-rate") {
+		var nums tabular.Numbers
+		v, _, err := nums.Fraction(c.String("min-fill-rate"), 0)
+		if err != nil || v < 0 || v > network.MaxFillRate {
+			return usageErr("--min-fill-rate %s: want a fraction from 0 to 1 - 1e-9 (such as 0.95 or 95%%)", showValue(c.String("min-fill-rate")))
+		}
+		for i := range n.Stores {
+			if n.Stores[i].MinFillRate == 0 {
+				n.Stores[i].MinFillRate = v
+			}
+		}
+	}
+	return nil
+}
+
+func networkReport(c *cli.Context) error {
+	out := c.String("out")
+	if out == "" {
+		return usageErr("network report: --out is required (see --help)")
+	}
+	n, err := readNetwork(c)
+	if err != nil {
+		return err
+	}
+	if err := applyFloor(c, n); err != nil {
+		return err
+	}
+	var plan *network.Plan
+	if c.Bool("as-given") {
+		res, err := network.Evaluate(n)
+		if err != nil {
+			return err
+		}
+		plan = &network.Plan{Network: n, Result: res, Search: "the levels of " + n.File}
+	} else if plan, err = network.Optimize(n); err != nil {
+		return err
+	}
+	alone, err := network.Alone(n)
+	if err != nil {
+		return err
+	}
+	ck, err := networkCheck(c, plan.Network, plan.Result)
+	if err != nil {
+		return err
+	}
+	check := ""
+	if ck != nil {
+		check = fmt.Sprintf("The figures are an approximation: against a simulation of the same network (%d replications of %d periods, seed %d) the largest fill-rate error was %.3g (simulation half-width up to %.2g) and the total cost error %.3g (half-width %.2g).",
+			ck.Replications, ck.Periods, ck.Seed, ck.MaxFillRateError, ck.MaxFillRateCI95, ck.TotalCostError, ck.TotalCostCI95)
+	} else if !plan.Result.Exact {
+		check = "The figures are an approximation whose error was not measured (--check-periods 0)."
+	}
+	in := report.NetworkInput{Version: version, Plan: plan, Alone: alone, Check: check}
+	if err := batch.WriteFileAtomic(out, func(w io.Writer) error { return report.WriteNetworkPage(w, in) }); err != nil {
+		return fmt.Errorf("--out %s: %w", out, err)
+	}
+	fmt.Fprintf(c.App.ErrWriter, "ergostock: network report: wrote %s (network %s per period, each location alone %s)\n", out, num(plan.Result.TotalCost), num(alone.Result.TotalCost))
+	return nil
 }
 
 func writeNetwork(w io.Writer, asJSON bool, n *network.Network, res *network.Result, search string, ck *checkObject) error {

@@ -142,6 +142,8 @@ func networkHostileCases() []hostileCase {
 	add(hostileCase{name: "network-sim-replications-1", args: []string{"network", "simulate", "--network", "{dir}/n.csv", "--replications", "1"}, files: good, code: 2, names: []string{"--replications"}})
 	add(hostileCase{name: "network-sim-warmup-over", args: []string{"network", "simulate", "--network", "{dir}/n.csv", "--periods", "100", "--warmup", "100"}, files: good, code: 2, names: []string{"--warmup"}})
 	add(hostileCase{name: "network-sim-huge", args: []string{"network", "simulate", "--network", "{dir}/n.csv", "--periods", "2000000000", "--replications", "1000"}, files: good, code: 1, names: []string{"--periods"}})
+	add(hostileCase{name: "network-report-no-out", args: []string{"network", "report", "--network", "{dir}/n.csv"}, files: good, code: 2, names: []string{"--out"}})
+	add(hostileCase{name: "network-report-bad-dir", args: []string{"network", "report", "--network", "{dir}/n.csv", "--out", "{dir}/no/such/dir/p.html", "--check-periods", "0"}, files: good, code: 1, names: []string{"p.html"}})
 	add(hostileCase{name: "network-fill-floor-1", args: []string{"network", "optimize", "--network", "{dir}/n.csv", "--min-fill-rate", "1"}, files: good, code: 2, names: []string{"--min-fill-rate"}})
 	for _, c := range []struct{ name, body, column string }{
 		{"empty", "", "n.csv"},
@@ -162,4 +164,25 @@ func networkHostileCases() []hostileCase {
 		add(hostileCase{name: "network-file-" + c.name, args: []string{"network", "evaluate", "--network", "{dir}/n.csv"}, files: file(c.body), code: 1, names: []string{c.column}})
 	}
 	return cs
+}
+
+func TestNetworkReport(t *testing.T) {
+	file := writeTemp(t, "two.csv", twoStoreNetworkCSV)
+	out := filepath.Join(t.TempDir(), "page.html")
+	code, stdout, errs := runNetwork(t, "report", "--network", file, "--out", out, "--check-periods", "2000", "--check-replications", "3")
+	if code != 0 || stdout != "" {
+		t.Fatalf("exit %d, stdout %q: %s", code, stdout, errs)
+	}
+	page, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"<svg", "Each location planned alone", "millbeck", "approximation"} {
+		if !strings.Contains(string(page), want) {
+			t.Errorf("page lacks %q", want)
+		}
+	}
+	if code, _, _ := runNetwork(t, "report", "--network", file); code != 2 {
+		t.Errorf("no --out: exit %d, want 2", code)
+	}
 }
