@@ -96,6 +96,7 @@ func networkCommand() *cli.Command {
 			Action: networkReport,
 		},
 	}
+	subs = append(subs, networkBatchCommand())
 	for _, s := range subs {
 		networkUsage(s)
 	}
@@ -121,7 +122,7 @@ func networkUsage(cmd *cli.Command) {
 		if c.NArg() > 0 {
 			return usageErr("%s: unexpected argument %q (every input is given by a flag)", name, c.Args().First())
 		}
-		if !c.IsSet("network") {
+		if !c.IsSet("network") && cmd.Name != "batch" {
 			return usageErr("%s: --network is required (see --help)", name)
 		}
 		return action(c)

@@ -144,6 +144,8 @@ func networkHostileCases() []hostileCase {
 	add(hostileCase{name: "network-sim-huge", args: []string{"network", "simulate", "--network", "{dir}/n.csv", "--periods", "2000000000", "--replications", "1000"}, files: good, code: 1, names: []string{"--periods"}})
 	add(hostileCase{name: "network-report-no-out", args: []string{"network", "report", "--network", "{dir}/n.csv"}, files: good, code: 2, names: []string{"--out"}})
 	add(hostileCase{name: "network-report-bad-dir", args: []string{"network", "report", "--network", "{dir}/n.csv", "--out", "{dir}/no/such/dir/p.html", "--check-periods", "0"}, files: good, code: 1, names: []string{"p.html"}})
+	add(hostileCase{name: "network-batch-no-items", args: []string{"network", "batch", "--out", "{dir}/r.csv"}, code: 2, names: []string{"--items"}})
+	add(hostileCase{name: "network-batch-bad-header", args: []string{"network", "batch", "--items", "{dir}/n.csv", "--out", "{dir}/r.csv"}, files: good, code: 1, names: []string{"n.csv:1", "sku"}})
 	add(hostileCase{name: "network-fill-floor-1", args: []string{"network", "optimize", "--network", "{dir}/n.csv", "--min-fill-rate", "1"}, files: good, code: 2, names: []string{"--min-fill-rate"}})
 	for _, c := range []struct{ name, body, column string }{
 		{"empty", "", "n.csv"},
@@ -184,5 +186,46 @@ func TestNetworkReport(t *testing.T) {
 	}
 	if code, _, _ := runNetwork(t, "report", "--network", file); code != 2 {
 		t.Errorf("no --out: exit %d, want 2", code)
+	}
+}
+
+func TestNetworkBatch(t *testing.T) {
+	items := `sku,location,parent,lead_time,demand,holding_cost,shortage_cost,base_stock,min_fill_rate
+PAD,hub,,3,,0.2,,,
+PAD,east,hub,1,poisson:mean=3,0.3,18,,0.95
+BAD,hub,,3,,0.2,,,
+BAD,east,hub,1.5,poisson:mean=3,0.3,18,,
+PAD,west,hub,2,poisson:mean=2,0.3,18,,0.95
+ONE,hub,,2,,0.1,,,
+ONE,east,hub,0,poisson:mean=1,0.3,9,,
+`
+	in := writeTemp(t, "items.csv", items)
+	dir := t.TempDir()
+	var outs []string
+	for _, w := range []string{"1", "3"} {
+		out := filepath.Join(dir, "res"+w+".csv")
+		code, _, errs := runNetwork(t, "batch", "--items", in, "--out", out, "--workers", w, "--check-periods", "2000", "--check-replications", "2")
+		if code != 3 || !strings.Contains(errs, "3 SKUs: 2 planned, 1 failed") {
+			t.Fatalf("exit %d: %s", code, errs)
+		}
+		b, err := os.ReadFile(out)
+		if err != nil {
+			t.Fatal(err)
+		}
+		outs = append(outs, string(b))
+	}
+	if outs[0] != outs[1] {
+		t.Errorf("--workers changed the results")
+	}
+	lines := strings.Split(strings.TrimSpace(outs[0]), "\n")
+	// Record, header, PAD x 3 (in file order of first rows), BAD, ONE x 2.
+	if len(lines) != 2+3+1+2 {
+		t.Fatalf("%d lines:\n%s", len(lines), outs[0])
+	}
+	if !strings.HasPrefix(lines[5], "BAD,") || !strings.Contains(lines[5], "items.csv:5: column lead_time:") {
+		t.Errorf("failed SKU row %q", lines[5])
+	}
+	if !strings.HasPrefix(lines[4], "PAD,west,hub,2,") || !strings.Contains(lines[7], ",true,0,") {
+		t.Errorf("rows:\n%s", outs[0])
 	}
 }

@@ -68,3 +68,26 @@ func TestEmptyLevels(t *testing.T) {
 		t.Errorf("Optimize: %v", err)
 	}
 }
+
+// Each SKU's rows form its network; a bad row fails its SKU alone.
+func TestReadCatalogue(t *testing.T) {
+	text := "sku;location;parent;lead_time;demand;holding_cost;shortage_cost;base_stock\n" +
+		"A;hub;;2;;0,5;;\nA;shop;hub;1;poisson:mean=4;1;9;\n" +
+		"B;hub;;2;;0,5;;\nB;shop;yard;1;poisson:mean=4;1;9;\n" +
+		"C;hub;;2;;x;;\nA;kiosk;hub;0;poisson:mean=1;1;9;\n"
+	items, err := ReadCatalogue(strings.NewReader(text), "c.csv", Echelon, tabular.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(items) != 3 || items[0].SKU != "A" || items[1].SKU != "B" || items[2].SKU != "C" {
+		t.Fatalf("items %+v", items)
+	}
+	if items[0].Err != nil || len(items[0].Network.Stores) != 2 || items[0].Network.Centre.Holding != 0.5 {
+		t.Errorf("A: %+v %v", items[0].Network, items[0].Err)
+	}
+	for i, want := range map[int]string{1: `c.csv:5: column parent: location "shop": "yard"`, 2: "c.csv:6: column holding_cost:"} {
+		if items[i].Err == nil || !strings.HasPrefix(items[i].Err.Error(), want) {
+			t.Errorf("%s: %v, want %q", items[i].SKU, items[i].Err, want)
+		}
+	}
+}
