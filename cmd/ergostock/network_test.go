@@ -160,6 +160,8 @@ func networkHostileCases() []hostileCase {
 		{"cost-inf", head + "hub,,1,,1,,30\nshop,hub,1,poisson:mean=2,1,1e999,10\n", "shortage_cost"},
 		{"deep-tree", head + "hub,,1,,1,,30\nshop,hub,1,poisson:mean=2,1,9,10\nkiosk,shop,1,poisson:mean=1,1,9,5\n", "parent"},
 		{"cycle", head + "a,b,1,poisson:mean=2,1,9,10\nb,a,1,poisson:mean=2,1,9,10\n", "parent"},
+		{"centre-level-very-negative", head + "hub,,1,,1,,-1000000000000\nshop,hub,1,poisson:mean=2,1,9,10\n", "base_stock"},
+		{"store-level-very-negative", head + "hub,,1,,1,,30\nshop,hub,1,poisson:mean=2,1,9,-1000000000000\n", "base_stock"},
 		{"no-level", head + "hub,,1,,1,,\nshop,hub,1,poisson:mean=2,1,9,10\n", "base_stock"},
 		{"binary", "\x00\x01\x02garbage\xff\xfe", "n.csv"},
 	} {

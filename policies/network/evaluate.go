@@ -214,10 +214,13 @@ func convolve(a, b []float64) []float64 {
 
 // backorderLaw returns the law of the centre's backorders (X0 - s0)^+ at
 // the end of a period, on 0..K, and the tail mass cut beyond K.
-func (m *model) backorderLaw(s0 int) ([]float64, float64) {
+func (m *model) backorderLaw(s0 int) ([]float64, float64, error) {
 	top := m.x0Bound - s0 // largest backorder kept
 	if top < 0 {
-		return []float64{1}, 0
+		return []float64{1}, 0, nil
+	}
+	if top >= maxSupport {
+		return nil, 0, m.n.errAt(m.n.Centre, "base_stock", "%d as the centre's own level: its backorders would span %d values, beyond the limit of %d (raise the centre's level)", s0, top+1, maxSupport)
 	}
 	p := make([]float64, top+1)
 	if s0 >= 0 {
@@ -228,7 +231,7 @@ func (m *model) backorderLaw(s0 int) ([]float64, float64) {
 			p[k] = m.x0.PMF(s0 + k)
 		}
 	}
-	return p, m.x0.Tail(m.x0Bound + 1)
+	return p, m.x0.Tail(m.x0Bound + 1), nil
 }
 
 // thin returns the law of Binomial(B, q) given the law of B: the part of
@@ -302,6 +305,13 @@ func (m *model) store(i, s int, pb []float64) (storeFigures, error) {
 
 // centre returns the centre's figures at installation level s0.
 func (m *model) centre(s0 int) (storeFigures, error) {
+	if s0 >= maxSupport || s0 <= -maxSupport {
+		own := ""
+		if m.n.Levels != Installation {
+			own = " (its echelon level less the stores' levels)"
+		}
+		return storeFigures{}, m.n.errAt(m.n.Centre, "base_stock", "%d as the centre's own level%s: want it within %d of 0", s0, own, maxSupport)
+	}
 	over, under, err := inventory.Loss(m.x0, s0)
 	if err != nil {
 		return storeFigures{}, m.n.errAt(m.n.Centre, "base_stock", "%d: %v", s0, err)
@@ -346,7 +356,10 @@ func (m *model) evaluate(s0 int, s []int) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	b0, cut := m.backorderLaw(s0)
+	b0, cut, err := m.backorderLaw(s0)
+	if err != nil {
+		return nil, err
+	}
 	res.Neglected = math.Max(res.Neglected, cut)
 	echelon := s0
 	for _, v := range s {

@@ -239,7 +239,10 @@ func (m *model) atCentre(s0 int) ([]int, float64, error) {
 		return nil, 0, err
 	}
 	cost := m.n.Centre.Holding * cf.onHand
-	b0, _ := m.backorderLaw(s0)
+	b0, _, err := m.backorderLaw(s0)
+	if err != nil {
+		return nil, 0, err
+	}
 	levels := make([]int, len(m.n.Stores))
 	for i := range m.n.Stores {
 		pb := b0

@@ -2,6 +2,7 @@ package network
 
 import (
 	"math"
+	"reflect"
 	"testing"
 
 	"ergostock/inventory"
@@ -80,5 +81,35 @@ func TestSerialNoCentreLeadTimeIsSingleStage(t *testing.T) {
 		if !res.Exact || res.Method != MethodSerial {
 			t.Errorf("one store: exact %v method %q", res.Exact, res.Method)
 		}
+	}
+}
+
+// The two readings of the centre's level describe the same policy:
+// installation level = echelon level - the sum of the store levels.
+func TestEchelonInstallationSame(t *testing.T) {
+	e := serial(t, "poisson:mean=4", 2, 1, 0.5, 1, 9, 22, 10)
+	i := serial(t, "poisson:mean=4", 2, 1, 0.5, 1, 9, 12, 10)
+	i.Levels = Installation
+	re, err := Evaluate(e)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ri, err := Evaluate(i)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(re, ri) {
+		t.Errorf("echelon 22 and installation 12 differ:\n%+v\n%+v", re, ri)
+	}
+	pe, err := Optimize(e)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pi, err := Optimize(i)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if pe.Network.Centre.BaseStock-pe.Network.Stores[0].BaseStock != pi.Network.Centre.BaseStock || pe.Result.TotalCost != pi.Result.TotalCost {
+		t.Errorf("optimum: echelon %d/%d, installation %d/%d", pe.Network.Centre.BaseStock, pe.Network.Stores[0].BaseStock, pi.Network.Centre.BaseStock, pi.Network.Stores[0].BaseStock)
 	}
 }
