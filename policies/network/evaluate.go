@@ -234,6 +234,22 @@ func (m *model) backorderLaw(s0 int) ([]float64, float64, error) {
 	return p, m.x0.Tail(m.x0Bound + 1), nil
 }
 
+// maxThinWork bounds the multiply-adds of splitting the centre's
+// backorders among the stores (len(B)^2/2 a store).
+const maxThinWork = 2e9
+
+// checkThin refuses a split that would take more than maxThinWork.
+func (m *model) checkThin(s0 int, b0 []float64) error {
+	if len(m.n.Stores) < 2 {
+		return nil
+	}
+	if w := float64(len(b0)) * float64(len(b0)) / 2 * float64(len(m.n.Stores)); w > maxThinWork {
+		return m.n.errAt(m.n.Centre, "base_stock", "%d as the centre's own level: its backorders span %d values, and splitting them among %d stores would take %.2g operations, over the limit of %g (raise the centre's level or plan in larger units): %w",
+			s0, len(b0), len(m.n.Stores), w, maxThinWork, ErrLimit)
+	}
+	return nil
+}
+
 // thin returns the law of Binomial(B, q) given the law of B: the part of
 // the centre's backorders owed to a store with share q of the demand.
 func thin(b []float64, q float64) []float64 {
@@ -358,6 +374,9 @@ func (m *model) evaluate(s0 int, s []int) (*Result, error) {
 	}
 	b0, cut, err := m.backorderLaw(s0)
 	if err != nil {
+		return nil, err
+	}
+	if err := m.checkThin(s0, b0); err != nil {
 		return nil, err
 	}
 	res.Neglected = math.Max(res.Neglected, cut)

@@ -5,6 +5,9 @@ import (
 	"math"
 )
 
+// maxScan is the widest range of centre levels Optimize scans in full.
+const maxScan = 3000
+
 // MaxFillRate is the highest fill-rate floor Optimize accepts: closer to 1
 // the figures cannot confirm it.
 const MaxFillRate = 1 - 1e-9
@@ -29,7 +32,8 @@ type Plan struct {
 //     cheapest store level meeting the floor (the store's cost is convex
 //     and its fill rate increasing in its level, given s0); the best pair.
 //     Optimal over that range (a negative centre level is never better:
-//     it is the same policy as s0 = 0 with a lower store level).
+//     it is the same policy as s0 = 0 with a lower store level). Beyond
+//     3000 levels the ternary search below takes its place.
 //   - Several stores: the same inner step for every store under the
 //     decomposition, and the centre level by a ternary search over the same
 //     range assuming the cost unimodal in it, then a check of the
@@ -65,9 +69,12 @@ func Optimize(n *Network) (*Plan, error) {
 	case len(n.Stores) == 1 && !floors:
 		s0, s, err = m.clarkScarf()
 		search = "exact recursion of Clark and Scarf (1960): optimal"
-	case len(n.Stores) == 1:
+	case len(n.Stores) == 1 && m.x0Bound <= maxScan:
 		s0, s, err = m.scanCentre()
 		search = fmt.Sprintf("every centre level 0..%d, the cheapest store level meeting its floor for each: optimal", m.x0Bound)
+	case len(n.Stores) == 1:
+		s0, s, err = m.ternaryCentre()
+		search = fmt.Sprintf("centre level by ternary search over 0..%d (too wide to scan; cost assumed unimodal in it, neighbours within 3 checked), the cheapest store level meeting its floor for each: a local optimum", m.x0Bound)
 	default:
 		s0, s, err = m.ternaryCentre()
 		search = "centre level by ternary search (cost assumed unimodal in it, neighbours within 3 checked), each store's cheapest level meeting its floor for that centre level: a local optimum of the approximation"
@@ -243,6 +250,9 @@ func (m *model) atCentre(s0 int) ([]int, float64, error) {
 	if err != nil {
 		return nil, 0, err
 	}
+	if err := m.checkThin(s0, b0); err != nil {
+		return nil, 0, err
+	}
 	levels := make([]int, len(m.n.Stores))
 	for i := range m.n.Stores {
 		pb := b0
@@ -289,6 +299,12 @@ func (m *model) ternaryCentre() (int, []int, error) {
 		return c, nil
 	}
 	lo, hi := 0, m.x0Bound
+	if n := len(m.n.Stores); n > 1 {
+		// Below this level the split of the backorders is refused (checkThin).
+		kmax := int(math.Sqrt(2 * maxThinWork / float64(n)))
+		lo = max(0, m.x0Bound+1-kmax)
+	}
+	floor := lo
 	for hi-lo > 4 {
 		a, b := lo+(hi-lo)/3, hi-(hi-lo)/3
 		ca, err := cost(a)
@@ -306,7 +322,7 @@ func (m *model) ternaryCentre() (int, []int, error) {
 		}
 	}
 	best, bestCost := -1, math.Inf(1)
-	for s0 := max(lo-3, 0); s0 <= min(hi+3, m.x0Bound); s0++ {
+	for s0 := max(lo-3, floor); s0 <= min(hi+3, m.x0Bound); s0++ {
 		c, err := cost(s0)
 		if err != nil {
 			return 0, nil, err
