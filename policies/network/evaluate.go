@@ -17,6 +17,9 @@ const cutEps = 1e-15
 // 4 million points.
 const maxSupport = 1 << 22
 
+// maxConvolveWork bounds the multiply-adds of summing the stores' laws.
+const maxConvolveWork = 2e9
+
 // ErrLimit is wrapped by refusals of networks too large to evaluate.
 var ErrLimit = inventory.ErrLimit
 
@@ -173,12 +176,15 @@ func sumLaws(ds []inventory.Distribution) (inventory.Distribution, float64, erro
 		return p, 0, err
 	}
 	acc := []float64{1}
-	neg := 0.0
+	neg, work := 0.0, 0.0
 	eps := cutEps / float64(len(ds))
 	for _, d := range ds {
 		b := d.Bound(eps)
 		if b > maxSupport || len(acc)+b > maxSupport {
 			return nil, 0, fmt.Errorf("a table of %d points, over the limit of %d: %w", len(acc)+b, maxSupport, ErrLimit)
+		}
+		if work += float64(len(acc)) * float64(b+1); work > maxConvolveWork {
+			return nil, 0, fmt.Errorf("convolving the %d stores' laws would take more than %g operations (Poisson laws sum in closed form): %w", len(ds), maxConvolveWork, ErrLimit)
 		}
 		f := make([]float64, b+1)
 		for k := range f {

@@ -85,3 +85,37 @@ func TestMETRICAgainstSimulationGrid(t *testing.T) {
 
 // metricGridBound is the bound asserted by the grid test (see DEVELOPERS.md).
 const metricGridBound = 0.05
+
+// Stores with laws that do not sum in closed form (negative binomial, an
+// explicit pmf): the centre's figures, exact from the convolved total
+// demand, inside the simulation's intervals; the stores' within the
+// grid's bound.
+func TestMixedLawsAgainstSimulation(t *testing.T) {
+	if testing.Short() {
+		t.Skip("simulation")
+	}
+	n := &Network{Levels: Installation, Centre: Location{Name: "hub", LeadTime: 3, Holding: 0.5, BaseStock: 22, HasLevel: true}}
+	for i, d := range []string{"negbin:mean=3,var=8", "pmf:0=0.5,2=0.3,5=0.2", "normal:mean=2,sd=1"} {
+		n.Stores = append(n.Stores, Location{Name: fmt.Sprintf("s%d", i), Parent: "hub", LeadTime: 1 + i, Demand: mustParse(t, d),
+			Holding: 1, Shortage: 10, BaseStock: 9 + 2*i, HasLevel: true})
+	}
+	ex, err := Evaluate(n)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sr, err := Simulate(n, SimOptions{Periods: 60000, Warmup: 500, Replications: 8, Seed: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	e, s := figs(ex.Locations[0]), simFigs(sr.Locations[0])
+	for k := range e {
+		if math.Abs(e[k]-s[k].Mean) > 4*s[k].CI95+1e-9 {
+			t.Errorf("centre %s: exact %.6g, simulated %.6g +- %.2g", figNames[k], e[k], s[k].Mean, s[k].CI95)
+		}
+	}
+	for i := 1; i < len(ex.Locations); i++ {
+		if d := math.Abs(ex.Locations[i].FillRate - sr.Locations[i].FillRate.Mean); d > metricGridBound {
+			t.Errorf("%s: fill rate %.4f, simulated %.4f", ex.Locations[i].Location, ex.Locations[i].FillRate, sr.Locations[i].FillRate.Mean)
+		}
+	}
+}

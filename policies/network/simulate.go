@@ -84,6 +84,14 @@ func Simulate(n *Network, opt SimOptions) (*SimResult, error) {
 		return nil, &inventory.FieldError{Field: "periods", Value: fmt.Sprint(opt.Periods),
 			Want: fmt.Sprintf("periods x replications x locations at most %g (this run: %g)", MaxSimWork, w), Err: ErrLimit}
 	}
+	cells := 0.0
+	for _, st := range n.Stores {
+		cells += float64(max(st.Demand.Bound(1e-16), 0) + 2)
+	}
+	if cells > maxSamplerCells*4 {
+		return nil, &inventory.FieldError{Field: "network", Value: n.File,
+			Want: fmt.Sprintf("stores whose sampling tables hold at most %d cells in all (these need %g; plan in larger units)", maxSamplerCells*4, cells), Err: ErrLimit}
+	}
 	samplers := make([]*sampler, len(n.Stores))
 	for i, st := range n.Stores {
 		s, err := newSampler(st.Demand)
