@@ -113,3 +113,39 @@ func TestEchelonInstallationSame(t *testing.T) {
 		t.Errorf("optimum: echelon %d/%d, installation %d/%d", pe.Network.Centre.BaseStock, pe.Network.Stores[0].BaseStock, pi.Network.Centre.BaseStock, pi.Network.Stores[0].BaseStock)
 	}
 }
+
+// With no lead time to the centre, the cheapest network is the single
+// stage's cheapest base-stock level at the store and nothing at the
+// centre, with or without a fill-rate floor (policies.Optimize, the
+// project's exact single-stage search, as the reference).
+func TestSerialNoCentreLeadTimeOptimum(t *testing.T) {
+	for _, c := range []struct {
+		demand string
+		l1     int
+		floor  float64
+	}{
+		{"poisson:mean=4", 2, 0},
+		{"negbin:mean=6,var=15", 3, 0},
+		{"poisson:mean=4", 1, 0.995},
+		{"pmf:0=0.3,1=0.4,3=0.3", 0, 0.9},
+	} {
+		n := serial(t, c.demand, 0, c.l1, 0.5, 1, 9, 0, 0)
+		n.Stores[0].MinFillRate = c.floor
+		plan, err := Optimize(n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sys := inventory.System{Demand: n.Stores[0].Demand, LeadTime: c.l1, Holding: 1, Shortage: 9, Mode: inventory.Backorder}
+		opt, err := policies.Optimize(sys, policies.BaseStock, policies.SearchOptions{MinFillRate: c.floor})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := plan.Result
+		if s := got.Locations[1].InstallationLevel; s != opt.Policy.OrderUpTo || got.Locations[0].InstallationLevel != 0 {
+			t.Errorf("%+v: levels centre %d store %d, single stage %d", c, got.Locations[0].InstallationLevel, s, opt.Policy.OrderUpTo)
+		}
+		if math.Abs(got.TotalCost-opt.Figures.TotalCost) > 1e-12*math.Max(1, opt.Figures.TotalCost) {
+			t.Errorf("%+v: cost %.15g, single stage %.15g", c, got.TotalCost, opt.Figures.TotalCost)
+		}
+	}
+}
