@@ -102,10 +102,10 @@ func networkCommand() *cli.Command {
 	}
 	return &cli.Command{
 		Name:        "network",
-		Usage:       "plan a centre and the stores it replenishes (evaluate, optimize, simulate)",
+		Usage:       "plan a centre and the stores it replenishes (evaluate, optimize, simulate, report, batch)",
 		Subcommands: subs,
 		Action: func(c *cli.Context) error {
-			return usageErr("network: want a subcommand: evaluate, optimize or simulate (see ergostock network --help)")
+			return usageErr("network: want a subcommand: evaluate, optimize, simulate, report or batch (see ergostock network --help)")
 		},
 	}
 }

@@ -128,7 +128,7 @@ func networkHostileCases() []hostileCase {
 	head := "location,parent,lead_time,demand,holding_cost,shortage_cost,base_stock\n"
 	var cs []hostileCase
 	add := func(c hostileCase) { cs = append(cs, c) }
-	add(hostileCase{name: "network-no-sub", args: []string{"network"}, code: 2, names: []string{"evaluate, optimize or simulate"}})
+	add(hostileCase{name: "network-no-sub", args: []string{"network"}, code: 2, names: []string{"evaluate, optimize, simulate, report or batch"}})
 	add(hostileCase{name: "network-bad-sub", args: []string{"network", "plan"}, code: 2, names: []string{"plan"}})
 	add(hostileCase{name: "network-no-file-flag", args: []string{"network", "evaluate"}, code: 2, names: []string{"--network"}})
 	add(hostileCase{name: "network-missing-file", args: []string{"network", "evaluate", "--network", "{dir}/none.csv"}, code: 1, names: []string{"none.csv"}})
