@@ -33,6 +33,7 @@ func networkCommand() *cli.Command {
 			&cli.StringFlag{Name: "network", Usage: "the locations file (CSV or .xlsx): columns location, parent (empty for the centre), lead_time, demand, holding_cost, shortage_cost, base_stock; optional min_fill_rate"},
 			&cli.StringFlag{Name: "levels", Usage: "what the centre's base_stock means: echelon (its position and everything below it) or installation (its own position)", Value: "echelon"},
 			&cli.BoolFlag{Name: "json", Usage: "print the result as JSON"},
+			&cli.StringFlag{Name: "split", Usage: "several stores: how they share the centre's backorders in the approximation: binomial (in full) or two-moment (Graves' fit, faster for large networks)", Value: "binomial"},
 		}
 	}
 	check := []cli.Flag{
@@ -144,10 +145,15 @@ func readNetwork(c *cli.Context) (*network.Network, error) {
 	if err != nil {
 		return nil, usageErr("--levels %s: want echelon or installation", showValue(c.String("levels")))
 	}
+	split, err := network.ParseSplit(c.String("split"))
+	if err != nil {
+		return nil, usageErr("--split %s: want binomial or two-moment", showValue(c.String("split")))
+	}
 	n, err := network.ReadFile(c.String("network"), levels, tabular.Options{})
 	if err != nil {
 		return nil, err // one line naming file, line and column: exit 1
 	}
+	n.Split = split
 	return n, nil
 }
 

@@ -37,6 +37,7 @@ func networkBatchCommand() *cli.Command {
 			&cli.StringFlag{Name: "out", Usage: "results file to write"},
 			&cli.StringFlag{Name: "levels", Usage: "what the centre's base_stock means: echelon or installation", Value: "echelon"},
 			&cli.StringFlag{Name: "min-fill-rate", Usage: "fill-rate floor for every store whose min_fill_rate cell is empty"},
+			&cli.StringFlag{Name: "split", Usage: "several stores: binomial or two-moment split of the centre's backorders (see network evaluate --help)", Value: "binomial"},
 			&cli.StringFlag{Name: "workers", Usage: "SKUs planned at once (0: all cores); never changes the output", Value: "0"},
 			&cli.StringFlag{Name: "check-periods", Usage: "periods per replication of the check simulation (several stores); 0 skips it", Value: "5000"},
 			&cli.StringFlag{Name: "check-replications", Usage: "replications of the check simulation", Value: "4"},
@@ -54,6 +55,10 @@ func networkBatch(c *cli.Context) error {
 	levels, err := network.ParseLevels(c.String("levels"))
 	if err != nil {
 		return usageErr("--levels %s: want echelon or installation", showValue(c.String("levels")))
+	}
+	split, err := network.ParseSplit(c.String("split"))
+	if err != nil {
+		return usageErr("--split %s: want binomial or two-moment", showValue(c.String("split")))
 	}
 	floor := 0.0
 	if c.IsSet("min-fill-rate") {
@@ -98,6 +103,7 @@ func networkBatch(c *cli.Context) error {
 			return failedRows(it.SKU, it.Err)
 		}
 		n := it.Network
+		n.Split = split
 		for j := range n.Stores {
 			if n.Stores[j].MinFillRate == 0 {
 				n.Stores[j].MinFillRate = floor

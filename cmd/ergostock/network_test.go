@@ -146,6 +146,7 @@ func networkHostileCases() []hostileCase {
 	add(hostileCase{name: "network-report-bad-dir", args: []string{"network", "report", "--network", "{dir}/n.csv", "--out", "{dir}/no/such/dir/p.html", "--check-periods", "0"}, files: good, code: 1, names: []string{"p.html"}})
 	add(hostileCase{name: "network-batch-no-items", args: []string{"network", "batch", "--out", "{dir}/r.csv"}, code: 2, names: []string{"--items"}})
 	add(hostileCase{name: "network-batch-bad-header", args: []string{"network", "batch", "--items", "{dir}/n.csv", "--out", "{dir}/r.csv"}, files: good, code: 1, names: []string{"n.csv:1", "sku"}})
+	add(hostileCase{name: "network-split-bad", args: []string{"network", "evaluate", "--network", "{dir}/n.csv", "--split", "poisson"}, files: good, code: 2, names: []string{"--split"}})
 	add(hostileCase{name: "network-fill-floor-1", args: []string{"network", "optimize", "--network", "{dir}/n.csv", "--min-fill-rate", "1"}, files: good, code: 2, names: []string{"--min-fill-rate"}})
 	for _, c := range []struct{ name, body, column string }{
 		{"empty", "", "n.csv"},

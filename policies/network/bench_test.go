@@ -64,3 +64,14 @@ func BenchmarkOptimize50Stores(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkEvaluate50StoresTwoMoment is the same with the two-moment split.
+func BenchmarkEvaluate50StoresTwoMoment(b *testing.B) {
+	n := benchStores(b)
+	n.Split = TwoMoment
+	for b.Loop() {
+		if _, err := Evaluate(n); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -66,8 +66,9 @@ type Result struct {
 
 // Method names.
 const (
-	MethodSerial = "exact serial decomposition (Clark-Scarf)"
-	MethodMETRIC = "METRIC decomposition, binomial split of the centre's backorders"
+	MethodSerial    = "exact serial decomposition (Clark-Scarf)"
+	MethodMETRIC    = "METRIC decomposition, binomial split of the centre's backorders"
+	MethodTwoMoment = "METRIC decomposition, two-moment (Graves) split of the centre's backorders"
 )
 
 // Evaluate computes every location's figures for the levels of n: exactly
@@ -256,6 +257,45 @@ func (m *model) checkThin(s0 int, b0 []float64) error {
 	return nil
 }
 
+// split returns the law of the part of the centre's backorders b0 owed
+// to store i, by the network's Split.
+func (m *model) split(b0 []float64, i int) ([]float64, error) {
+	q := m.share[i]
+	if m.n.Split != TwoMoment {
+		return thin(b0, q), nil
+	}
+	var mu, m2 float64
+	for k, p := range b0 {
+		mu += p * float64(k)
+		m2 += p * float64(k) * float64(k)
+	}
+	v := math.Max(0, m2-mu*mu)
+	mean := q * mu
+	vari := q*(1-q)*mu + q*q*v
+	if mean <= 0 {
+		return []float64{1}, nil
+	}
+	var d inventory.Distribution
+	var err error
+	if vari > mean*(1+1e-9) {
+		d, err = inventory.NewNegBin(mean, vari)
+	} else {
+		d, err = inventory.NewPoisson(mean)
+	}
+	if err != nil {
+		return nil, m.n.errAt(m.n.Stores[i], "demand", "the two-moment split (mean %g, variance %g): %v", mean, vari, err)
+	}
+	k := d.Bound(cutEps)
+	if k >= maxSupport {
+		return nil, m.n.errAt(m.n.Stores[i], "demand", "the two-moment split needs %d points, over the limit of %d", k, maxSupport)
+	}
+	pb := make([]float64, k+1)
+	for j := range pb {
+		pb[j] = d.PMF(j)
+	}
+	return pb, nil
+}
+
 // thin returns the law of Binomial(B, q) given the law of B: the part of
 // the centre's backorders owed to a store with share q of the demand.
 func thin(b []float64, q float64) []float64 {
@@ -373,6 +413,9 @@ func (m *model) evaluate(s0 int, s []int) (*Result, error) {
 	res := &Result{Exact: exact, Method: MethodSerial, Neglected: m.neglect}
 	if !exact {
 		res.Method = MethodMETRIC
+		if n.Split == TwoMoment {
+			res.Method = MethodTwoMoment
+		}
 	}
 	cf, err := m.centre(s0)
 	if err != nil {
@@ -382,8 +425,10 @@ func (m *model) evaluate(s0 int, s []int) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := m.checkThin(s0, b0); err != nil {
-		return nil, err
+	if m.n.Split != TwoMoment {
+		if err := m.checkThin(s0, b0); err != nil {
+			return nil, err
+		}
 	}
 	res.Neglected = math.Max(res.Neglected, cut)
 	echelon := s0
@@ -399,7 +444,9 @@ func (m *model) evaluate(s0 int, s []int) (*Result, error) {
 	for i, st := range n.Stores {
 		pb := b0
 		if !exact {
-			pb = thin(b0, m.share[i])
+			if pb, err = m.split(b0, i); err != nil {
+				return nil, err
+			}
 		}
 		f, err := m.store(i, s[i], pb)
 		if err != nil {

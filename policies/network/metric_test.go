@@ -30,6 +30,7 @@ func TestMETRICAgainstSimulationGrid(t *testing.T) {
 		t.Skip("simulation grid")
 	}
 	worst, worstCase := 0.0, ""
+	worst2, worstCase2 := 0.0, ""
 	for _, means := range [][]float64{{2, 5}, {1, 1.5, 2, 3, 4}} {
 		for _, l0 := range []int{1, 4} {
 			for _, l := range []int{1, 3} {
@@ -65,6 +66,19 @@ func TestMETRICAgainstSimulationGrid(t *testing.T) {
 					if d := math.Abs(ex.Locations[0].MeanBackorders - c.MeanBackorders.Mean); d > 4*c.MeanBackorders.CI95+1e-9 {
 						t.Errorf("N=%d L0=%d: centre backorders %g, simulated %g +- %g", len(means), l0, ex.Locations[0].MeanBackorders, c.MeanBackorders.Mean, c.MeanBackorders.CI95)
 					}
+					n2 := *n
+					n2.Split = TwoMoment
+					ex2, err := Evaluate(&n2)
+					if err != nil {
+						t.Fatal(err)
+					}
+					for i := 1; i < len(ex2.Locations); i++ {
+						if e := math.Abs(ex2.Locations[i].FillRate - sr.Locations[i].FillRate.Mean); e > worst2 {
+							worst2 = e
+							worstCase2 = fmt.Sprintf("N=%d L0=%d L=%d centre quantile %.2f store %s: %.4f vs simulated %.4f +- %.4f",
+								len(means), l0, l, q, ex2.Locations[i].Location, ex2.Locations[i].FillRate, sr.Locations[i].FillRate.Mean, sr.Locations[i].FillRate.CI95)
+						}
+					}
 					for i := 1; i < len(ex.Locations); i++ {
 						e := math.Abs(ex.Locations[i].FillRate - sr.Locations[i].FillRate.Mean)
 						if e > worst {
@@ -77,9 +91,12 @@ func TestMETRICAgainstSimulationGrid(t *testing.T) {
 			}
 		}
 	}
-	t.Logf("worst fill-rate error of the decomposition over the grid: %.4f (%s)", worst, worstCase)
+	t.Logf("worst fill-rate error of the decomposition over the grid: binomial split %.4f (%s); two-moment split %.4f (%s)", worst, worstCase, worst2, worstCase2)
 	if worst > metricGridBound {
 		t.Errorf("worst fill-rate error %.4f above the recorded bound %.2f: %s", worst, metricGridBound, worstCase)
+	}
+	if worst2 > metricGridBound {
+		t.Errorf("two-moment split: worst fill-rate error %.4f above the recorded bound %.2f: %s", worst2, metricGridBound, worstCase2)
 	}
 }
 

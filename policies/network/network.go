@@ -57,6 +57,36 @@ type Network struct {
 	Centre Location
 	Stores []Location
 	Levels Levels // what Centre.BaseStock means; "" is Echelon
+	// Split says how several stores share the centre's backorders; ""
+	// is Binomial.
+	Split Split
+}
+
+// Split names the law of a store's share of the centre's backorders
+// under the decomposition (several stores).
+type Split string
+
+// The two splits.
+const (
+	// Binomial: given the centre's backorders B, the store's share is
+	// Binomial(B, q), q its share of mean demand, used in full (O(K^2) a
+	// store for K values of B).
+	Binomial Split = "binomial"
+	// TwoMoment: the share's mean q E[B] and variance
+	// q(1-q) E[B] + q^2 Var[B] fitted by a negative binomial (Poisson when
+	// the variance is not above the mean), after Graves 1985: O(K) a store.
+	TwoMoment Split = "two-moment"
+)
+
+// ParseSplit reads a --split value ("" is Binomial).
+func ParseSplit(s string) (Split, error) {
+	switch strings.ToLower(strings.TrimSpace(s)) {
+	case "", "binomial":
+		return Binomial, nil
+	case "two-moment":
+		return TwoMoment, nil
+	}
+	return "", &inventory.FieldError{Field: "split", Value: s, Want: "binomial or two-moment"}
 }
 
 // LocationError is a problem with one location's field: it prints as
@@ -100,6 +130,9 @@ func (n *Network) errAt(l Location, field, format string, a ...any) error {
 func (n *Network) Validate(needLevels bool) error {
 	if n.Levels != "" && n.Levels != Echelon && n.Levels != Installation {
 		return &inventory.FieldError{Field: "levels", Value: string(n.Levels), Want: "echelon or installation"}
+	}
+	if n.Split != "" && n.Split != Binomial && n.Split != TwoMoment {
+		return &inventory.FieldError{Field: "split", Value: string(n.Split), Want: "binomial or two-moment"}
 	}
 	c := n.Centre
 	if c.Name == "" {

@@ -250,14 +250,18 @@ func (m *model) atCentre(s0 int) ([]int, float64, error) {
 	if err != nil {
 		return nil, 0, err
 	}
-	if err := m.checkThin(s0, b0); err != nil {
-		return nil, 0, err
+	if m.n.Split != TwoMoment {
+		if err := m.checkThin(s0, b0); err != nil {
+			return nil, 0, err
+		}
 	}
 	levels := make([]int, len(m.n.Stores))
 	for i := range m.n.Stores {
 		pb := b0
 		if len(m.n.Stores) > 1 {
-			pb = thin(b0, m.share[i])
+			if pb, err = m.split(b0, i); err != nil {
+				return nil, 0, err
+			}
 		}
 		s, c, err := m.bestStore(i, pb)
 		if err != nil {
@@ -299,7 +303,7 @@ func (m *model) ternaryCentre() (int, []int, error) {
 		return c, nil
 	}
 	lo, hi := 0, m.x0Bound
-	if n := len(m.n.Stores); n > 1 {
+	if n := len(m.n.Stores); n > 1 && m.n.Split != TwoMoment {
 		// Below this level the split of the backorders is refused (checkThin).
 		kmax := int(math.Sqrt(2 * maxThinWork / float64(n)))
 		lo = max(0, m.x0Bound+1-kmax)
