@@ -483,3 +483,56 @@ func networkSimulate(c *cli.Context) error {
 	fmt.Fprintf(w, "%d replications of %d periods (warm-up %d), seed %d\n", sr.Replications, sr.Periods, sr.Warmup, sr.Seed)
 	return nil
 }
+
+// networkPage is the network page for `report --network`.
+type networkPage struct{ in report.NetworkInput }
+
+func (p networkPage) WriteHTML(w io.Writer) error { return report.WriteNetworkPage(w, p.in) }
+
+// reportNetworkPage builds the page of `report --network FILE`: the
+// cheapest levels (echelon reading), each location planned alone, and
+// for several stores the error measured by a simulation seeded by --seed.
+func reportNetworkPage(c *cli.Context) (networkPage, error) {
+	n, err := network.ReadFile(c.String("network"), network.Echelon, tabular.Options{})
+	if err != nil {
+		return networkPage{}, err
+	}
+	if c.IsSet("min-fill-rate") {
+		v := c.Float64("min-fill-rate")
+		if !(v >= 0 && v <= network.MaxFillRate) {
+			return networkPage{}, usageErr("--min-fill-rate %v: want a fraction from 0 to 1 - 1e-9", v)
+		}
+		for i := range n.Stores {
+			if n.Stores[i].MinFillRate == 0 {
+				n.Stores[i].MinFillRate = v
+			}
+		}
+	}
+	plan, err := network.Optimize(n)
+	if err != nil {
+		return networkPage{}, err
+	}
+	alone, err := network.Alone(n)
+	if err != nil {
+		return networkPage{}, err
+	}
+	check := ""
+	if !plan.Result.Exact {
+		seed := c.Int("seed")
+		if seed < 0 {
+			return networkPage{}, usageErr("--seed %d: want an integer >= 0", seed)
+		}
+		sr, err := network.Simulate(plan.Network, network.SimOptions{Periods: networkCheckPeriods, Warmup: networkCheckPeriods / 10, Replications: networkCheckReplications, Seed: uint64(seed)})
+		if err != nil {
+			return networkPage{}, err
+		}
+		var fe, ci float64
+		for i, l := range plan.Result.Locations {
+			fe = math.Max(fe, math.Abs(l.FillRate-sr.Locations[i].FillRate.Mean))
+			ci = math.Max(ci, sr.Locations[i].FillRate.CI95)
+		}
+		check = fmt.Sprintf("The figures are an approximation: against a simulation of the same network (%d replications of %d periods, seed %d) the largest fill-rate error was %.3g (simulation half-width up to %.2g) and the total cost error %.3g (half-width %.2g).",
+			networkCheckReplications, networkCheckPeriods, seed, fe, ci, math.Abs(plan.Result.TotalCost-sr.TotalCost.Mean), sr.TotalCost.CI95)
+	}
+	return networkPage{in: report.NetworkInput{Version: version, Plan: plan, Alone: alone, Check: check}}, nil
+}

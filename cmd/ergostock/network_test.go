@@ -232,3 +232,20 @@ ONE,east,hub,0,poisson:mean=1,0.3,9,,
 		t.Errorf("rows:\n%s", outs[0])
 	}
 }
+
+// report --network writes the same page as network report.
+func TestReportNetworkFlag(t *testing.T) {
+	file := writeTemp(t, "serial.csv", serialNetworkCSV)
+	out := filepath.Join(t.TempDir(), "page.html")
+	var o, e bytes.Buffer
+	if code := run([]string{"ergostock", "report", "--network", file, "--out", out}, strings.NewReader(""), &o, &e); code != 0 {
+		t.Fatalf("exit %d: %s", code, e.String())
+	}
+	page, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), "Each location planned alone") || !strings.Contains(string(page), "harrow-lane") {
+		t.Errorf("page lacks the network content")
+	}
+}
