@@ -147,6 +147,8 @@ func networkHostileCases() []hostileCase {
 	add(hostileCase{name: "network-batch-no-items", args: []string{"network", "batch", "--out", "{dir}/r.csv"}, code: 2, names: []string{"--items"}})
 	add(hostileCase{name: "network-batch-bad-header", args: []string{"network", "batch", "--items", "{dir}/n.csv", "--out", "{dir}/r.csv"}, files: good, code: 1, names: []string{"n.csv:1", "sku"}})
 	add(hostileCase{name: "network-split-bad", args: []string{"network", "evaluate", "--network", "{dir}/n.csv", "--split", "poisson"}, files: good, code: 2, names: []string{"--split"}})
+	add(hostileCase{name: "report-network-missing", args: []string{"report", "--network", "{dir}/none.csv", "--out", "{dir}/p.html"}, code: 1, names: []string{"none.csv"}})
+	add(hostileCase{name: "report-network-bad-row", args: []string{"report", "--network", "{dir}/n.csv", "--out", "{dir}/p.html"}, files: file(head + "hub,,1,,1,,30\nshop,hub,x,poisson:mean=2,1,9,10\n"), code: 1, names: []string{"n.csv:3", "lead_time"}})
 	add(hostileCase{name: "network-fill-floor-1", args: []string{"network", "optimize", "--network", "{dir}/n.csv", "--min-fill-rate", "1"}, files: good, code: 2, names: []string{"--min-fill-rate"}})
 	for _, c := range []struct{ name, body, column string }{
 		{"empty", "", "n.csv"},
