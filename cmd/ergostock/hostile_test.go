@@ -706,6 +706,8 @@ func hostileCases() []hostileCase {
 	add(hostileCase{name: "batch-uncertainty-resamples-1", args: with(ubatch, "--resamples", "1"), files: uitems, code: 2, names: []string{"--resamples"}})
 	add(hostileCase{name: "batch-robust-confidence-alone", args: []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--floor-confidence", "0.8"}, files: uitems, code: 2, names: []string{"--floor-confidence"}})
 	add(hostileCase{name: "report-uncertainty-no-history", args: []string{"report", "--demand", "poisson:mean=3", "--holding-cost", "1", "--shortage-cost", "9", "--out", "{dir}/p.html", "--uncertainty"}, code: 2, names: []string{"--uncertainty", "--history"}})
+
+	cs = append(cs, networkHostileCases()...)
 	return cs
 }
 

@@ -53,6 +53,7 @@ func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
 			reportCommand(),
 			mergeCommand(),
 			serveCommand(),
+			networkCommand(),
 		},
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
 			return usageErr("%s (see --help)", flagMessage(nil, err))
