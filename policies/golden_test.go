@@ -156,3 +156,48 @@ func TestSpeedGolden(t *testing.T) {
 		}
 	}
 }
+
+// TestDemandTables checks that evaluations through shared DemandTables
+// equal those without, bit for bit, also when the tables last held another
+// system's laws, and that a kind refused under independent lead times is
+// refused through the tables too.
+func TestDemandTables(t *testing.T) {
+	pois := func(m float64) inventory.Distribution { d, _ := inventory.Parse(fmt.Sprintf("poisson:mean=%g", m)); return d }
+	_, law, err := inventory.ParseLeadTime("pmf:1=0.5,3=0.5")
+	if err != nil {
+		t.Fatal(err)
+	}
+	base := inventory.System{Demand: pois(20), LeadTime: 2, Holding: 1, Shortage: 9, OrderCost: 30, Mode: inventory.Backorder}
+	other := base
+	other.Demand = pois(21)
+	withLaw := base
+	withLaw.LeadTimeLaw = law
+	indep := withLaw
+	indep.LeadTimeModel = inventory.Independent
+	review := base
+	review.ReviewPeriod = 3
+	ss := Policy{Kind: SS, ReorderPoint: 50, OrderUpTo: 120}
+	bs := Policy{Kind: BaseStock, OrderUpTo: 90}
+	tabs := NewDemandTables()
+	for _, c := range []struct {
+		name string
+		sys  inventory.System
+		p    Policy
+	}{
+		{"first", base, ss}, {"again", base, bs}, {"other demand", other, ss}, {"back", base, ss},
+		{"law", withLaw, ss}, {"independent", indep, bs}, {"independent s-S", indep, ss}, {"review", review, ss},
+	} {
+		want, werr := Evaluate(c.sys, c.p, Options{})
+		got, gerr := Evaluate(c.sys, c.p, Options{Tables: tabs})
+		if (werr == nil) != (gerr == nil) || (werr != nil && werr.Error() != gerr.Error()) {
+			t.Errorf("%s: error %v through the tables, %v without", c.name, gerr, werr)
+			continue
+		}
+		if werr != nil {
+			continue
+		}
+		if got.Figures != want.Figures || got.Neglected != want.Neglected || got.FlowBalance != want.FlowBalance {
+			t.Errorf("%s: figures %+v through the tables, %+v without", c.name, got.Figures, want.Figures)
+		}
+	}
+}

@@ -166,6 +166,10 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 	if opt.MaxEvaluations == 0 {
 		opt.MaxEvaluations = DefaultMaxEvaluations
 	}
+	if opt.Eval.Tables == nil {
+		// The search and the evaluation of its optimum share the laws.
+		opt.Eval.Tables = NewDemandTables()
+	}
 	var (
 		o   *Optimum
 		err error

@@ -171,7 +171,7 @@ func newBOModelKind(sys inventory.System, opt Options, kind Kind) (*boModel, err
 	if limit <= 0 {
 		limit = DefaultMaxStates
 	}
-	tm, err := timingOf(sys, kind)
+	tm, err := opt.Tables.timing(sys, kind)
 	if err != nil {
 		return nil, err
 	}

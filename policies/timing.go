@@ -2,6 +2,7 @@ package policies
 
 import (
 	"fmt"
+	"sync"
 
 	"ergostock/inventory"
 )
@@ -59,11 +60,10 @@ func timingOf(sys inventory.System, k Kind) (timing, error) {
 			return t, fmt.Errorf("demand over the review period of %d periods: %w", t.r, err)
 		}
 	}
+	if err := timingKindErr(sys, k); err != nil {
+		return t, err
+	}
 	if sys.LeadTimeLaw != nil && sys.Model() == inventory.Independent && !onePointLaw(sys) {
-		if k != BaseStock {
-			return t, &inventory.FieldError{Field: "lead_time_model", Value: string(sys.Model()),
-				Want: "sequential for " + string(k) + " (with independent lead times, where orders may cross, only base-stock in backorder mode is evaluated exactly: --policy base-stock)", Err: ErrNotExact}
-		}
 		t.x0, t.x1, err = independentPipeline(sys, t.pos)
 		if err != nil {
 			return t, err
@@ -78,6 +78,66 @@ func timingOf(sys inventory.System, k Kind) (timing, error) {
 	}
 	t.negl0, t.negl1 = inventory.Neglected(t.x0), inventory.Neglected(t.x1)
 	return t, nil
+}
+
+// timingKindErr refuses a policy kind other than base-stock under
+// independent lead times (with more than one point), where orders may
+// cross. It is the only way the timing of a system depends on the kind.
+func timingKindErr(sys inventory.System, k Kind) error {
+	if sys.FixedTiming() || k == BaseStock || sys.LeadTimeLaw == nil || sys.Model() != inventory.Independent || onePointLaw(sys) {
+		return nil
+	}
+	return &inventory.FieldError{Field: "lead_time_model", Value: string(sys.Model()),
+		Want: "sequential for " + string(k) + " (with independent lead times, where orders may cross, only base-stock in backorder mode is evaluated exactly: --policy base-stock)", Err: ErrNotExact}
+}
+
+// DemandTables keeps the laws of demand that the backorder figures of one
+// system rest on (demand over the lead time and over the lead time plus one
+// period, or their mixtures over a lead-time law and the review phase, and
+// the demand between reviews), so that a search, the evaluation of its
+// optimum and other evaluations of the same system compute them once: pass
+// it as Options.Tables. The laws depend on the demand, the lead time (or
+// its law and model) and the review period only, not on costs, mode or
+// policy. A system with another demand or timing replaces the kept laws,
+// so a wrong pairing costs time, never a wrong figure. It is safe for
+// concurrent use (the laws are read-only once built).
+type DemandTables struct {
+	mu   sync.Mutex
+	key  string
+	t    timing
+	err  error
+	done bool
+}
+
+// NewDemandTables returns empty tables.
+func NewDemandTables() *DemandTables { return &DemandTables{} }
+
+// timingKey identifies what the timing of a system depends on.
+func timingKey(sys inventory.System) string {
+	law := ""
+	if sys.LeadTimeLaw != nil {
+		law = sys.LeadTimeLaw.String()
+	}
+	return fmt.Sprintf("%s|%d|%s|%s|%d", sys.Demand, sys.LeadTime, law, sys.Model(), sys.Review())
+}
+
+// timing returns timingOf(sys, k), from the tables when they hold the laws
+// of sys.
+func (d *DemandTables) timing(sys inventory.System, k Kind) (timing, error) {
+	if d == nil {
+		return timingOf(sys, k)
+	}
+	if err := timingKindErr(sys, k); err != nil {
+		return timing{}, err
+	}
+	key := timingKey(sys)
+	d.mu.Lock()
+	defer d.mu.Unlock()
+	if !d.done || d.key != key {
+		d.t, d.err = timingOf(sys, k)
+		d.key, d.done = key, true
+	}
+	return d.t, d.err
 }
 
 // onePointLaw reports whether the lead-time law of sys has one point:
