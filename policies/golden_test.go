@@ -162,7 +162,10 @@ func TestSpeedGolden(t *testing.T) {
 // system's laws, and that a kind refused under independent lead times is
 // refused through the tables too.
 func TestDemandTables(t *testing.T) {
-	pois := func(m float64) inventory.Distribution { d, _ := inventory.Parse(fmt.Sprintf("poisson:mean=%g", m)); return d }
+	pois := func(m float64) inventory.Distribution {
+		d, _ := inventory.Parse(fmt.Sprintf("poisson:mean=%g", m))
+		return d
+	}
 	_, law, err := inventory.ParseLeadTime("pmf:1=0.5,3=0.5")
 	if err != nil {
 		t.Fatal(err)
