@@ -293,14 +293,28 @@ func (t *trail) advance() {
 	t.mo.ensureM(S - t.s + 1)
 	v := t.vals(S)
 	m0 := t.mo.m[0]
-	for f := range t.nf {
-		b := t.buf[f]
-		off := S - t.base
-		x := m0 * v[f]
-		for j, i := range t.k.at {
-			x += t.k.q[j] * b[off-i]
+	off := S - t.base
+	at, q := t.k.at, t.k.q[:len(t.k.at)]
+	if t.nf == 1 {
+		b := t.buf[0]
+		x := m0 * v[0]
+		for j, i := range at {
+			x += q[j] * b[off-i]
 		}
-		t.buf[f] = append(b, x)
+		t.buf[0] = append(b, x)
+	} else {
+		// The three sums in one pass over the kernel, each added in the
+		// same order as alone (the same bits), with independent chains of
+		// additions for the processor to overlap.
+		b0, b1, b2 := t.buf[0], t.buf[1][:len(t.buf[0])], t.buf[2][:len(t.buf[0])]
+		x0, x1, x2 := m0*v[0], m0*v[1], m0*v[2]
+		for j, i := range at {
+			qj, k := q[j], off-i
+			x0 += qj * b0[k]
+			x1 += qj * b1[k]
+			x2 += qj * b2[k]
+		}
+		t.buf[0], t.buf[1], t.buf[2] = append(b0, x0), append(b1, x1), append(b2, x2)
 	}
 	*t.work += t.nf * len(t.k.at)
 	t.S = S

@@ -37,6 +37,8 @@ func BenchmarkBatchPageDemo(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		if _, err := BuildBatch(BatchInput{ResultsFile: path, Rows: res.Rows, ItemsFile: "items.csv", Items: items}); err != nil {
 			b.Fatal(err)
