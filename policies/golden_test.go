@@ -224,3 +224,44 @@ func TestDemandTables(t *testing.T) {
 		}
 	}
 }
+
+// TestSharedSearchModel checks that base-stock and s-S searches of one
+// system under several floors, run through one DemandTables (which hands
+// the search model of one to the next), give the same policies, figures
+// and search records, bit for bit, as searches run alone; also when the
+// tables switch between two systems and kinds.
+func TestSharedSearchModel(t *testing.T) {
+	floors := []float64{0.95, 0, 0.9, 0.99, 0.999, 0.98, 0.9999}
+	for _, spec := range []string{"poisson:mean=8.4", "negbin:mean=12,var=40", "pmf:0=0.5,1=0.2,3=0.2,10=0.1", "normal:mean=50,sd=12"} {
+		d, err := inventory.Parse(spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a := inventory.System{Demand: d, LeadTime: 2, Holding: 1, Shortage: 19, OrderCost: 50, UnitCost: 2, Mode: inventory.Backorder}
+		b := a
+		b.OrderCost = 5
+		tabs := NewDemandTables()
+		for _, f := range floors {
+			for _, c := range []struct {
+				sys  inventory.System
+				kind Kind
+			}{{a, SS}, {a, BaseStock}, {a, SS}, {b, SS}} {
+				want, werr := Optimize(c.sys, c.kind, SearchOptions{MinFillRate: f})
+				so := SearchOptions{MinFillRate: f}
+				so.Eval.Tables = tabs
+				got, gerr := Optimize(c.sys, c.kind, so)
+				if (werr == nil) != (gerr == nil) {
+					t.Fatalf("%s %s floor %g: error %v shared, %v alone", spec, c.kind, f, gerr, werr)
+				}
+				if werr != nil {
+					continue
+				}
+				if got.Policy != want.Policy || got.Figures != want.Figures || got.Search.Evaluated != want.Search.Evaluated ||
+					got.Search.Method != want.Search.Method || fmt.Sprint(got.Search.Bounds) != fmt.Sprint(want.Search.Bounds) {
+					t.Errorf("%s %s K=%g floor %g: shared %v %+v %+v, alone %v %+v %+v", spec, c.kind, c.sys.OrderCost, f,
+						got.Policy, got.Figures, got.Search, want.Policy, want.Figures, want.Search)
+				}
+			}
+		}
+	}
+}

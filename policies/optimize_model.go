@@ -120,6 +120,7 @@ type boModel struct {
 	pg, pfr, ps []float64
 
 	limit int             // the state limit: widest S - s and level range searched
+	zf    *zfResult       // the unconstrained s-S optimum, once found (zfOnce)
 	ctx   context.Context // nil: none
 	ticks int             // loop steps since the last look at ctx
 }

@@ -107,6 +107,60 @@ type DemandTables struct {
 	t    timing
 	err  error
 	done bool
+	// model is the backorder model of the last base-stock or s-S search,
+	// for the next search of the same system and costs (modelKey).
+	model    *boModel
+	modelKey string
+}
+
+// searchModel returns the backorder model of sys for a search of kind k:
+// the one kept by the last search of the same system, costs and state
+// limit, or a new one. A kept model is handed out once (the next caller
+// builds its own until it is kept again), so concurrent searches never
+// share one. The models of base-stock and s-S searches are shared: their
+// tables hold values computed point by point (G, fill and so at a level,
+// the renewal mass m(j) by its recursion, the Zheng-Federgruen optimum),
+// the same bits however far a table has grown. s-nQ searches read prefix
+// sums, whose last digits depend on where a table starts, and build
+// their own.
+func (d *DemandTables) searchModel(sys inventory.System, opt Options, k Kind) (*boModel, error) {
+	if d == nil || k == SNQ {
+		return newBOModelKind(sys, opt, k)
+	}
+	if err := timingKindErr(sys, k); err != nil {
+		return nil, err
+	}
+	key := modelKey(sys, opt)
+	d.mu.Lock()
+	mo := d.model
+	if mo != nil && d.modelKey == key {
+		d.model = nil
+	} else {
+		mo = nil
+	}
+	d.mu.Unlock()
+	if mo == nil {
+		return newBOModelKind(sys, opt, k)
+	}
+	mo.ctx, mo.ticks = opt.Context, 0
+	return mo, nil
+}
+
+// keepModel keeps mo, the model of a finished base-stock or s-S search
+// of sys, for the next search (see searchModel).
+func (d *DemandTables) keepModel(sys inventory.System, opt Options, k Kind, mo *boModel) {
+	if d == nil || k == SNQ || mo == nil {
+		return
+	}
+	key := modelKey(sys, opt)
+	d.mu.Lock()
+	d.model, d.modelKey = mo, key
+	d.mu.Unlock()
+}
+
+// modelKey identifies what a backorder search model depends on.
+func modelKey(sys inventory.System, opt Options) string {
+	return fmt.Sprintf("%s|%g|%g|%g|%g|%d", timingKey(sys), sys.Holding, sys.Shortage, sys.OrderCost, sys.UnitCost, opt.MaxStates)
 }
 
 // NewDemandTables returns empty tables.
