@@ -265,3 +265,34 @@ func TestSharedSearchModel(t *testing.T) {
 		}
 	}
 }
+
+// TestLeadTimeDemandOnce checks that a batch item's search (in either
+// mode), the evaluation of its optimum and that of a current policy compute
+// the lead-time demand laws once when they share DemandTables, as
+// batch.Planner.Plan has them do.
+func TestLeadTimeDemandOnce(t *testing.T) {
+	d, err := inventory.Parse("negbin:mean=12,var=40")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, mode := range []inventory.Mode{inventory.Backorder, inventory.Lost} {
+		for _, kind := range []Kind{SS, BaseStock, SNQ} {
+			if mode == inventory.Lost && kind == SNQ {
+				continue
+			}
+			sys := inventory.System{Demand: d, LeadTime: 2, Holding: 1, Shortage: 19, OrderCost: 50, UnitCost: 2, Mode: mode}
+			tabs := NewDemandTables()
+			so := SearchOptions{MinFillRate: 0.95}
+			so.Eval.Tables = tabs
+			if _, err := Optimize(sys, kind, so); err != nil {
+				t.Fatal(err)
+			}
+			if _, err := Evaluate(sys, Policy{Kind: SS, ReorderPoint: 20, OrderUpTo: 60}, Options{Tables: tabs}); err != nil {
+				t.Fatal(err)
+			}
+			if tabs.built != 1 {
+				t.Errorf("%s %s: lead-time demand computed %d times, want once", mode, kind, tabs.built)
+			}
+		}
+	}
+}

@@ -107,6 +107,9 @@ type DemandTables struct {
 	t    timing
 	err  error
 	done bool
+	// built counts the timings computed (a check for the tests that the
+	// laws are computed once per item).
+	built int
 	// model is the backorder model of the last base-stock or s-S search,
 	// for the next search of the same system and costs (modelKey).
 	model    *boModel
@@ -190,6 +193,7 @@ func (d *DemandTables) timing(sys inventory.System, k Kind) (timing, error) {
 	if !d.done || d.key != key {
 		d.t, d.err = timingOf(sys, k)
 		d.key, d.done = key, true
+		d.built++
 	}
 	return d.t, d.err
 }
