@@ -2,9 +2,6 @@ package chain
 
 import (
 	"slices"
-
-	"gonum.org/v1/gonum/graph/simple"
-	"gonum.org/v1/gonum/graph/topo"
 )
 
 // Structure describes the communicating classes of a chain: the strongly
@@ -27,14 +24,14 @@ type Structure struct {
 	Transient []int
 }
 
-// gonumMaxEdges is the largest number of transitions for which classes are
-// found with gonum's graph/topo.TarjanSCC. gonum's simple.DirectedGraph
-// keeps edges in maps: measured here, building it for a dense 1000-state
-// chain (1e6 edges) took 0.8 s, more than the GTH solve itself, and at a
-// million states it would need seconds and gigabytes. Above the limit an
-// iterative Tarjan over the CSR pattern (a few int32 arrays, no recursion)
-// is used; the tests check that both agree.
-const gonumMaxEdges = 20000
+// Classes are found by an iterative Tarjan over the CSR pattern (a few
+// int32 arrays, no recursion). gonum's graph/topo.TarjanSCC, which this
+// package used below 20,000 transitions, keeps the edges in maps: measured
+// here, building its graph for a dense 1000-state chain (1e6 edges) took
+// 0.8 s, more than the GTH solve itself, and even on the small lost-sales
+// chains of a search it cost a tenth of the exchange curve of the demo
+// report (issue 14). It stays as the independent check in the tests, which
+// compare the two on random chains.
 
 // pattern is the adjacency structure of the edges with p > 0.
 type pattern struct {
@@ -75,13 +72,7 @@ func patternOf(m Matrix) pattern {
 // and the transient states of m, in O(n + nnz).
 func Classify(m Matrix) Structure {
 	g := patternOf(m)
-	var comp []int32
-	if len(g.adj) <= gonumMaxEdges {
-		comp = sccGonum(g)
-	} else {
-		comp = sccTarjan(g)
-	}
-	return structureFrom(g, comp)
+	return structureFrom(g, sccTarjan(g))
 }
 
 // structureFrom builds the Structure from a component id per state.
@@ -188,28 +179,6 @@ func abs(a int) int {
 		return -a
 	}
 	return a
-}
-
-// sccGonum labels strongly connected components with gonum's TarjanSCC.
-func sccGonum(p pattern) []int32 {
-	g := simple.NewDirectedGraph()
-	for v := 0; v < p.n; v++ {
-		g.AddNode(simple.Node(v))
-	}
-	for u := 0; u < p.n; u++ {
-		for _, v := range p.adj[p.ptr[u]:p.ptr[u+1]] {
-			if int(v) != u {
-				g.SetEdge(simple.Edge{F: simple.Node(u), T: simple.Node(v)})
-			}
-		}
-	}
-	comp := make([]int32, p.n)
-	for c, scc := range topo.TarjanSCC(g) {
-		for _, nd := range scc {
-			comp[nd.ID()] = int32(c)
-		}
-	}
-	return comp
 }
 
 // sccTarjan labels strongly connected components with an iterative version

@@ -226,7 +226,7 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	if err := checkPositions(p, opt.MaxStates); err != nil {
 		return nil, err
 	}
-	tm, err := timingOf(sys, p.Kind)
+	tm, err := opt.Tables.timing(sys, p.Kind)
 	if err != nil {
 		return nil, err
 	}

@@ -13,6 +13,8 @@ func BenchmarkEvaluateSS(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 400), LeadTime: 3, Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
 	p := Policy{Kind: SS, ReorderPoint: 1500, OrderUpTo: 3500}
 	b.ReportAllocs()
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		if _, err := Evaluate(sys, p, Options{}); err != nil {
 			b.Fatal(err)
@@ -27,6 +29,8 @@ func BenchmarkEvaluateLost(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 5), LeadTime: 4, Holding: 1, Shortage: 20, Mode: inventory.Lost}
 	p := Policy{Kind: BaseStock, OrderUpTo: 30}
 	b.ReportAllocs()
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		e, err := Evaluate(sys, p, Options{})
 		if err != nil {
@@ -58,6 +62,8 @@ func BenchmarkOptimizeLostSS(b *testing.B) {
 func benchOptimizeLost(b *testing.B, k Kind) {
 	sys := lostOptCase(b)
 	b.ReportAllocs()
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		o, err := Optimize(sys, k, SearchOptions{})
 		if err != nil {
@@ -75,6 +81,8 @@ func BenchmarkEvaluateSSLevels(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 400), LeadTime: 3, Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
 	p := Policy{Kind: SS, ReorderPoint: 1500, OrderUpTo: 3500}
 	b.ReportAllocs()
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		e, err := Evaluate(sys, p, Options{Levels: true})
 		if err != nil {
@@ -89,6 +97,8 @@ func BenchmarkEvaluateLostLevels(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 5), LeadTime: 4, Holding: 1, Shortage: 20, Mode: inventory.Lost}
 	p := Policy{Kind: BaseStock, OrderUpTo: 30}
 	b.ReportAllocs()
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		e, err := Evaluate(sys, p, Options{Levels: true})
 		if err != nil {

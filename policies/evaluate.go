@@ -39,6 +39,11 @@ type Options struct {
 	// and the searches check it and return its error, wrapped, once it is
 	// done. A batch gives each item a deadline through it.
 	Context context.Context
+	// Tables, when not nil, keeps the lead-time demand laws of the system
+	// for other evaluations and searches of it (see DemandTables); it
+	// changes no figure. Optimize makes its own when it is nil, shared by
+	// its search and the evaluation of its optimum.
+	Tables *DemandTables
 }
 
 // Evaluation is what a policy delivers, with the chain it came from.

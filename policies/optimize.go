@@ -166,6 +166,10 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 	if opt.MaxEvaluations == 0 {
 		opt.MaxEvaluations = DefaultMaxEvaluations
 	}
+	if opt.Eval.Tables == nil {
+		// The search and the evaluation of its optimum share the laws.
+		opt.Eval.Tables = NewDemandTables()
+	}
 	var (
 		o   *Optimum
 		err error
@@ -196,7 +200,7 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	if err := checkOrderQuantity(sys, kind, opt.Eval.MaxStates); err != nil {
 		return nil, err
 	}
-	mo, err := newBOModelKind(sys, opt.Eval, kind)
+	mo, err := opt.Eval.Tables.searchModel(sys, opt.Eval, kind)
 	if err != nil {
 		return nil, err
 	}
@@ -215,6 +219,7 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	if err != nil {
 		return nil, err
 	}
+	opt.Eval.Tables.keepModel(sys, opt.Eval, kind, mo)
 	if !sys.FixedTiming() {
 		sr.Method += fmt.Sprintf("; at reviews every %d period(s), with the lead-time demand mixed over the lead-time law and the review phase (%s deliveries)", sys.Review(), sys.Model())
 	}
@@ -328,7 +333,7 @@ func (mo *boModel) baseStock(fl floors) (Policy, Search, error) {
 // optimizeSS runs Zheng-Federgruen and, if its optimum misses a floor, the
 // constrained search.
 func (mo *boModel) optimizeSS(fl floors) (Policy, Search, error) {
-	r, err := mo.zhengFedergruen()
+	r, err := mo.zfOnce()
 	if err != nil {
 		return Policy{}, Search{}, err
 	}

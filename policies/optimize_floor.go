@@ -144,8 +144,7 @@ func (mo *boModel) ssConstrained(fl floors, start zfResult) (constrained, error)
 	var win []levelCost
 	for S := Slo; ; S++ {
 		if S > Slo {
-			u.push()
-			f.push()
+			pushPair(u, f)
 		}
 		su, err := u.walkMin(ystar, &best.computed)
 		if err != nil {
@@ -289,18 +288,46 @@ func (t *trail) push() {
 
 // advance moves to level S+1 by the renewal recursion: O(w').
 func (t *trail) advance() {
-	S := t.S + 1
-	t.mo.ensureM(S - t.s + 1)
-	v := t.vals(S)
+	S, off, v := t.prep()
 	m0 := t.mo.m[0]
-	for f := range t.nf {
-		b := t.buf[f]
-		off := S - t.base
-		x := m0 * v[f]
-		for j, i := range t.k.at {
-			x += t.k.q[j] * b[off-i]
+	at, q := t.k.at, t.k.q[:len(t.k.at)]
+	var xs [3]float64
+	if t.nf == 1 {
+		b := t.buf[0]
+		x := m0 * v[0]
+		for j, i := range at {
+			x += q[j] * b[off-i]
 		}
-		t.buf[f] = append(b, x)
+		xs[0] = x
+	} else {
+		// The three sums in one pass over the kernel, each added in the
+		// same order as alone (the same bits), with independent chains of
+		// additions for the processor to overlap.
+		b0, b1, b2 := t.buf[0], t.buf[1][:len(t.buf[0])], t.buf[2][:len(t.buf[0])]
+		x0, x1, x2 := m0*v[0], m0*v[1], m0*v[2]
+		for j, i := range at {
+			qj, k := q[j], off-i
+			x0 += qj * b0[k]
+			x1 += qj * b1[k]
+			x2 += qj * b2[k]
+		}
+		xs = [3]float64{x0, x1, x2}
+	}
+	t.finish(S, xs)
+}
+
+// prep returns the next level S+1, its offset in the buffers and the
+// values of G, fill and so there, with the renewal mass extended to it.
+func (t *trail) prep() (S, off int, v [3]float64) {
+	S = t.S + 1
+	t.mo.ensureM(S - t.s + 1)
+	return S, S - t.base, t.vals(S)
+}
+
+// finish appends the sums xs of level S and compacts the buffers.
+func (t *trail) finish(S int, xs [3]float64) {
+	for f := range t.nf {
+		t.buf[f] = append(t.buf[f], xs[f])
 	}
 	*t.work += t.nf * len(t.k.at)
 	t.S = S
@@ -311,6 +338,42 @@ func (t *trail) advance() {
 			t.buf[f] = t.buf[f][:keep]
 		}
 		t.base += n - keep
+	}
+}
+
+// pushPair is u.push() and f.push() for the sweep's two cursors (u with
+// G alone, f with G, fill and so, at the same level and kernel), with
+// the four sums of the recursion added in one pass over the kernel: each
+// in the same order as alone (the same bits), the cursor u's chain of
+// additions, the longest, overlapped with f's.
+func pushPair(u, f *trail) {
+	if u.nf != 1 || f.nf != 3 || u.k != f.k || u.S != f.S {
+		u.push()
+		f.push()
+		return
+	}
+	S, offU, vu := u.prep()
+	_, offF, vf := f.prep()
+	m0 := u.mo.m[0]
+	at, q := u.k.at, u.k.q[:len(u.k.at)]
+	bu := u.buf[0]
+	b0, b1, b2 := f.buf[0], f.buf[1][:len(f.buf[0])], f.buf[2][:len(f.buf[0])]
+	xu := m0 * vu[0]
+	x0, x1, x2 := m0*vf[0], m0*vf[1], m0*vf[2]
+	for j, i := range at {
+		qj, k := q[j], offF-i
+		xu += qj * bu[offU-i]
+		x0 += qj * b0[k]
+		x1 += qj * b1[k]
+		x2 += qj * b2[k]
+	}
+	u.finish(S, [3]float64{xu})
+	f.finish(S, [3]float64{x0, x1, x2})
+	for _, t := range []*trail{u, f} {
+		t.fresh++
+		if t.fresh >= max(1024, t.S-t.s) {
+			t.reset(t.s, t.S)
+		}
 	}
 }
 

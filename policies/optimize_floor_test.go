@@ -312,6 +312,8 @@ func TestFloorExtreme(t *testing.T) {
 // benchFloor runs Optimize for s-S under a fill-rate floor.
 func benchFloor(b *testing.B, sys inventory.System, fill float64) {
 	b.ReportAllocs()
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		o, err := Optimize(sys, SS, SearchOptions{MinFillRate: fill})
 		if err != nil {
@@ -354,6 +356,8 @@ func BenchmarkOptimizeSSFloorLattice(b *testing.B) {
 // Zheng-Federgruen, the sweep; no Evaluate) for the lattice demo item.
 func BenchmarkFloorSweepLattice(b *testing.B) {
 	sys := rivetSystem(b)
+	defer reportCPU(b, processCPU())
+
 	for b.Loop() {
 		mo, err := newBOModel(sys)
 		if err != nil {

@@ -102,12 +102,13 @@ func optimizeLost(sys inventory.System, kind Kind, fl floors, opt SearchOptions)
 	bo := sys
 	bo.Mode = inventory.Backorder
 	bo.Shortage = max(sys.Shortage-sys.UnitCost, sys.Shortage*1e-6)
-	mo, err := newBOModel(bo)
+	tabs := Options{Tables: opt.Eval.Tables} // the laws do not depend on mode or costs
+	mo, err := newBOModelOpt(bo, tabs)
 	if err != nil {
 		return nil, err
 	}
 	// The lost-sales lower bounds use X_{L+1} and D of the real system.
-	lost, err := newBOModel(sys)
+	lost, err := newBOModelOpt(sys, tabs)
 	if err != nil {
 		return nil, err
 	}

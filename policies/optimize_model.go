@@ -120,6 +120,7 @@ type boModel struct {
 	pg, pfr, ps []float64
 
 	limit int             // the state limit: widest S - s and level range searched
+	zf    *zfResult       // the unconstrained s-S optimum, once found (zfOnce)
 	ctx   context.Context // nil: none
 	ticks int             // loop steps since the last look at ctx
 }
@@ -171,7 +172,7 @@ func newBOModelKind(sys inventory.System, opt Options, kind Kind) (*boModel, err
 	if limit <= 0 {
 		limit = DefaultMaxStates
 	}
-	tm, err := timingOf(sys, kind)
+	tm, err := opt.Tables.timing(sys, kind)
 	if err != nil {
 		return nil, err
 	}

@@ -33,6 +33,20 @@ type zfResult struct {
 // step; in step 1 a new S and a raise of s cost O(w) each, w the width of
 // the demand kernel (see the renewal recursion below). With K = 0 the
 // algorithm returns s = y*-1, S = y*: base-stock at the critical fractile.
+// zfOnce returns zhengFedergruen's result, computed at the first call: a
+// model kept for several searches of one system (DemandTables) runs it
+// once.
+func (mo *boModel) zfOnce() (zfResult, error) {
+	if mo.zf != nil {
+		return *mo.zf, nil
+	}
+	r, err := mo.zhengFedergruen()
+	if err == nil {
+		mo.zf = &r
+	}
+	return r, err
+}
+
 func (mo *boModel) zhengFedergruen() (zfResult, error) {
 	ystar, err := mo.fractile()
 	if err != nil {

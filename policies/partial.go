@@ -61,9 +61,10 @@ func newLossTable(x inventory.Distribution, lo, hi int) lossTable {
 	m := h - k0 + 1
 	pmf := make([]float64, m) // P(X = k0 + i)
 	next := 0                 // where to look again for an all-zero tail
+	terms := newPMFStepper(x, k0)
 	for i := range pmf {
 		k := k0 + i
-		pmf[i] = x.PMF(k)
+		pmf[i] = terms.at(k)
 		// Past the mean, once P(X >= k) itself is 0 in float64 every
 		// later term is 0 too (each is at most that tail): the rest of
 		// the table stays zero without computing its terms.
@@ -180,3 +181,55 @@ func tailSum(x inventory.Distribution, from int, mu, below float64) (sum, neglec
 
 // at returns the index of y in the table's range.
 func (t *lossTable) at(y int) int { return y - t.lo }
+
+// pmfStepper returns P(X = k) for k = k0, k0+1, ... in turn. For the
+// Poisson law it uses the ratio of successive terms,
+//
+//	P(X = k+1) = P(X = k) m / (k+1)
+//
+// (the standard recurrence; Johnson, Kemp and Kotz, Univariate Discrete
+// Distributions, 3rd ed. 2005, section 4.2, from memory), restarted from
+// the closed term every pmfAnchor steps and whenever a term falls below
+// pmfRecurrenceFloor, so each term carries at most about 2 pmfAnchor
+// rounding errors (under 1e-14 relative) and none is computed from a
+// subnormal one. P(X = 0) and P(X = 1) are always closed terms: the
+// renewal recursion of the position chain divides by the closed tail
+// P(D >= 1), and a first kernel term off from the closed one in its last
+// digits drifts over thousands of positions (seen at mean 1e-12 in
+// TestRenewalMatchesMatrix). A loss table of X_L needs thousands of terms, and the
+// closed term (an exponential, a logarithm and a square root) was about
+// half of the evaluation of the 2,000-position s-S chain (issue 14). Other
+// laws are evaluated term by term.
+type pmfStepper struct {
+	x      inventory.Distribution
+	m      float64 // Poisson mean; 0: term by term
+	k      int     // the last k returned, or k0-1
+	p      float64 // P(X = k)
+	anchor int     // steps since the closed term
+}
+
+const (
+	pmfAnchor          = 16
+	pmfRecurrenceFloor = 1e-280
+)
+
+func newPMFStepper(x inventory.Distribution, k0 int) *pmfStepper {
+	st := &pmfStepper{x: x, k: k0 - 1}
+	if p, ok := x.(inventory.Poisson); ok {
+		st.m = p.Mean()
+	}
+	return st
+}
+
+// at returns P(X = k); k is the previous k plus one.
+func (st *pmfStepper) at(k int) float64 {
+	if st.m > 0 && k == st.k+1 && k > 1 && st.anchor < pmfAnchor && st.p >= pmfRecurrenceFloor {
+		if v := st.p * (st.m / float64(k)); v >= pmfRecurrenceFloor {
+			st.k, st.p = k, v
+			st.anchor++
+			return v
+		}
+	}
+	st.k, st.p, st.anchor = k, st.x.PMF(k), 0
+	return st.p
+}

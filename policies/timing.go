@@ -2,6 +2,7 @@ package policies
 
 import (
 	"fmt"
+	"sync"
 
 	"ergostock/inventory"
 )
@@ -59,11 +60,10 @@ func timingOf(sys inventory.System, k Kind) (timing, error) {
 			return t, fmt.Errorf("demand over the review period of %d periods: %w", t.r, err)
 		}
 	}
+	if err := timingKindErr(sys, k); err != nil {
+		return t, err
+	}
 	if sys.LeadTimeLaw != nil && sys.Model() == inventory.Independent && !onePointLaw(sys) {
-		if k != BaseStock {
-			return t, &inventory.FieldError{Field: "lead_time_model", Value: string(sys.Model()),
-				Want: "sequential for " + string(k) + " (with independent lead times, where orders may cross, only base-stock in backorder mode is evaluated exactly: --policy base-stock)", Err: ErrNotExact}
-		}
 		t.x0, t.x1, err = independentPipeline(sys, t.pos)
 		if err != nil {
 			return t, err
@@ -78,6 +78,124 @@ func timingOf(sys inventory.System, k Kind) (timing, error) {
 	}
 	t.negl0, t.negl1 = inventory.Neglected(t.x0), inventory.Neglected(t.x1)
 	return t, nil
+}
+
+// timingKindErr refuses a policy kind other than base-stock under
+// independent lead times (with more than one point), where orders may
+// cross. It is the only way the timing of a system depends on the kind.
+func timingKindErr(sys inventory.System, k Kind) error {
+	if sys.FixedTiming() || k == BaseStock || sys.LeadTimeLaw == nil || sys.Model() != inventory.Independent || onePointLaw(sys) {
+		return nil
+	}
+	return &inventory.FieldError{Field: "lead_time_model", Value: string(sys.Model()),
+		Want: "sequential for " + string(k) + " (with independent lead times, where orders may cross, only base-stock in backorder mode is evaluated exactly: --policy base-stock)", Err: ErrNotExact}
+}
+
+// DemandTables keeps the laws of demand that the backorder figures of one
+// system rest on (demand over the lead time and over the lead time plus one
+// period, or their mixtures over a lead-time law and the review phase, and
+// the demand between reviews), so that a search, the evaluation of its
+// optimum and other evaluations of the same system compute them once: pass
+// it as Options.Tables. The laws depend on the demand, the lead time (or
+// its law and model) and the review period only, not on costs, mode or
+// policy. A system with another demand or timing replaces the kept laws,
+// so a wrong pairing costs time, never a wrong figure. It is safe for
+// concurrent use (the laws are read-only once built).
+type DemandTables struct {
+	mu   sync.Mutex
+	key  string
+	t    timing
+	err  error
+	done bool
+	// built counts the timings computed (a check for the tests that the
+	// laws are computed once per item).
+	built int
+	// model is the backorder model of the last base-stock or s-S search,
+	// for the next search of the same system and costs (modelKey).
+	model    *boModel
+	modelKey string
+}
+
+// searchModel returns the backorder model of sys for a search of kind k:
+// the one kept by the last search of the same system, costs and state
+// limit, or a new one. A kept model is handed out once (the next caller
+// builds its own until it is kept again), so concurrent searches never
+// share one. The models of base-stock and s-S searches are shared: their
+// tables hold values computed point by point (G, fill and so at a level,
+// the renewal mass m(j) by its recursion, the Zheng-Federgruen optimum),
+// the same bits however far a table has grown. s-nQ searches read prefix
+// sums, whose last digits depend on where a table starts, and build
+// their own.
+func (d *DemandTables) searchModel(sys inventory.System, opt Options, k Kind) (*boModel, error) {
+	if d == nil || k == SNQ {
+		return newBOModelKind(sys, opt, k)
+	}
+	if err := timingKindErr(sys, k); err != nil {
+		return nil, err
+	}
+	key := modelKey(sys, opt)
+	d.mu.Lock()
+	mo := d.model
+	if mo != nil && d.modelKey == key {
+		d.model = nil
+	} else {
+		mo = nil
+	}
+	d.mu.Unlock()
+	if mo == nil {
+		return newBOModelKind(sys, opt, k)
+	}
+	mo.ctx, mo.ticks = opt.Context, 0
+	return mo, nil
+}
+
+// keepModel keeps mo, the model of a finished base-stock or s-S search
+// of sys, for the next search (see searchModel).
+func (d *DemandTables) keepModel(sys inventory.System, opt Options, k Kind, mo *boModel) {
+	if d == nil || k == SNQ || mo == nil {
+		return
+	}
+	key := modelKey(sys, opt)
+	d.mu.Lock()
+	d.model, d.modelKey = mo, key
+	d.mu.Unlock()
+}
+
+// modelKey identifies what a backorder search model depends on.
+func modelKey(sys inventory.System, opt Options) string {
+	return fmt.Sprintf("%s|%g|%g|%g|%g|%d", timingKey(sys), sys.Holding, sys.Shortage, sys.OrderCost, sys.UnitCost, opt.MaxStates)
+}
+
+// NewDemandTables returns empty tables.
+func NewDemandTables() *DemandTables { return &DemandTables{} }
+
+// timingKey identifies what the timing of a system depends on.
+func timingKey(sys inventory.System) string {
+	law := ""
+	if sys.LeadTimeLaw != nil {
+		law = sys.LeadTimeLaw.String()
+	}
+	return fmt.Sprintf("%s|%d|%s|%s|%d", sys.Demand, sys.LeadTime, law, sys.Model(), sys.Review())
+}
+
+// timing returns timingOf(sys, k), from the tables when they hold the laws
+// of sys.
+func (d *DemandTables) timing(sys inventory.System, k Kind) (timing, error) {
+	if d == nil {
+		return timingOf(sys, k)
+	}
+	if err := timingKindErr(sys, k); err != nil {
+		return timing{}, err
+	}
+	key := timingKey(sys)
+	d.mu.Lock()
+	defer d.mu.Unlock()
+	if !d.done || d.key != key {
+		d.t, d.err = timingOf(sys, k)
+		d.key, d.done = key, true
+		d.built++
+	}
+	return d.t, d.err
 }
 
 // onePointLaw reports whether the lead-time law of sys has one point:

@@ -207,6 +207,8 @@ func benchCatalogue(b *testing.B, name string, c catalogue) {
 		b.Run(name+"/"+mode, func(b *testing.B) {
 			b.ReportAllocs()
 			failed := 0
+			defer reportCPU(b, processCPU())
+
 			for b.Loop() {
 				pl := &Planner{}
 				if mode == "fit-only" {

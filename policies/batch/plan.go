@@ -134,6 +134,9 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	}
 	opt := p.Options
 	opt.Context = ctx
+	// The search, the evaluation of its optimum and that of the current
+	// policy share the item's lead-time demand laws: computed once.
+	opt.Tables = policies.NewDemandTables()
 
 	kind := it.Kind
 	if kind == "" {

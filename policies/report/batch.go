@@ -224,6 +224,8 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 				// share their chain evaluations (the results are those of
 				// searches run alone).
 				cache := policies.NewEvalCache()
+				// and all of its searches the lead-time demand laws.
+				tables := policies.NewDemandTables()
 				for _, t := range order {
 					k := ji*nt + t
 					target := in.Targets[t]
@@ -237,6 +239,7 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 						continue
 					}
 					so := policies.SearchOptions{MinFillRate: target, Cache: cache}
+					so.Eval.Tables = tables
 					if j.sys.Mode == inventory.Lost {
 						so.Eval.MaxStates, so.MaxEvaluations = exchangeMaxStates, exchangeMaxEvaluations
 					}

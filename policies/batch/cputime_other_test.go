@@ -1,0 +1,12 @@
+//go:build !unix
+
+package batch
+
+import (
+	"testing"
+	"time"
+)
+
+func processCPU() time.Duration { return 0 }
+
+func reportCPU(b *testing.B, start time.Duration) {}
