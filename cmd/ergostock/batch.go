@@ -69,16 +69,16 @@ func batchCommand() *cli.Command {
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
 		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D]",
 		Description: batchDescription,
-		Flags: []cli.Flag{
-			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
-			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
+		Flags: append([]cli.Flag{
+			&cli.StringFlag{Name: "items", Usage: "items file (CSV in any common dialect, or .xlsx): costs, lead time and policy in use per SKU (and location)", Required: true},
+			&cli.StringFlag{Name: "history", Usage: "demand history (CSV in any common dialect, or .xlsx, with sku, date or period, quantity); may be omitted when every item has a demand column"},
 			&cli.StringFlag{Name: "out", Usage: "results file (CSV) to write; - writes the results to stdout", Required: true},
 			&cli.StringFlag{Name: "period", Usage: "review period the history is summed into: day, week (ISO, Monday first) or month", Value: "week"},
 			&cli.IntFlag{Name: "workers", Usage: "items planned at once", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
-		},
+		}, readFlags()...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -193,30 +193,51 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if shard.N == 0 {
 		meta.Shard = batch.Shard{K: 0, N: 1}
 	}
-	items, digest, err := readItemsFile(ctx, itemsPath, shard)
+	hopt, err := historyOptions(c)
+	if err != nil {
+		return err
+	}
+	iopt, err := itemsOptions(c, period)
+	if err != nil {
+		return err
+	}
+	cat, digest, err := readItemsFile(ctx, itemsPath, shard, iopt)
 	if e := interrupted(); e != nil {
 		return e
 	}
 	if err != nil {
 		return err
 	}
+	items := cat.Items
 	meta.Items = digest
+	read := "; read: items " + cat.Dialect
+	hopt.ByLocation = cat.ByLocation
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
-		h, digest, err := readHistoryFile(ctx, histPath, period)
+		h, digest, err := readHistoryFile(ctx, histPath, period, hopt)
 		if e := interrupted(); e != nil {
 			return e
 		}
 		if err != nil {
 			return err
 		}
+		if cat.ByLocation && !h.Location {
+			return fmt.Errorf("%s:1: the items file %s has a location column, so each (sku, location) is planned, but the history has none: add one to the history (or map it with --history-columns location=HEADER), or drop the items file's location column to plan each SKU on its whole history", h.File, itemsPath)
+		}
+		if h.Rows == 0 {
+			return fmt.Errorf("%s:2: no data rows, want at least one row of sku, date and quantity", h.File)
+		}
+		if err := fitNoSeries(h); err != nil {
+			return err
+		}
 		meta.History = digest
+		read += "; history " + historyNotes(h, hopt)
 		if n := len(h.Errors); n > 0 {
 			fmt.Fprintf(stderr, "ergostock: %s: %d rows without a sku skipped, first %v\n", histPath, n, h.Errors[0])
 		}
 		need := make(map[string]bool, len(items))
 		for _, it := range items {
-			need[it.SKU] = true
+			need[it.Key()] = true
 		}
 		planner.Fit, planner.Pattern = batch.HistoryFit(h, func(sku string) bool { return need[sku] })
 	} else {
@@ -241,6 +262,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	}
 	var sum batchSummary
 	bw := batch.NewWriter(out)
+	bw.Location = cat.ByLocation
 	err = bw.WriteMeta(meta)
 	if err == nil {
 		err = bw.WriteHeader()
@@ -274,7 +296,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if toStdout {
 		where = "results on stdout"
 	}
-	msg := sum.String() + "; " + where
+	msg := sum.String() + read + "; " + where
 	if sum.failed > 0 {
 		return &exitError{code: 3, err: errors.New(msg)}
 	}
@@ -314,17 +336,17 @@ func readDigested(ctx context.Context, flag, path string, read func(io.Reader) e
 	return batch.DigestSum(h), nil
 }
 
-func readItemsFile(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, digest string, err error) {
+func readItemsFile(ctx context.Context, path string, shard batch.Shard, opt batch.ReadOptions) (cat *batch.Catalogue, digest string, err error) {
 	digest, err = readDigested(ctx, "items", path, func(r io.Reader) (err error) {
-		items, err = batch.ReadItems(r, path, shard.Contains)
+		cat, err = batch.ReadCatalogue(r, path, shard.Contains, opt)
 		return err
 	})
-	return items, digest, err
+	return cat, digest, err
 }
 
-func readHistoryFile(ctx context.Context, path string, p history.Period) (h *history.History, digest string, err error) {
+func readHistoryFile(ctx context.Context, path string, p history.Period, opt history.Options) (h *history.History, digest string, err error) {
 	digest, err = readDigested(ctx, "history", path, func(r io.Reader) (err error) {
-		h, err = history.Read(r, path, p)
+		h, err = history.ReadWith(r, path, p, opt)
 		return err
 	})
 	return h, digest, err

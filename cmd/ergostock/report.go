@@ -72,6 +72,7 @@ func reportCommand() *cli.Command {
 		&cli.IntFlag{Name: "workers", Usage: "searches run at once for the exchange curve (default: all cores)", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
 		&cli.StringFlag{Name: "out", Usage: "HTML file to write", Required: true},
 	)
+	flags = append(flags, readFlags()...)
 	return &cli.Command{
 		Name:  "report",
 		Usage: "a self-contained HTML page with charts for one SKU or for a batch's results",
@@ -217,7 +218,11 @@ func reportHistory(c *cli.Context) (*report.History, error) {
 		return nil, usageErr("--%v", err)
 	}
 	path, sku := c.String("history"), c.String("sku")
-	h, err := reportReadHistory(path, period)
+	hopt, err := historyOptions(c)
+	if err != nil {
+		return nil, err
+	}
+	h, err := reportReadHistory(path, period, hopt)
 	if err != nil {
 		return nil, err
 	}
@@ -272,13 +277,13 @@ func reportExamples(h *history.History) string {
 	return strings.Join(names, ", ")
 }
 
-func reportReadHistory(path string, p history.Period) (*history.History, error) {
+func reportReadHistory(path string, p history.Period, opt history.Options) (*history.History, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("--history: %w", err)
 	}
 	defer f.Close()
-	return history.Read(f, path, p)
+	return history.ReadWith(f, path, p, opt)
 }
 
 // reportBatch gathers the batch page.
@@ -327,10 +332,19 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		in.Period = meta.Period
 	}
 	if p := c.String("items"); p != "" {
-		items, digest, err := readItemsFile(c.Context, p, batch.Shard{})
+		per, err := history.ParsePeriod(period)
+		if err != nil {
+			return nil, usageErr("--%v", err)
+		}
+		iopt, err := itemsOptions(c, per)
 		if err != nil {
 			return nil, err
 		}
+		cat, digest, err := readItemsFile(c.Context, p, batch.Shard{}, iopt)
+		if err != nil {
+			return nil, err
+		}
+		items := cat.Items
 		if meta != nil && digest != meta.Items {
 			return nil, mismatch("items", p, digest, "items", meta.Items)
 		}
@@ -342,7 +356,11 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if err != nil {
 			return nil, usageErr("--%v", err)
 		}
-		h, digest, err := readHistoryFile(c.Context, p, per)
+		hopt, err := historyOptions(c)
+		if err != nil {
+			return nil, err
+		}
+		h, digest, err := readHistoryFile(c.Context, p, per, hopt)
 		if err != nil {
 			return nil, err
 		}

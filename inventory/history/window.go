@@ -270,6 +270,11 @@ func (h *History) build(order []*acc, cols columns) error {
 			s.Demand[per(r.t)-s.Start] += r.q
 			s.Records += r.rows
 		}
+		if a.net {
+			for i, q := range s.Demand {
+				s.Demand[i] = max(q, 0) // returns beyond a period's demand
+			}
+		}
 		peak := 0
 		for i, q := range s.Demand {
 			if q > s.Demand[peak] {

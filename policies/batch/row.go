@@ -14,6 +14,9 @@ import (
 type Row struct {
 	Item int    // 0-based position in the items file
 	SKU  string // as in the items file
+	// Location is the item's location when the run plans by location
+	// (the items file has a location column), else "".
+	Location string
 
 	// The demand model, when known: set from the item's demand column or
 	// from the fit of its history.
@@ -63,6 +66,10 @@ type Writer struct {
 	out io.Writer
 	w   *csv.Writer
 	rec []string
+	// Location adds a location column after sku, for a run that plans by
+	// location (set it before WriteHeader); without it the file is as it
+	// always was.
+	Location bool
 }
 
 // NewWriter returns a Writer on w; call WriteMeta (optional) and
@@ -83,11 +90,20 @@ func (w *Writer) WriteMeta(m Meta) error {
 }
 
 // WriteHeader writes the header line.
-func (w *Writer) WriteHeader() error { return w.w.Write(Header()) }
+func (w *Writer) WriteHeader() error {
+	h := Header()
+	if w.Location {
+		h = append(h[:1], append([]string{"location"}, h[1:]...)...)
+	}
+	return w.w.Write(h)
+}
 
 // Write writes one row.
 func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
+	if w.Location {
+		w.rec = append(w.rec[:1], append([]string{Guard(r.Location)}, w.rec[1:]...)...)
+	}
 	return w.w.Write(w.rec)
 }
 
