@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"sort"
+	"strconv"
 	"strings"
 )
 
@@ -118,7 +119,7 @@ func (c Columns) Index(r *Reader) (map[string]int, error) {
 				if flag == "" {
 					flag = "the column map"
 				}
-				return nil, errorf(r.Name, r.HeaderLine, h, "not a column ergostock reads, but close to %s: rename it %s, or map it with %s \"%s=%s\"", k, k, flag, k, h)
+				return nil, errorf(r.Name, r.HeaderLine, h, "not a column ergostock reads, but close to %s: rename it %s, or map it with %s %s", k, k, flag, strconv.Quote(k+"="+h))
 			}
 		}
 	}
