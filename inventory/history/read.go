@@ -98,6 +98,9 @@ type History struct {
 	// Notes are what the reader assumed or left out for the file as a
 	// whole (one line each, naming the file).
 	Notes []string
+	// PartialRows counts the rows left out with a partial first or last
+	// period (see the package documentation).
+	PartialRows int
 }
 
 // Label names period number n in the history's period.
