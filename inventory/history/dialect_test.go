@@ -229,3 +229,41 @@ func TestReadDateGiven(t *testing.T) {
 		t.Errorf("start %s, found %v", h.Label(k.Start), h.DatesFound)
 	}
 }
+
+// A period column with a year column counts weeks (or months) of that
+// year; one that restarts without a year is refused, never summed across
+// years (issue 11, item 9).
+func TestReadYearPeriods(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("sku,year,period,quantity\n")
+	for _, yw := range [][2]int{{2024, 51}, {2024, 52}, {2025, 1}, {2025, 2}, {2025, 3}, {2025, 53}} {
+		fmt.Fprintf(&b, "A,%d,%d,%d\n", yw[0], yw[1], yw[1])
+	}
+	_, err := Read(strings.NewReader(b.String()), "h.csv", Week)
+	if want := `h.csv:7: period "53": want an ISO week of the year, 1 to 52 or 53 (with the year column)`; err != nil {
+		t.Fatal(err)
+	} else {
+		h := mustRead(t, b.String(), Week)
+		k := h.SKUs[0]
+		if len(k.Errors) != 1 || k.Errors[0].Error() != want {
+			t.Errorf("errors %v, want %s", k.Errors, want)
+		}
+		if h.Period != Week || h.Label(k.Start) != "2024-W51" || !reflect.DeepEqual(k.Demand, []int{51, 52, 1, 2, 3}) {
+			t.Errorf("period %v, start %s, %v", h.Period, h.Label(k.Start), k.Demand)
+		}
+	}
+	m := mustRead(t, "sku,year,period,quantity\nA,2025,11,4\nA,2025,12,5\nA,2026,1,6\n", Month)
+	if m.Period != Month || m.Label(m.SKUs[0].Start) != "2025-11" || !reflect.DeepEqual(m.SKUs[0].Demand, []int{4, 5, 6}) {
+		t.Errorf("months: %v %s %v", m.Period, m.Label(m.SKUs[0].Start), m.SKUs[0].Demand)
+	}
+	var r strings.Builder
+	r.WriteString("sku,period,quantity\n")
+	for w := 40; w <= 52; w++ {
+		fmt.Fprintf(&r, "A,%d,3\n", w)
+	}
+	r.WriteString("A,1,4\n")
+	_, err = Read(strings.NewReader(r.String()), "h.csv", Week)
+	if want := `h.csv:15: column period: period 1 follows period 52 (line 14) for sku "A": the periods seem to restart each year`; !strings.HasPrefix(errText(err), want) {
+		t.Errorf("restart: %v, want %s", err, want)
+	}
+}

@@ -259,6 +259,9 @@ func (k *SKU) Fit() (Summary, error) {
 	default:
 		s.Warnings = append(s.Warnings, fmt.Sprintf("%d bad rows skipped, first %v", len(k.Errors), k.Errors[0]))
 	}
+	if k.unit != "" {
+		s.Warnings = append(s.Warnings, k.unit)
+	}
 	switch {
 	case k.Returns > 0 && k.ReturnsMode == ReturnsIgnore:
 		s.Warnings = append(s.Warnings, fmt.Sprintf("returns ignored: %d rows with negative quantities (%d units) left out of the demand (--returns net nets them)", k.Returns, k.ReturnUnits))

@@ -46,11 +46,17 @@ type columns struct {
 	sku, qty, time int
 	loc, ret       int    // -1 when absent
 	timeName       string // "date" or "period"
+	// year is the year column beside a period column that counts weeks
+	// or months of the year (-1 when absent); yearly is then Week or
+	// Month, and times are day numbers (the Monday of the ISO week, the
+	// first of the month).
+	year   int
+	yearly Period
 }
 
 // HistoryColumns are the columns the history reader knows, in normal form
 // (see tabular.Normalize); a column map may name any of them.
-var HistoryColumns = []string{"sku", "date", "period", "quantity", "location"}
+var HistoryColumns = []string{"sku", "date", "period", "quantity", "location", "year"}
 
 // readHeader finds the columns in the header of tr.
 func readHeader(tr *tabular.Reader, opt Options) (columns, error) {
@@ -75,9 +81,9 @@ func readHeader(tr *tabular.Reader, opt Options) (columns, error) {
 		}
 		return -1
 	}
-	c := columns{sku: at("sku"), qty: at("quantity"), loc: at("location"), ret: -1, timeName: "date", time: at("date")}
+	c := columns{sku: at("sku"), qty: at("quantity"), loc: at("location"), ret: -1, timeName: "date", time: at("date"), year: -1}
 	if c.time < 0 {
-		c.time, c.timeName = at("period"), "period"
+		c.time, c.timeName, c.year = at("period"), "period", at("year")
 	}
 	if ret != "" {
 		if c.ret = at(ret); c.ret < 0 {
@@ -98,6 +104,12 @@ const MaxPeriodNumber = 1 << 40
 
 // timeWant is what the time cell should hold.
 func (c columns) timeWant() string {
+	if c.yearly == Month {
+		return "want a month of the year, 1 to 12 (with the year column)"
+	}
+	if c.yearly == Week {
+		return "want an ISO week of the year, 1 to 52 or 53 (with the year column)"
+	}
 	if c.timeName == "period" {
 		return fmt.Sprintf("want a whole period number between -%d and %d", MaxPeriodNumber, MaxPeriodNumber)
 	}
@@ -132,8 +144,34 @@ func (c columns) timeOf(s string) (int, string) {
 
 // timeLabel writes a time back as the row gave it.
 func (c columns) timeLabel(t int) string {
+	if c.yearly == Week || c.yearly == Month {
+		return c.yearly.Label(periodOfDay(c.yearly, t))
+	}
 	if c.timeName == "period" {
 		return strconv.Itoa(t)
 	}
 	return Day.Label(t)
+}
+
+// yearTime reads a year cell and a week or month of that year as a day
+// number: the Monday of the ISO week (ISO 8601: week 1 holds 4 January),
+// or the first of the month.
+func (c columns) yearTime(ys, ps string) (int, string, string) {
+	y, ok := parseWhole(ys, MaxYear+1)
+	if !ok || y < MinYear {
+		return 0, "year", fmt.Sprintf("want a year %d to %d", MinYear, MaxYear)
+	}
+	n, ok := parseWhole(ps, 54)
+	if c.yearly == Month {
+		if !ok || n < 1 || n > 12 {
+			return 0, "period", c.timeWant()
+		}
+		return daysFromCivil(y, n, 1), "", ""
+	}
+	jan4 := daysFromCivil(y, 1, 4)
+	monday := jan4 - ((jan4+3)%7+7)%7 + 7*(n-1)
+	if !ok || n < 1 || periodOfDay(Week, monday+3) != periodOfDay(Week, monday) || Week.Label(periodOfDay(Week, monday))[:4] != strconv.Itoa(y) {
+		return 0, "period", c.timeWant()
+	}
+	return monday, "", ""
 }

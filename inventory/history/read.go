@@ -64,6 +64,9 @@ type SKU struct {
 	// ReturnsMode is how the returns were read.
 	ReturnsMode Returns
 
+	// unit says the unit of a scaled history, for the warnings.
+	unit string
+
 	// peakFile:peakLine is the first row of the period of largest demand.
 	peakFile string
 	peakLine int
@@ -172,12 +175,18 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 	if err != nil {
 		return nil, err
 	}
-	if cols.timeName == "period" {
-		p = Index
-	}
 	if p < Day || p > Index {
 		return nil, fmt.Errorf("%s:%d: period %v: want day, week or month", name, tr.HeaderLine, p)
 	}
+	switch {
+	case cols.year >= 0 && p == Day:
+		return nil, fmt.Errorf("%s:%d: columns %s and %s count weeks or months of a year, which cannot be split into days: give --period week (or month)", name, tr.HeaderLine, tr.Header[cols.year], tr.Header[cols.time])
+	case cols.year >= 0:
+		cols.yearly = p
+	case cols.timeName == "period":
+		p = Index
+	}
+	restart := map[string][2]int{} // key -> last period number, its line
 	nums := tabular.Numbers{Decimal: opt.Decimal, File: name}
 	if nums.Decimal == 0 && tr.Dialect.Format == "csv" && tr.Dialect.Delimiter == ',' {
 		nums.Decimal = '.'
@@ -266,6 +275,19 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 				dateTexts = append(dateTexts, tabular.DateSample{Text: strings.Clone(ts), Line: line})
 			}
 			rw.date = id
+		} else if cols.year >= 0 {
+			ys := field(cols.year)
+			t, f, want := cols.yearTime(ys, ts)
+			if want != "" {
+				v := ts
+				if f == "year" {
+					v = ys
+				}
+				rw.err = &RowError{name, line, f, strings.Clone(v), want}
+				rows = append(rows, rw)
+				continue
+			}
+			rw.t = t
 		} else {
 			t, want := cols.timeOf(ts)
 			if want != "" {
@@ -273,6 +295,14 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 				rows = append(rows, rw)
 				continue
 			}
+			// A period column that restarts (52, then 1) counts weeks or
+			// months of the year: summing it would add the years together.
+			k := key + "\x00" + field(cols.loc)
+			if prev, ok := restart[k]; ok && prev[0] >= 12 && t <= 2 && t < prev[0]-9 {
+				return nil, fmt.Errorf("%s:%d: column %s: period %d follows period %d (line %d) for sku %q: the periods seem to restart each year, and summing them would add the years together; give the year in a column named year (with --period week or month), or number the periods without restarting",
+					name, line, tr.Header[cols.time], t, prev[0], prev[1], sku)
+			}
+			restart[k] = [2]int{t, line}
 			rw.t = t
 		}
 		qs := field(cols.qty)
@@ -370,6 +400,7 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 	}
 	for _, a := range order {
 		a.sku.ReturnsMode = opt.Returns
+		a.sku.unit = UnitNote(scale)
 	}
 	if err := h.build(order, cols); err != nil {
 		return nil, err

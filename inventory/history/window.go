@@ -46,7 +46,7 @@ type gapScale struct {
 }
 
 func (c columns) gapScale() gapScale {
-	if c.timeName == "period" {
+	if c.timeName == "period" && c.yearly != Week && c.yearly != Month {
 		return gapScale{min: 52, abs: 520, unit: "periods"}
 	}
 	return gapScale{min: 366, abs: 3653, unit: "days"}
