@@ -19,6 +19,7 @@ import (
 	"ergostock/inventory/history"
 	"ergostock/policies"
 	"ergostock/policies/batch"
+	"ergostock/policies/uncertainty"
 )
 
 const batchDescription = `Plans every item of the items file: fits a demand model to the item's
@@ -63,12 +64,24 @@ unreadable file, a missing column, a write error, --out busy or not
 writable) and nothing was written; 2 for a usage error; 130 (SIGINT) or 143
 (SIGTERM) when the run was interrupted and nothing was written.`
 
+// batchUncertaintyHelp says what --uncertainty adds to the results.
+const batchUncertaintyHelp = `In a batch, --uncertainty appends columns after the usual ones (a plain run's
+file is unchanged): resampling, resamples_used; reorder_point_p05/_p50/_p95,
+order_up_to_p05/..., order_multiple_p05/... (the levels' bands);
+expected_fill_rate, fill_rate_p05, fill_rate_p95, expected_stockout_probability,
+expected_total_cost, total_cost_p95 (the recommendation under the resampled
+models); regret_mean, regret_p95; share_meeting_min_fill_rate; and with
+--robust robust_policy, robust_reorder_point, robust_order_up_to,
+robust_order_multiple, robust_mean_total_cost,
+robust_share_meeting_min_fill_rate, plug_in_mean_total_cost, robust_extra_cost.
+Items planned from a demand column get empty cells and a warning.`
+
 func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D]",
-		Description: batchDescription,
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]] [reader flags: --delimiter, --decimal, --date-format, --history-columns, ...]",
+		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced." + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
 		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV in any common dialect, or .xlsx): costs, lead time and policy in use per SKU (and location)", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "demand history (CSV in any common dialect, or .xlsx, with sku, date or period, quantity); may be omitted when every item has a demand column"},
@@ -78,7 +91,7 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
-		}, readFlags()...),
+		}, append(append(receiptsFlags(), uncertaintyFlags()...), readFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -133,9 +146,24 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err != nil {
 		return usageErr("--%v", err)
 	}
+	uopt, withUnc, err := uncertaintyOptions(c)
+	if err != nil {
+		return err
+	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
+	receiptsPath := c.String("receipts")
+	if c.IsSet("receipts") && receiptsPath == "" {
+		return usageErr("--receipts: want the receipts file")
+	}
+	if receiptsPath == "-" {
+		return usageErr("--receipts -: batch reads the receipts from a file, not standard input")
+	}
+	ropt, err := receiptsOptions(c, period)
+	if err != nil {
+		return err
+	}
 	toStdout := outPath == "-"
-	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}} {
+	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}, {"receipts", receiptsPath}} {
 		if in.path != "" && !toStdout && sameFile(in.path, outPath) {
 			return usageErr("--out %s: it is the --%s file; choose another results file", outPath, in.flag)
 		}
@@ -245,7 +273,43 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			return nil, errors.New("no demand column and no --history file")
 		}
 	}
+	if withUnc {
+		planner.Uncertainty = batch.UncertaintyStep(uopt, planner.Options)
+		meta.Uncertainty = fmt.Sprintf("%s,resamples=%d,seed=%d,robust=%v", uopt.Scheme, uopt.Resamples, uopt.Seed, uopt.Robust)
+		if uopt.Robust {
+			conf := uopt.FloorConfidence
+			if conf == 0 {
+				conf = uncertainty.DefaultFloorConfidence
+			}
+			meta.Uncertainty += fmt.Sprintf(",floor_confidence=%g", conf)
+		}
+	}
 	meta.Run = meta.RunDigest()
+	var leadNotes map[int][]string
+	if receiptsPath != "" {
+		rf, digest, err := readReceiptsFile(ctx, nil, receiptsPath, ropt)
+		if e := interrupted(); e != nil {
+			return e
+		}
+		if err != nil {
+			return err
+		}
+		if err := receiptsNoLaw(rf); err != nil {
+			return err
+		}
+		if n := len(rf.Errors); n > 0 {
+			fmt.Fprintf(stderr, "ergostock: %s: %d receipt rows without a sku skipped, first %v\n", receiptsPath, n, rf.Errors[0])
+		}
+		var tally receiptsTally
+		leadNotes, tally = applyReceipts(items, rf)
+		fmt.Fprintf(stderr, "ergostock: %s (%s; lead times in %s periods): lead-time laws set for %d items; lead_time kept for %d items on too few receipts and %d items without receipts; %d SKUs of the receipts match no item planned in this run\n",
+			receiptsPath, rf.Dialect, rf.Period, tally.set, tally.kept, tally.without, tally.unmatched)
+		// The receipts shape the figures: they join the run digest, so
+		// shards planned with other receipts do not join this run.
+		h := batch.NewDigest()
+		fmt.Fprintf(h, "run=%s\nreceipts=%s\n", meta.Run, digest)
+		meta.Run = batch.DigestSum(h)
+	}
 
 	var bar *progressbar.ProgressBar
 	if isTerminal(stderr) && len(items) > 0 {
@@ -263,6 +327,10 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	var sum batchSummary
 	bw := batch.NewWriter(out)
 	bw.Location = cat.ByLocation
+	if withUnc {
+		robust := uopt.Robust
+		bw.Uncertainty = &robust
+	}
 	err = bw.WriteMeta(meta)
 	if err == nil {
 		err = bw.WriteHeader()
@@ -270,6 +338,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err == nil {
 		err = planner.PlanAll(ctx, items, batch.RunOptions{Workers: workers, ItemTimeout: timeout},
 			func(r *batch.Row) error {
+				if n := leadNotes[r.Item]; len(n) > 0 {
+					r.Warnings = append(append([]string(nil), n...), r.Warnings...)
+				}
 				sum.add(r)
 				if bar != nil {
 					bar.Add(1)

@@ -38,6 +38,10 @@ type Meta struct {
 	MaxStates int
 	Shard     Shard
 	Version   string
+	// Uncertainty describes the resampling of a run with --uncertainty
+	// (e.g. "iid,resamples=200,seed=1"); "" for a plain run, whose record
+	// and run digest then stay as they were.
+	Uncertainty string
 }
 
 // NewDigest returns the hash whose sum DigestSum prints.
@@ -51,13 +55,20 @@ func (m Meta) RunDigest() string {
 	h := NewDigest()
 	fmt.Fprintf(h, "ergostock results v%d\nperiod=%s\nitems=%s\nhistory=%s\nmax_states=%d\nversion=%s\n",
 		m.Format, m.Period, m.Items, m.History, m.MaxStates, m.Version)
+	if m.Uncertainty != "" {
+		fmt.Fprintf(h, "uncertainty=%s\n", m.Uncertainty)
+	}
 	return DigestSum(h)
 }
 
 // String prints the header record (without a line end).
 func (m Meta) String() string {
-	return fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
+	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
 		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version)
+	if m.Uncertainty != "" {
+		s += "; uncertainty=" + m.Uncertainty
+	}
+	return s
 }
 
 // ParseMeta reads a header record written by Meta.String; name and line
@@ -100,6 +111,8 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			}
 		case "version":
 			m.Version = val
+		case "uncertainty":
+			m.Uncertainty = val
 		}
 	}
 	if m.Period == "" || m.Items == "" {

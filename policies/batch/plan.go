@@ -18,6 +18,9 @@ type Fitted struct {
 	Demand   inventory.Distribution
 	Pattern  string   // smooth, erratic, intermittent or lumpy; "" if none
 	Warnings []string // about the history and the fit
+	// Series is the per-period demand the model was fitted to (for the
+	// resampling of --uncertainty); nil when not kept.
+	Series []int
 }
 
 // Planner runs the plan of one item: the demand model (the item's demand
@@ -36,6 +39,10 @@ type Planner struct {
 	Optimize func(inventory.System, policies.Kind, policies.SearchOptions) (*policies.Optimum, error)
 	Evaluate func(inventory.System, policies.Policy, policies.Options) (*policies.Evaluation, error)
 	Options  policies.Options // for every evaluation
+	// Uncertainty, when not nil, runs after a successful plan of an item
+	// (see UncertaintyStep) and adds its cells and warnings to the row;
+	// fitted is nil when the item's demand column replaced the fit.
+	Uncertainty func(ctx context.Context, it Item, sys inventory.System, fitted *Fitted, row *Row)
 }
 
 // DefaultKind is the policy type searched when an item names none: s-S when
@@ -87,6 +94,8 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 		return row
 	}
 	sys := it.System
+	var fitted *Fitted
+	row.SetTiming(sys)
 	if sys.Demand != nil && p.Pattern != nil {
 		SetStage(ctx, "reading the demand pattern")
 		row.Pattern = p.Pattern(it.Key())
@@ -103,6 +112,7 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 			return row
 		}
 		sys.Demand = f.Demand
+		fitted = f
 		row.Pattern = f.Pattern
 		row.Warnings = append(row.Warnings, f.Warnings...)
 	}
@@ -168,6 +178,10 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 			row.Warnings = append(row.Warnings, fmt.Sprintf("current policy %v has fill rate %.4g, below min_fill_rate %g",
 				*it.Current, cur.Figures.FillRate, it.MinFillRate))
 		}
+	}
+	if p.Uncertainty != nil {
+		SetStage(ctx, "resampling the history")
+		p.Uncertainty(ctx, it, sys, fitted, &row)
 	}
 	return row
 }

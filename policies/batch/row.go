@@ -25,6 +25,14 @@ type Row struct {
 	DemandVariance float64
 	Pattern        string // of the history; "" without one
 
+	// The timing the item was planned under (see SetTiming): the lead
+	// time as a whole number of periods or a law in the demand grammar,
+	// the lead-time model and the review period; "" and 0 when unknown
+	// (an item that failed before its system was read).
+	LeadTime      string
+	LeadTimeModel string
+	ReviewPeriod  int
+
 	// The cheapest policy and what it delivers; nil when the item failed.
 	Policy  *policies.Policy
 	Figures *inventory.Figures
@@ -39,6 +47,22 @@ type Row struct {
 
 	Warnings []string
 	Err      error // why the item failed; nil when it did not
+
+	// Uncertainty holds the resampling cells of a run with --uncertainty
+	// (see UncertaintyHeader); nil otherwise or when the analysis failed.
+	Uncertainty *UncertaintyCells
+}
+
+// SetTiming records the lead time, the lead-time model and the review
+// period of sys in the row (columns lead_time, lead_time_model and
+// review_period).
+func (r *Row) SetTiming(sys inventory.System) {
+	r.LeadTime = strconv.Itoa(sys.LeadTime)
+	if sys.LeadTimeLaw != nil {
+		r.LeadTime = sys.LeadTimeLaw.String()
+	}
+	r.LeadTimeModel = string(sys.Model())
+	r.ReviewPeriod = sys.Review()
 }
 
 // Saving is the current policy's total cost minus the chosen one's, and
@@ -50,10 +74,18 @@ func (r *Row) Saving() (float64, bool) {
 	return *r.CurrentTotalCost - r.Figures.TotalCost, true
 }
 
+// TimingColumns are the columns of the timing an item was planned under,
+// in this order right after the policy's levels: lead_time (a whole
+// number of periods, or the law in the demand grammar, quoted as CSV
+// quotes a cell with commas), lead_time_model (sequential or independent)
+// and review_period (periods between reviews, 1 for every period).
+var TimingColumns = []string{"lead_time", "lead_time_model", "review_period"}
+
 // Header returns the column names of the results file.
 func Header() []string {
 	h := []string{"sku", "demand", "demand_mean", "demand_variance", "pattern",
 		"policy", "reorder_point", "order_up_to", "order_multiple"}
+	h = append(h, TimingColumns...)
 	for _, f := range (inventory.Figures{}).Fields() {
 		h = append(h, f.Name)
 	}
@@ -70,6 +102,10 @@ type Writer struct {
 	// location (set it before WriteHeader); without it the file is as it
 	// always was.
 	Location bool
+	// Uncertainty, when not nil, appends the columns of
+	// UncertaintyHeader(*Uncertainty) after the standard ones (true: with
+	// the robust policy's); nil keeps the plain file.
+	Uncertainty *bool
 }
 
 // NewWriter returns a Writer on w; call WriteMeta (optional) and
@@ -95,6 +131,9 @@ func (w *Writer) WriteHeader() error {
 	if w.Location {
 		h = append(h[:1], append([]string{"location"}, h[1:]...)...)
 	}
+	if w.Uncertainty != nil {
+		h = append(h, UncertaintyHeader(*w.Uncertainty)...)
+	}
 	return w.w.Write(h)
 }
 
@@ -103,6 +142,9 @@ func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
 	if w.Location {
 		w.rec = append(w.rec[:1], append([]string{Guard(r.Location)}, w.rec[1:]...)...)
+	}
+	if w.Uncertainty != nil {
+		w.rec = r.Uncertainty.appendCells(w.rec, *w.Uncertainty)
 	}
 	return w.w.Write(w.rec)
 }
@@ -126,6 +168,10 @@ func (r *Row) appendRecord(rec []string) []string {
 	}
 	rec = append(rec, Guard(r.Pattern))
 	ok := r.Err == nil && r.Policy != nil && r.Figures != nil
+	review := ""
+	if r.ReviewPeriod > 0 {
+		review = strconv.Itoa(r.ReviewPeriod)
+	}
 	if ok {
 		p := r.Policy
 		s, S, Q := "", "", ""
@@ -137,12 +183,12 @@ func (r *Row) appendRecord(rec []string) []string {
 		case policies.SNQ:
 			s, Q = strconv.Itoa(p.ReorderPoint), strconv.Itoa(p.OrderMultiple)
 		}
-		rec = append(rec, string(p.Kind), s, S, Q)
+		rec = append(rec, string(p.Kind), s, S, Q, Guard(r.LeadTime), Guard(r.LeadTimeModel), review)
 		for _, f := range r.Figures.Fields() {
 			rec = append(rec, formatFloat(f.Value))
 		}
 	} else {
-		rec = append(rec, "", "", "", "")
+		rec = append(rec, "", "", "", "", Guard(r.LeadTime), Guard(r.LeadTimeModel), review)
 		for range (inventory.Figures{}).Fields() {
 			rec = append(rec, "")
 		}

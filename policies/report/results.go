@@ -29,6 +29,15 @@ type ResultRow struct {
 	Saving         *float64           // current minus recommended total cost
 	Warnings       []string
 	Err            string
+	// Uncertainty holds the resampling columns of a run with
+	// --uncertainty; nil without them or for an item without figures.
+	Uncertainty *ResultUncertainty
+	// The timing the item was planned under (columns lead_time,
+	// lead_time_model and review_period, see batch.TimingColumns); empty
+	// and 0 in files written before they were added.
+	LeadTime      string
+	LeadTimeModel string
+	ReviewPeriod  int
 }
 
 // resultColumns are the columns the report needs from a results file.
@@ -221,6 +230,32 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 			f := inventory.FromFields(vals)
 			row.Figures = &f
 		}
+		// Optional: files written before these columns lack them.
+		opt := func(c string) string {
+			if _, has := col[c]; has {
+				return text(c)
+			}
+			return ""
+		}
+		row.LeadTime, row.LeadTimeModel = opt("lead_time"), opt("lead_time_model")
+		if row.LeadTime != "" {
+			if _, _, err := inventory.ParseLeadTime(row.LeadTime); err != nil {
+				return nil, bad("lead_time", "a whole number of periods or a lead-time law")
+			}
+		}
+		if row.LeadTimeModel != "" {
+			if _, err := inventory.ParseLeadTimeModel(row.LeadTimeModel); err != nil {
+				return nil, bad("lead_time_model", "sequential or independent")
+			}
+		}
+		if _, has := col["review_period"]; has {
+			if row.ReviewPeriod, err = integer("review_period"); err != nil {
+				return nil, err
+			}
+		}
+		if row.ReviewPeriod < 0 {
+			return nil, bad("review_period", "a whole number of periods >= 1 or an empty cell")
+		}
 		if v, ok, err := number("current_total_cost"); err != nil {
 			return nil, err
 		} else if ok {
@@ -230,6 +265,11 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 			return nil, err
 		} else if ok {
 			row.Saving = &v
+		}
+		if u, err := readUncertainty(col, number); err != nil {
+			return nil, err
+		} else {
+			row.Uncertainty = u
 		}
 		rows = append(rows, row)
 	}
