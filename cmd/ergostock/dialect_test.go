@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -409,4 +410,64 @@ func TestLocations(t *testing.T) {
 	if m, _ := strconv.ParseFloat(rows[0][index(header, "demand_mean")], 64); !(m > 13 && m < 15) {
 		t.Errorf("summed mean %v, want about 14", m)
 	}
+}
+
+// A round trip through a real spreadsheet program, where one is installed:
+// the demo subset converted to .xlsx by it headless plans as the CSV does.
+// Skipped, with a message, on machines without one.
+func TestSpreadsheetRoundTrip(t *testing.T) {
+	if testing.Short() {
+		t.Skip("plans the demo subset twice")
+	}
+	convert := spreadsheetConverter()
+	if convert == nil {
+		t.Skip("no spreadsheet program found (soffice, libreoffice or ssconvert on PATH): round trip not run")
+	}
+	items, hist := demoSubset(t, 8)
+	dir := t.TempDir()
+	ic, hc := filepath.Join(dir, "items.csv"), filepath.Join(dir, "history.csv")
+	writeDelimited(t, ic, items, ',', false, false)
+	writeDelimited(t, hc, hist, ',', false, false)
+	want, _ := batchResults(t, ic, hc)
+	var xs []string
+	for _, in := range []string{ic, hc} {
+		x, err := convert(in, filepath.Join(dir, "x"))
+		if err != nil {
+			t.Skipf("the spreadsheet program failed to convert %s: %v", in, err)
+		}
+		xs = append(xs, x)
+	}
+	if got, _ := batchResults(t, xs[0], xs[1]); got != want {
+		t.Errorf("results through the spreadsheet program differ from the CSV run")
+	}
+}
+
+// spreadsheetConverter returns a function converting a CSV file to .xlsx
+// in outDir with an installed spreadsheet program, or nil.
+func spreadsheetConverter() func(in, outDir string) (string, error) {
+	for _, name := range []string{"soffice", "libreoffice"} {
+		if p, err := exec.LookPath(name); err == nil {
+			return func(in, outDir string) (string, error) {
+				out, err := exec.Command(p, "--headless", "--convert-to", "xlsx", "--outdir", outDir, in).CombinedOutput()
+				if err != nil {
+					return "", fmt.Errorf("%v: %s", err, out)
+				}
+				return filepath.Join(outDir, strings.TrimSuffix(filepath.Base(in), ".csv")+".xlsx"), nil
+			}
+		}
+	}
+	if p, err := exec.LookPath("ssconvert"); err == nil {
+		return func(in, outDir string) (string, error) {
+			if err := os.MkdirAll(outDir, 0o755); err != nil {
+				return "", err
+			}
+			x := filepath.Join(outDir, strings.TrimSuffix(filepath.Base(in), ".csv")+".xlsx")
+			out, err := exec.Command(p, in, x).CombinedOutput()
+			if err != nil {
+				return "", fmt.Errorf("%v: %s", err, out)
+			}
+			return x, nil
+		}
+	}
+	return nil
 }
