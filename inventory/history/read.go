@@ -163,7 +163,9 @@ func Read(r io.Reader, name string, p Period) (*History, error) {
 // the rows read plus the periods of the series, which are counted before
 // they are allocated.
 func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error) {
-	tr, err := tabular.Open(r, name, opt.Table)
+	topt := opt.Table
+	topt.Reuse = true // no record is kept
+	tr, err := tabular.Open(r, name, topt)
 	if err != nil {
 		if te, ok := err.(*tabular.Error); ok && strings.Contains(te.Err.Error(), "empty") {
 			return nil, fmt.Errorf("%s:1: empty file, want a header line with columns %s: %w", name, historyColumns, ErrMissingColumn)
@@ -187,6 +189,8 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 		p = Index
 	}
 	restart := map[string][2]int{} // key -> last period number, its line
+	errs := map[int]*RowError{}     // row -> why it cannot be used
+	qerrs := map[int]*RowError{}    // row -> why its quantity cannot (after the date)
 	nums := tabular.Numbers{Decimal: opt.Decimal, File: name}
 	if nums.Decimal == 0 && tr.Dialect.Format == "csv" && tr.Dialect.Delimiter == ',' {
 		nums.Decimal = '.'
@@ -200,7 +204,7 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 	accs := map[string]*acc{}
 	var order []*acc
 	var last *acc // rows usually come grouped by SKU
-	var rows []row
+	var rows rowStore
 	dates := map[string]int32{}
 	var dateTexts []tabular.DateSample
 	for {
@@ -250,20 +254,21 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 			}
 			last = a
 		}
-		rw := row{a: a, line: line, date: -1}
+		rw := row{a: a, line: line}
+		idx := rows.n
 		if width != "" {
 			if len(rec) < len(tr.Header) {
 				short := fmt.Sprintf(" (the row has %d fields, the header %d)", len(rec), len(tr.Header))
 				switch {
 				case cols.time >= len(rec):
-					rw.err = &RowError{name, line, cols.timeName, "", cols.timeWant() + short}
+					errs[idx] = &RowError{name, line, cols.timeName, "", cols.timeWant() + short}
 				default:
-					rw.err = &RowError{name, line, "quantity", "", "want a whole number >= 0" + short}
+					errs[idx] = &RowError{name, line, "quantity", "", "want a whole number >= 0" + short}
 				}
 			} else {
-				rw.err = &RowError{name, line, "row", strings.Join(rec, string(tr.Dialect.Delimiter)), width}
+				errs[idx] = &RowError{name, line, "row", strings.Join(rec, string(tr.Dialect.Delimiter)), width}
 			}
-			rows = append(rows, rw)
+			rows.add(rw)
 			continue
 		}
 		ts := field(cols.time)
@@ -274,7 +279,7 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 				dates[strings.Clone(ts)] = id
 				dateTexts = append(dateTexts, tabular.DateSample{Text: strings.Clone(ts), Line: line})
 			}
-			rw.date = id
+			rw.v = int(id)
 		} else if cols.year >= 0 {
 			ys := field(cols.year)
 			t, f, want := cols.yearTime(ys, ts)
@@ -283,16 +288,16 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 				if f == "year" {
 					v = ys
 				}
-				rw.err = &RowError{name, line, f, strings.Clone(v), want}
-				rows = append(rows, rw)
+				errs[idx] = &RowError{name, line, f, strings.Clone(v), want}
+				rows.add(rw)
 				continue
 			}
-			rw.t = t
+			rw.v = t
 		} else {
 			t, want := cols.timeOf(ts)
 			if want != "" {
-				rw.err = &RowError{name, line, cols.timeName, strings.Clone(ts), want}
-				rows = append(rows, rw)
+				errs[idx] = &RowError{name, line, cols.timeName, strings.Clone(ts), want}
+				rows.add(rw)
 				continue
 			}
 			// A period column that restarts (52, then 1) counts weeks or
@@ -303,18 +308,21 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 					name, line, tr.Header[cols.time], t, prev[0], prev[1], sku)
 			}
 			restart[k] = [2]int{t, line}
-			rw.t = t
+			rw.v = t
 		}
 		qs := field(cols.qty)
 		q, want := quantityWith(qs, line, &nums, scale)
 		if want != "" {
-			rw.qerr = &RowError{name, line, "quantity", strings.Clone(qs), want}
+			qerrs[idx] = &RowError{name, line, "quantity", strings.Clone(qs), want}
+		}
+		if cols.ret >= 0 && strings.EqualFold(field(cols.ret), opt.ReturnsValue) && q > 0 {
+			q = -q
+		}
+		if q < 0 && opt.Returns == ReturnsError && want == "" {
+			qerrs[idx] = &RowError{name, line, "quantity", strings.Clone(qs), "want a whole number >= 0 (a return: give --returns ignore or net to read returns)"}
 		}
 		rw.q = q
-		if cols.ret >= 0 && strings.EqualFold(field(cols.ret), opt.ReturnsValue) && q > 0 {
-			rw.q = -q
-		}
-		rows = append(rows, rw)
+		rows.add(rw)
 	}
 
 	// The dates: one layout for the column, then each distinct date once.
@@ -344,31 +352,30 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 		}
 	}
 
-	for _, rw := range rows {
+	dated := cols.timeName == "date"
+	for i := range rows.n {
+		rw := rows.at(i)
 		a := rw.a
 		bad := func(e *RowError) { a.sku.Errors = append(a.sku.Errors, e) }
-		if rw.err != nil {
-			bad(rw.err)
+		if e := errs[i]; e != nil {
+			bad(e)
 			continue
 		}
-		t := rw.t
-		if rw.date >= 0 {
-			if w := dayWant[rw.date]; w != "" {
-				bad(&RowError{name, rw.line, "date", dateTexts[rw.date].Text, w})
+		t := rw.v
+		if dated {
+			if w := dayWant[rw.v]; w != "" {
+				bad(&RowError{name, rw.line, "date", dateTexts[rw.v].Text, w})
 				continue
 			}
-			t = days[rw.date]
+			t = days[rw.v]
 		}
-		if rw.qerr != nil {
-			bad(rw.qerr)
+		if e := qerrs[i]; e != nil {
+			bad(e)
 			continue
 		}
 		q := rw.q
 		if q < 0 {
 			switch opt.Returns {
-			case ReturnsError:
-				bad(&RowError{name, rw.line, "quantity", strconv.Itoa(q), "want a whole number >= 0 (a return: give --returns ignore or net to read returns)"})
-				continue
 			case ReturnsIgnore:
 				a.sku.Returns++
 				a.sku.ReturnUnits -= q
@@ -463,15 +470,33 @@ func weekdayName(d int) string {
 	return [...]string{"Thursday", "Friday", "Saturday", "Sunday", "Monday", "Tuesday", "Wednesday"}[((d%7)+7)%7]
 }
 
-// row is one data row between the two passes of ReadWith.
+// rowStore keeps the rows in chunks of rowChunk, so that storing a million
+// rows costs their 32 MB and no copies of a growing slice.
+type rowStore struct {
+	chunks [][]row
+	n      int
+}
+
+const rowChunk = 1 << 13
+
+func (s *rowStore) add(r row) {
+	if s.n%rowChunk == 0 {
+		s.chunks = append(s.chunks, make([]row, 0, rowChunk))
+	}
+	c := &s.chunks[len(s.chunks)-1]
+	*c = append(*c, r)
+	s.n++
+}
+
+func (s *rowStore) at(i int) row { return s.chunks[i/rowChunk][i%rowChunk] }
+
+// row is one data row between the two passes of ReadWith (32 bytes; the
+// rare errors are kept beside, by row).
 type row struct {
 	a    *acc
 	line int
-	date int32 // index of the date text, -1 for a period column
-	t    int   // the period number of a period column
-	q    int
-	err  *RowError // the row cannot be used
-	qerr *RowError // the quantity cannot be used (reported after the date)
+	v    int // the index of the date text, or the time of a period column
+	q    int // signed: a return is negative
 }
 
 // readsSome reports whether a date text reads in some layout: only such

@@ -30,6 +30,11 @@ type Options struct {
 	Encoding string
 	// Sheet is the sheet of a workbook to read; "" is the first.
 	Sheet string
+	// Reuse lets Read return the same slice on every call, overwritten by
+	// the next (the strings in it stay valid, as with encoding/csv's
+	// ReuseRecord): a reader that keeps no record saves an allocation a
+	// row.
+	Reuse bool
 }
 
 // Dialect is what a table was read as; String says it in a few words for
@@ -265,7 +270,7 @@ func NewReader(r io.Reader, name string, opt Options) (*Reader, error) {
 	cr := csv.NewReader(tr)
 	cr.Comma = delim
 	cr.FieldsPerRecord = -1
-	cr.ReuseRecord = false
+	cr.ReuseRecord = opt.Reuse
 	offset := skip
 	rd := &Reader{Name: name, Dialect: d}
 	utf := d.Encoding == "UTF-8"
@@ -309,6 +314,7 @@ func NewReader(r io.Reader, name string, opt Options) (*Reader, error) {
 	if err != nil {
 		return nil, err
 	}
+	hdr = append([]string(nil), hdr...) // kept: not to be overwritten
 	if len(hdr) > 0 {
 		hdr[0] = strings.TrimPrefix(hdr[0], "\ufeff")
 	}

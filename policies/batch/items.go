@@ -179,7 +179,9 @@ func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, err
 // rounded up, with a warning, when not whole. unmet and policy ignore
 // letter case.
 func ReadCatalogue(r io.Reader, name string, keep func(index int) bool, opt ReadOptions) (*Catalogue, error) {
-	tr, err := tabular.Open(r, name, opt.Table)
+	topt := opt.Table
+	topt.Reuse = true // no record is kept
+	tr, err := tabular.Open(r, name, topt)
 	if err != nil {
 		if te, ok := err.(*tabular.Error); ok && strings.Contains(te.Err.Error(), "empty") {
 			return nil, fmt.Errorf("%s:1: empty file, want a header line with columns %s: %w",
