@@ -189,8 +189,8 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 		p = Index
 	}
 	restart := map[string][2]int{} // key -> last period number, its line
-	errs := map[int]*RowError{}     // row -> why it cannot be used
-	qerrs := map[int]*RowError{}    // row -> why its quantity cannot (after the date)
+	errs := map[int]*RowError{}    // row -> why it cannot be used
+	qerrs := map[int]*RowError{}   // row -> why its quantity cannot (after the date)
 	nums := tabular.Numbers{Decimal: opt.Decimal, File: name}
 	if nums.Decimal == 0 && tr.Dialect.Format == "csv" && tr.Dialect.Delimiter == ',' {
 		nums.Decimal = '.'
