@@ -388,6 +388,10 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if err != nil {
 			return nil, err
 		}
+		if cat.ByLocation {
+			// The batch page matches results to items by SKU alone.
+			return nil, fmt.Errorf("%s:1: the items file has a location column: the batch page does not yet draw its exchange curve by (sku, location); leave --items out, or give an items file without the location column", p)
+		}
 		items := cat.Items
 		if meta != nil && digest != meta.Items {
 			return nil, mismatch("items", p, digest, "items", meta.Items)
