@@ -155,6 +155,7 @@ func TestReadAggregated(t *testing.T) {
 	}{
 		{"monthly as weeks", monthly.String(), Week, `h.csv:2: column date: every date is the first of a month (12 distinct dates from 2025-01-01 (line 2) to 2025-12-01): the history looks summed into months already, and summing it into weeks would put each month in one week; give --period month`},
 		{"monthly as days", monthly.String(), Day, `give --period month`},
+		{"month ends as weeks", "sku,date,quantity\nA,2025-01-31,3\nA,2025-02-28,4\nA,2025-03-31,5\nA,2025-04-30,6\n", Week, `h.csv:2: column date: every date is the last day of a month (4 distinct dates from 2025-01-31 (line 2) to 2025-04-30)`},
 		{"weekly as days", weekly.String(), Day, `every date falls on a Monday, a week or more apart (20 distinct dates from 2025-01-06 (line 2) to 2025-05-19): the history looks summed into weeks already`},
 		{"weekly as months", weekly.String(), Month, `weekly totals cannot be split exactly at the month ends; give --period week`},
 		{"monthly as months", monthly.String(), Month, ""},

@@ -417,7 +417,8 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 
 // checkAggregated refuses a dated history that is already summed into
 // periods other than h.Period: at least four distinct dates, all the first
-// of a month and four weeks or more apart (monthly totals), or all on one
+// (or all the last day) of a month and four weeks or more apart (monthly
+// totals), or all on one
 // weekday and a week or more apart (weekly totals). Summing monthly totals
 // into weeks would put each month's demand in one week of four.
 func (h *History) checkAggregated(name, col string, texts []tabular.DateSample, days []int, want []string) error {
@@ -437,10 +438,13 @@ func (h *History) checkAggregated(name, col string, texts []tabular.DateSample, 
 		return nil
 	}
 	slices.SortFunc(ds, func(a, b day) int { return cmp.Compare(a.d, b.d) })
-	first, weekday, gap := true, true, ds[len(ds)-1].d-ds[0].d
+	first, last, weekday, gap := true, true, true, ds[len(ds)-1].d-ds[0].d
 	for i, x := range ds {
 		if _, _, d := civilFromDays(x.d); d != 1 {
 			first = false
+		}
+		if _, _, d := civilFromDays(x.d + 1); d != 1 {
+			last = false
 		}
 		if (x.d-ds[0].d)%7 != 0 {
 			weekday = false
@@ -451,10 +455,14 @@ func (h *History) checkAggregated(name, col string, texts []tabular.DateSample, 
 	}
 	span := fmt.Sprintf("%d distinct dates from %s (line %d) to %s", len(ds), Day.Label(ds[0].d), ds[0].line, Day.Label(ds[len(ds)-1].d))
 	switch {
-	case first && gap >= 28 && h.Period != Month:
-		return fmt.Errorf("%s:%d: column %s: every date is the first of a month (%s): the history looks summed into months already, and summing it into %ss would put each month in one %s; give --period month",
-			name, ds[0].line, col, span, h.Period, h.Period)
-	case weekday && gap >= 7 && !first && h.Period != Week:
+	case (first || last) && gap >= 28 && h.Period != Month:
+		which := "first"
+		if !first {
+			which = "last day"
+		}
+		return fmt.Errorf("%s:%d: column %s: every date is the %s of a month (%s): the history looks summed into months already, and summing it into %ss would put each month in one %s; give --period month",
+			name, ds[0].line, col, which, span, h.Period, h.Period)
+	case weekday && gap >= 7 && !first && !last && h.Period != Week:
 		what := "would spread nothing over the days between"
 		if h.Period == Month {
 			what = "cannot be split exactly at the month ends"
