@@ -8,6 +8,7 @@ import (
 	"os"
 	"os/signal"
 	"runtime"
+	"strings"
 	"sync/atomic"
 	"syscall"
 	"time"
@@ -17,6 +18,7 @@ import (
 	"golang.org/x/term"
 
 	"ergostock/inventory/history"
+	"ergostock/inventory/tabular"
 	"ergostock/policies"
 	"ergostock/policies/batch"
 	"ergostock/policies/uncertainty"
@@ -54,9 +56,20 @@ the run, removes the temporary file and exits 130 or 143. --out - writes
 the results to stdout instead (no temporary file).
 --shard K/N plans only the items at positions K, K+N, K+2N, ... (0-based),
 so that N runs, for instance the tasks of a cluster array job, split the
-catalogue; their parts share one run digest in the header record and join
-(header record and column header once) into the full result, the item
-column restoring input order.
+catalogue; their parts share one run digest in the header record, and
+ergostock merge --out results.csv part-*.csv joins them into the file the
+unsharded run writes.
+
+For spreadsheets: --out-delimiter ';' --out-decimal , writes a file that a
+spreadsheet in a decimal-comma locale opens cleanly (tab works too; a file
+in such a dialect starts with a UTF-8 byte-order mark, and its header record
+says decimal=comma); --digits N rounds every figure to N significant digits
+(levels and counts are whole numbers and never rounded). --out FILE.xlsx
+writes a workbook instead: a results sheet (header row frozen, numbers as
+numbers, fill rate and stockout probability as percentages; figures keep
+the 15 significant digits a spreadsheet cell holds), a warnings sheet (sku,
+item, warning) and a run sheet with the header record. ergostock report
+reads every one of these.
 
 Exit status: 0 when every item was planned; 3 when the results file was
 written but some items failed; 1 when the run failed as a whole (an
@@ -80,7 +93,7 @@ func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]] [reader flags: --delimiter, --decimal, --date-format, --history-columns, ...]",
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]] [--delimiter D] [--decimal M] [--date-format F] [--history-columns MAP] [--items-columns MAP] [--returns ignore|net|error] [--quantity-scale X]",
 		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced." + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
 		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV in any common dialect, or .xlsx): costs, lead time and policy in use per SKU (and location)", Required: true},
@@ -91,6 +104,10 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
+			&cli.StringFlag{Name: "out-delimiter", Usage: "field separator of the results CSV: , ; or tab", Value: ","},
+			&cli.StringFlag{Name: "out-decimal", Usage: "decimal mark of the results CSV: . or , (a decimal comma needs --out-delimiter ';' or tab)", Value: "."},
+			&cli.StringFlag{Name: "carry", Usage: "item columns to copy to the results, comma-separated (e.g. supplier,category); appended after the results columns"},
+			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
 		}, append(append(receiptsFlags(), uncertaintyFlags()...), readFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
@@ -102,6 +119,7 @@ func batchCommand() *cli.Command {
 type batchSummary struct {
 	items, failed, withCurrent int
 	totalCost, saving          float64
+	period                     string // the planning period: day, week or month
 }
 
 func (s *batchSummary) add(r *batch.Row) {
@@ -118,8 +136,12 @@ func (s *batchSummary) add(r *batch.Row) {
 }
 
 func (s *batchSummary) String() string {
-	return fmt.Sprintf("batch: %d items: %d planned, %d failed; total cost %.2f per period; saving %.2f per period over %d items with a current policy",
-		s.items, s.items-s.failed, s.failed, s.totalCost, s.saving, s.withCurrent)
+	p := s.period
+	if p == "" {
+		p = "period"
+	}
+	return fmt.Sprintf("batch: %d items: %d planned, %d failed; planning period %s, costs per %s: total cost %.2f per %s; saving %.2f per %s over %d items with a current policy",
+		s.items, s.items-s.failed, s.failed, p, p, s.totalCost, p, s.saving, p, s.withCurrent)
 }
 
 func runBatch(c *cli.Context, stderr io.Writer) error {
@@ -145,6 +167,16 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	period, err := history.ParsePeriod(c.String("period"))
 	if err != nil {
 		return usageErr("--%v", err)
+	}
+	cells, err := outFormat(c)
+	if err != nil {
+		return err
+	}
+	var carry []string
+	if c.IsSet("carry") {
+		if carry, err = batch.ParseCarry(c.String("carry")); err != nil {
+			return usageErr("%v", err)
+		}
 	}
 	uopt, withUnc, err := uncertaintyOptions(c)
 	if err != nil {
@@ -229,7 +261,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	cat, digest, err := readItemsFile(ctx, itemsPath, shard, iopt)
+	cat, count, digest, err := readItemsCounted(ctx, itemsPath, shard, iopt)
 	if e := interrupted(); e != nil {
 		return e
 	}
@@ -237,9 +269,15 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return err
 	}
 	items := cat.Items
-	meta.Items = digest
+	meta.Items, meta.ItemCount = digest, count
 	read := "; read: items " + cat.Dialect
 	hopt.ByLocation = cat.ByLocation
+	var carried []string
+	if len(carry) > 0 {
+		if carried, err = batch.Carry(items, itemsPath, carry); err != nil {
+			return usageErr("%v", err)
+		}
+	}
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
 		h, digest, err := readHistoryFile(ctx, histPath, period, hopt)
@@ -324,12 +362,20 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			progressbar.OptionClearOnFinish(),
 		)
 	}
-	var sum batchSummary
-	bw := batch.NewWriter(out)
-	bw.Location = cat.ByLocation
+	sum := batchSummary{period: period.String()}
+	var bw resultsWriter
+	if isWorkbookName(outPath) {
+		bw, err = batch.NewWorkbookWriter(out, cells)
+	} else {
+		bw, err = batch.NewFormatWriter(out, cells)
+	}
+	if err != nil {
+		return usageErr("--out %s: %v", outPath, err)
+	}
+	bw.Carry(carried)
+	bw.SetLocation(cat.ByLocation)
 	if withUnc {
-		robust := uopt.Robust
-		bw.Uncertainty = &robust
+		bw.SetUncertainty(uopt.Robust)
 	}
 	err = bw.WriteMeta(meta)
 	if err == nil {
@@ -375,6 +421,48 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	return nil
 }
 
+// resultsWriter writes the results file: CSV (batch.Writer) or a
+// workbook (batch.WorkbookWriter).
+type resultsWriter interface {
+	Carry(names []string)
+	SetUncertainty(robust bool)
+	SetLocation(on bool)
+	WriteMeta(batch.Meta) error
+	WriteHeader() error
+	Write(*batch.Row) error
+	Flush() error
+}
+
+// isWorkbookName reports whether --out names an .xlsx workbook.
+func isWorkbookName(path string) bool { return strings.HasSuffix(strings.ToLower(path), ".xlsx") }
+
+// outFormat reads --out-delimiter, --out-decimal and --digits.
+func outFormat(c *cli.Context) (batch.Format, error) {
+	var f batch.Format
+	if out := c.String("out"); isWorkbookName(out) {
+		for _, flag := range []string{"out-delimiter", "out-decimal"} {
+			if c.IsSet(flag) {
+				return f, usageErr("--%s with --out %s: a workbook stores numbers as numbers and shows them in the spreadsheet's own locale; leave --%s out (it applies to CSV results)", flag, out, flag)
+			}
+		}
+	}
+	d, err := tabular.ParseDelimiter(c.String("out-delimiter"))
+	if err != nil || d == 0 {
+		return f, usageErr("--out-delimiter %q: want , ; or tab", c.String("out-delimiter"))
+	}
+	f.Delimiter = d
+	m, err := tabular.ParseDecimal(c.String("out-decimal"))
+	if err != nil || m == 0 {
+		return f, usageErr("--out-decimal %q: want . or ,", c.String("out-decimal"))
+	}
+	f.Decimal = m
+	f.Digits = c.Int("digits")
+	if err := f.Validate(); err != nil {
+		return f, usageErr("%v", err)
+	}
+	return f, nil
+}
+
 // ctxReader fails its reads once ctx is done, so that an interrupt stops
 // the reading of a large input.
 type ctxReader struct {
@@ -408,11 +496,22 @@ func readDigested(ctx context.Context, flag, path string, read func(io.Reader) e
 }
 
 func readItemsFile(ctx context.Context, path string, shard batch.Shard, opt batch.ReadOptions) (cat *batch.Catalogue, digest string, err error) {
+	cat, _, digest, err = readItemsCounted(ctx, path, shard, opt)
+	return cat, digest, err
+}
+
+// readItemsCounted is readItemsFile that also counts the items of the
+// whole file (every shard's), for the header record's item_count.
+func readItemsCounted(ctx context.Context, path string, shard batch.Shard, opt batch.ReadOptions) (cat *batch.Catalogue, count int, digest string, err error) {
+	keep := func(i int) bool {
+		count = max(count, i+1)
+		return shard.Contains(i)
+	}
 	digest, err = readDigested(ctx, "items", path, func(r io.Reader) (err error) {
-		cat, err = batch.ReadCatalogue(r, path, shard.Contains, opt)
+		cat, err = batch.ReadCatalogue(r, path, keep, opt)
 		return err
 	})
-	return cat, digest, err
+	return cat, count, digest, err
 }
 
 func readHistoryFile(ctx context.Context, path string, p history.Period, opt history.Options) (h *history.History, digest string, err error) {

@@ -11,6 +11,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"ergostock/policies/batch"
 )
 
 // The hostile-input suite: inputs a careless or hostile user gives every
@@ -494,6 +496,62 @@ func hostileCases() []hostileCase {
 		files: map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost\nA,north,1,0.4,12\n", "h.csv": rhist}, code: 1, names: []string{"h.csv", "location"}})
 	add(hostileCase{name: "batch-lead-time-days-huge", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
 		files: map[string]string{"items.csv": "sku,lead_time_days,holding_cost,shortage_cost,demand\nA,1e300,0.4,12,poisson:mean=9\nB,3,0.4,12,poisson:mean=9\n"}, code: 3})
+	// The results' output flags and --carry (issue 11).
+	outItems := map[string]string{"items.csv": itemsHeader + goodItem}
+	batchOut := func(extra ...string) []string {
+		return append([]string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, extra...)
+	}
+	for _, c := range []struct {
+		name string
+		args []string
+		code int
+		want []string
+	}{
+		{"batch-out-delimiter-pipe", batchOut("--out-delimiter", "|"), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-two", batchOut("--out-delimiter", ";;"), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-quote", batchOut("--out-delimiter", `"`), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-empty", batchOut("--out-delimiter", ""), 2, []string{"--out-delimiter"}},
+		{"batch-out-decimal-comma-comma", batchOut("--out-decimal", ","), 2, []string{"--out-delimiter", "--out-decimal"}},
+		{"batch-out-decimal-x", batchOut("--out-decimal", "x"), 2, []string{"--out-decimal"}},
+		{"batch-digits-neg", batchOut("--digits", "-1"), 2, []string{"--digits"}},
+		{"batch-digits-18", batchOut("--digits", "18"), 2, []string{"--digits"}},
+		{"batch-digits-huge", batchOut("--digits", "1e300"), 2, []string{"--digits"}},
+		{"batch-digits-word", batchOut("--digits", "all"), 2, []string{"--digits"}},
+		{"batch-xlsx-with-delimiter", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.xlsx", "--out-delimiter", ";"}, 2, []string{"--out-delimiter", "out.xlsx"}},
+		{"batch-xlsx-dir-missing", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/no/out.xlsx"}, 1, []string{"out.xlsx"}},
+		{"batch-xlsx-upper-case", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/OUT.XLSX", "--digits", "4"}, 0, nil},
+		{"batch-semicolon-comma-digits", batchOut("--out-delimiter", "semicolon", "--out-decimal", "comma", "--digits", "1"), 0, nil},
+		{"batch-carry-empty", batchOut("--carry", ""), 2, []string{"--carry"}},
+		{"batch-carry-commas", batchOut("--carry", ",,,"), 2, []string{"--carry"}},
+		{"batch-carry-unknown", batchOut("--carry", "vendor"), 2, []string{"--carry vendor", "items.csv", `"sku"`}},
+		{"batch-carry-results-column", batchOut("--carry", "sku"), 2, []string{"--carry sku"}},
+		{"batch-carry-twice", batchOut("--carry", "unmet,UNMET"), 2, []string{"--carry", "twice"}},
+		{"batch-carry-long", batchOut("--carry", strings.Repeat("x", 100000)), 2, []string{"--carry"}},
+		{"batch-carry-known", batchOut("--carry", "unmet,min_fill_rate"), 0, nil},
+	} {
+		add(hostileCase{name: c.name, files: outItems, args: c.args, code: c.code, names: c.want})
+	}
+
+	// merge on parts that are not one run's.
+	part := func(k, n int, run string, rows ...string) string {
+		m := batch.Meta{Format: batch.MetaFormat, Period: "week", Items: "0123456789abcdef", History: "none", Shard: batch.Shard{K: k, N: n}, Version: "t"}
+		m.Run = run
+		return m.String() + "\n" + strings.Join(batch.Header(), ",") + "\n" + strings.Join(rows, "")
+	}
+	row := func(item string) string { // a failed item's row
+		cells := make([]string, len(batch.Header()))
+		for i, h := range batch.Header() {
+			switch h {
+			case "sku":
+				cells[i] = "A" + item
+			case "error":
+				cells[i] = "not planned"
+			case "item":
+				cells[i] = item
+			}
+		}
+		return strings.Join(cells, ",") + "\n"
+	}
 	// Receipts for fit and batch (issue 12): refusals name the file and
 	// line or the flag; a file with some usable rows plans (exit 0 or 3).
 	const okReceipts = "sku,supplier,order_date,receipt_date\nA,S,2025-03-03,2025-03-12\nA,S,2025-03-10,2025-03-24\n"
@@ -539,6 +597,41 @@ func hostileCases() []hostileCase {
 		code  int
 		want  []string
 	}{
+		{"merge-no-parts", nil, []string{"--out", "{dir}/m.csv"}, 2, []string{"no parts"}},
+		{"merge-no-out", map[string]string{"p.csv": part(0, 1, "r", row("0"))}, []string{"{dir}/p.csv"}, 2, []string{"--out"}},
+		{"merge-part-missing", nil, []string{"--out", "{dir}/m.csv", "{dir}/none.csv"}, 1, []string{"none.csv"}},
+		{"merge-part-empty", map[string]string{"p.csv": ""}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv"}},
+		{"merge-part-foreign", map[string]string{"p.csv": "a,b\n1,2\n"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv:1", "header record"}},
+		{"merge-part-binary", map[string]string{"p.csv": "\x00\xff\xfe\x01garbage"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv"}},
+		{"merge-part-workbook", map[string]string{"p.xlsx": "PK\x03\x04junk"}, []string{"--out", "{dir}/m.csv", "{dir}/p.xlsx"}, 1, []string{"p.xlsx", "workbook"}},
+		{"merge-part-newer", map[string]string{"p.csv": "# ergostock results v9; period=week; items=x\n"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv:1", "v9"}},
+		{"merge-digest-mismatch", map[string]string{"a.csv": part(0, 2, "aaaa", row("0")), "b.csv": part(1, 2, "bbbb", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv", "{dir}/b.csv"}, 1, []string{"b.csv:1", "run digest bbbb", "aaaa"}},
+		{"merge-shard-missing", map[string]string{"a.csv": part(0, 3, "r", row("0")), "b.csv": part(1, 3, "r", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv", "{dir}/b.csv"}, 1, []string{"shard 2/3 is missing"}},
+		{"merge-duplicate", map[string]string{"a.csv": part(0, 1, "r", row("0"), row("0"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:4", "item 0"}},
+		{"merge-gap", map[string]string{"a.csv": part(0, 1, "r", row("0"), row("2"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv", "item 1"}},
+		{"merge-item-huge", map[string]string{"a.csv": part(0, 1, "r", row("99999999999999999999999"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:3", "item"}},
+		{"merge-item-negative", map[string]string{"a.csv": part(0, 1, "r", row("-1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:3", "item"}},
+		{"merge-out-is-part", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/a.csv", "{dir}/a.csv"}, 2, []string{"--out", "a.csv"}},
+		{"merge-out-xlsx", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/m.xlsx", "{dir}/a.csv"}, 2, []string{"--out", "m.xlsx"}},
+		{"merge-out-dir-missing", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/no/m.csv", "{dir}/a.csv"}, 1, []string{"m.csv"}},
+		{"merge-ok", map[string]string{"a.csv": part(0, 2, "r", row("0"), row("2")), "b.csv": part(1, 2, "r", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/b.csv", "{dir}/a.csv"}, 0, nil},
+	} {
+		add(hostileCase{name: c.name, files: c.files, args: append([]string{"merge"}, c.args...), code: c.code, names: c.want})
+	}
+	for _, c := range []struct {
+		name  string
+		files map[string]string
+		args  []string
+		code  int
+		want  []string
+	}{
 		{"batch-receipts-missing", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", "{dir}/none.csv"}, 1, []string{"--receipts", "none.csv"}},
 		{"batch-receipts-stdin", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", "-"}, 2, []string{"--receipts"}},
 		{"batch-receipts-empty-flag", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", ""}, 2, []string{"--receipts"}},
@@ -565,6 +658,10 @@ func hostileCases() []hostileCase {
 		{"report-sku-S-2e9", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--order-up-to", "2000000000", "--out", "{dir}/r.html"}, 1, []string{"--order-up-to"}},
 		{"report-sku-L-1e6-lost", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--unmet", "lost", "--lead-time", "1000000", "--out", "{dir}/r.html"}, 1, []string{"--lead-time"}},
 		{"report-nothing", nil, []string{"--out", "{dir}/r.html"}, 2, nil},
+		{"report-results-workbook-junk", map[string]string{"r.xlsx": "PK\x03\x04junk"}, []string{"--results", "{dir}/r.xlsx", "--out", "{dir}/r.html"}, 1, []string{"r.xlsx"}},
+		{"report-results-workbook-empty", map[string]string{"r.xlsx": ""}, []string{"--results", "{dir}/r.xlsx", "--out", "{dir}/r.html"}, 1, []string{"r.xlsx"}},
+		{"report-results-semicolon-foreign", map[string]string{"r.csv": "\ufeff# ergostock results v2; period=week; items=x; decimal=comma\nsku;demand\nA;1,5\n"}, []string{"--results", "{dir}/r.csv", "--out", "{dir}/r.html"}, 1, []string{"r.csv:2", "missing columns"}},
+		{"report-results-decimal-contradiction", map[string]string{"r.csv": "# ergostock results v2; period=week; items=x\n" + strings.Join(batch.Header(), ";") + "\nA;poisson:mean=1;1,5" + strings.Repeat(";", len(batch.Header())-3) + "\n"}, []string{"--results", "{dir}/r.csv", "--out", "{dir}/r.html"}, 1, []string{"r.csv:3", "demand_mean"}},
 		// Issue 12: a lead-time law, the models and a review period on the page, simulated too.
 		{"report-law-review-simulate", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:1=0.2,2=0.5,3=0.3", "--review-period", "7", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},
 		{"report-independent-base-stock", nil, []string{"--demand", "poisson:mean=4", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:0=0.2,1=0.3,4=0.5", "--lead-time-model", "independent", "--policy", "base-stock", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},

@@ -29,6 +29,8 @@ type Item struct {
 	MinFillRate float64          // 0 means no floor
 	Current     *policies.Policy // the policy in use, nil when none is given
 	Err         error            // why the row cannot be planned, or nil
+	Row         RowCells         // the row as read, for columns carried to the results (see Carry)
+	Carried     []string         // the cells Carry chose, in its order
 
 	// Location is the row's location when the file has a location column
 	// (the planning key is then sku and location), else "".
@@ -256,6 +258,7 @@ func ReadCatalogue(r io.Reader, name string, keep func(index int) bool, opt Read
 		if cat.ByLocation {
 			it.Location = strings.Clone(cell(13))
 		}
+		it.Row = rowCells(tr.Header, rec) // tr.Header is the reader's own copy
 		switch {
 		case sku == "":
 			it.Err = &inventory.FieldError{Field: colSKU, Want: "a non-empty SKU"}
@@ -325,6 +328,15 @@ func (c *currency) scan(name string, line int, nums *tabular.Numbers, cell func(
 		}
 	}
 	return nil
+}
+
+// quoteList lists header names for a message: "sku", "lead_time".
+func quoteList(h []string) string {
+	q := make([]string, len(h))
+	for i, s := range h {
+		q[i] = strconv.Quote(strings.TrimSpace(strings.TrimPrefix(s, "\ufeff")))
+	}
+	return strings.Join(q, ", ")
 }
 
 // atLine gives a file-level *tabular.Error without a line the line n.

@@ -38,6 +38,10 @@ type Row struct {
 	Figures *inventory.Figures
 	// The cost of the policy in use; nil without one or when the item failed.
 	CurrentTotalCost *float64
+	// The policy in use and its fill rate; nil without one or when the
+	// item failed (see currentColumns).
+	Current         *policies.Policy
+	CurrentFillRate *float64
 
 	States    int     // states of the chosen policy's chain
 	Residual  float64 // of its stationary solve, ||pi P - pi||_1
@@ -48,6 +52,7 @@ type Row struct {
 	Warnings []string
 	Err      error // why the item failed; nil when it did not
 
+	Carried []string // the item's carried columns (see Carry), last in the row
 	// Uncertainty holds the resampling cells of a run with --uncertainty
 	// (see UncertaintyHeader); nil otherwise or when the analysis failed.
 	Uncertainty *UncertaintyCells
@@ -89,8 +94,9 @@ func Header() []string {
 	for _, f := range (inventory.Figures{}).Fields() {
 		h = append(h, f.Name)
 	}
-	return append(h, "current_total_cost", "saving", "warnings", "error",
+	h = append(h, "current_total_cost", "saving", "warnings", "error",
 		"states", "residual", "balance", "neglected", "policies_evaluated", "item")
+	return append(h, currentColumns...)
 }
 
 // Writer writes the results file as CSV.
@@ -98,6 +104,11 @@ type Writer struct {
 	out io.Writer
 	w   *csv.Writer
 	rec []string
+
+	carry   []string   // carried item columns, after every results column
+	format  Format     // how cells are written (see NewFormatWriter)
+	kinds   []CellKind // of the header's columns, when format is not plain
+	started bool       // the byte-order mark, if any, is written
 	// Location adds a location column after sku, for a run that plans by
 	// location (set it before WriteHeader); without it the file is as it
 	// always was.
@@ -121,20 +132,20 @@ func (w *Writer) WriteMeta(m Meta) error {
 	if err := w.w.Error(); err != nil {
 		return err
 	}
+	if err := w.start(); err != nil {
+		return err
+	}
+	m.Cells = w.format
 	_, err := io.WriteString(w.out, m.String()+"\n")
 	return err
 }
 
 // WriteHeader writes the header line.
 func (w *Writer) WriteHeader() error {
-	h := Header()
-	if w.Location {
-		h = append(h[:1], append([]string{"location"}, h[1:]...)...)
+	if err := w.start(); err != nil {
+		return err
 	}
-	if w.Uncertainty != nil {
-		h = append(h, UncertaintyHeader(*w.Uncertainty)...)
-	}
-	return w.w.Write(h)
+	return w.w.Write(w.header())
 }
 
 // Write writes one row.
@@ -145,6 +156,13 @@ func (w *Writer) Write(r *Row) error {
 	}
 	if w.Uncertainty != nil {
 		w.rec = r.Uncertainty.appendCells(w.rec, *w.Uncertainty)
+	}
+	w.rec = appendCarried(w.rec, r.Carried, len(w.carry))
+	if !w.format.Plain() {
+		if w.kinds == nil {
+			w.header()
+		}
+		w.format.reformat(w.rec, w.kinds)
 	}
 	return w.w.Write(w.rec)
 }
@@ -211,7 +229,8 @@ func (r *Row) appendRecord(rec []string) []string {
 	} else {
 		rec = append(rec, "", "", "", "", "")
 	}
-	return append(rec, strconv.Itoa(r.Item))
+	rec = append(rec, strconv.Itoa(r.Item))
+	return r.appendCurrent(rec)
 }
 
 // oneLine folds a message onto one line, so that every row of the results

@@ -13,6 +13,7 @@ import (
 type itemRow struct {
 	SKU, Pattern, Policy, Levels      string
 	Mean, Fill, Cost, Current, Saving cell
+	CurrentFill                       cell // fill rate of the policy in use, when the results give it
 	Warnings                          int
 	Failed                            bool
 }
@@ -70,9 +71,9 @@ var batchTemplate = mustTemplate("batch", `{{template "head" .}}
 <h2 id="items" class="pagebreak">Items</h2>
 <p>One row per item, in the order of the results file{{if .Sortable}}; click a column head to sort (optional script){{end}}. Costs are per period; the saving is the current policy's total cost minus the recommended one's.</p>
 <table class="items sortable">
-<thead><tr><th>SKU</th><th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
+<thead><tr><th>SKU</th><th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">current fill rate</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
 <tbody>
-{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
+{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.CurrentFill.Key}}">{{.CurrentFill.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
 {{end}}</tbody></table>
 <h2 id="errors">Errors</h2>
 {{if .Errors}}<p>These items could not be planned; their rows in the results file carry no figures.</p>
@@ -149,7 +150,7 @@ func (pg *BatchPage) view() batchView {
 		v.SubTitle += ". Costs are per review period."
 	}
 	var done, failed, withCur int
-	var cost, curCost, saving, demand, served float64
+	var cost, curCost, saving, demand, served, curDemand, curServed float64
 	for _, r := range in.Rows {
 		sku := r.SKU
 		if sku == "" {
@@ -179,6 +180,11 @@ func (pg *BatchPage) view() batchView {
 				curCost += *r.CurrentCost
 				row.Current = cell{money(*r.CurrentCost), fkey(*r.CurrentCost)}
 			}
+			if r.CurrentFillRate != nil {
+				row.CurrentFill = cell{pct(*r.CurrentFillRate), fkey(*r.CurrentFillRate)}
+				curDemand += r.DemandMean
+				curServed += r.DemandMean * *r.CurrentFillRate
+			}
 			if r.Saving != nil {
 				saving += *r.Saving
 				row.Saving = cell{money(*r.Saving), fkey(*r.Saving)}
@@ -205,6 +211,9 @@ func (pg *BatchPage) view() batchView {
 	}
 	if demand > 0 {
 		v.Totals = append(v.Totals, kv{"aggregate fill rate of the recommendations (demand-weighted)", pct(served / demand)})
+	}
+	if curDemand > 0 {
+		v.Totals = append(v.Totals, kv{"aggregate fill rate of the current policies, where given (demand-weighted)", pct(curServed / curDemand)})
 	}
 	v.Timing = batchTimingCautions(in.Rows)
 	if ex := pg.Exchange; ex != nil {

@@ -49,7 +49,7 @@ func TestReadResultsFileV2(t *testing.T) {
 		{name: "bad number, line counted", data: m.String() + "\n" + header + "\n" + row(map[string]string{"sku": "A", "demand_mean": "zz"}) + "\n",
 			want: `r.csv:3: demand_mean "zz": want a finite number or an empty cell`},
 		{name: "CSV error, line counted", data: m.String() + "\n" + header + "\nA,\"open\n",
-			want: "r.csv: parse error on line 3"},
+			want: "r.csv:3: extraneous"},
 		{name: "newer format", data: "# ergostock results v9; period=day; items=x\n" + header + "\n",
 			want: "r.csv:1: results format v9: this ergostock reads up to v2; use a newer version"},
 		{name: "missing column, line counted", data: m.String() + "\nsku,demand\n",
