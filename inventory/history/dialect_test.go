@@ -268,3 +268,25 @@ func TestReadYearPeriods(t *testing.T) {
 		t.Errorf("restart: %v, want %s", err, want)
 	}
 }
+
+// A period column of labels ("2025-W52", "2026-W01", "2025-11") reads as
+// ISO weeks or months, across the turn of the year; it must match the
+// planning period.
+func TestReadPeriodLabels(t *testing.T) {
+	h := mustRead(t, "sku,period,quantity\nA,2025-W51,1\nA,2025-W52,2\nA,2026-W01,3\nA,2026W03,4\nA,7,5\n", Week)
+	k := h.SKUs[0]
+	if h.Period != Week || h.Label(k.Start) != "2025-W51" || !reflect.DeepEqual(k.Demand, []int{1, 2, 3, 0, 4}) {
+		t.Errorf("weeks: %v %s %v", h.Period, h.Label(k.Start), k.Demand)
+	}
+	if len(k.Errors) != 1 || k.Errors[0].Error() != `h.csv:6: period "7": want a period labelled like the file's others (a week, such as 2024-W40)` {
+		t.Errorf("errors %v", k.Errors)
+	}
+	m := mustRead(t, "sku,period,quantity\nA,2025-11,4\nA,2025-12,5\nA,2026-01,6\n", Month)
+	if m.Period != Month || m.Label(m.SKUs[0].Start) != "2025-11" || !reflect.DeepEqual(m.SKUs[0].Demand, []int{4, 5, 6}) {
+		t.Errorf("months: %v %s %v", m.Period, m.Label(m.SKUs[0].Start), m.SKUs[0].Demand)
+	}
+	_, err := Read(strings.NewReader("sku,period,quantity\nA,2025-11,4\n"), "h.csv", Week)
+	if want := `h.csv:2: column period: period "2025-11" is a month, but the history is planned by the week: give --period month`; errText(err) != want {
+		t.Errorf("mismatch: %v", err)
+	}
+}

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"regexp"
 	"slices"
 	"strconv"
 	"strings"
@@ -180,6 +181,7 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 	if p < Day || p > Index {
 		return nil, fmt.Errorf("%s:%d: period %v: want day, week or month", name, tr.HeaderLine, p)
 	}
+	asked := p // before a period column overrides it
 	switch {
 	case cols.year >= 0 && p == Day:
 		return nil, fmt.Errorf("%s:%d: columns %s and %s count weeks or months of a year, which cannot be split into days: give --period week (or month)", name, tr.HeaderLine, tr.Header[cols.year], tr.Header[cols.time])
@@ -189,6 +191,7 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 		p = Index
 	}
 	restart := map[string][2]int{} // key -> last period number, its line
+	labels := Period(-1)           // a period column of labels: Week or Month once seen; Index for numbers
 	errs := map[int]*RowError{}    // row -> why it cannot be used
 	qerrs := map[int]*RowError{}   // row -> why its quantity cannot (after the date)
 	nums := tabular.Numbers{Decimal: opt.Decimal, File: name}
@@ -293,7 +296,33 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 				continue
 			}
 			rw.v = t
+		} else if lp, ys, ns, ok := periodLabel(ts); ok && labels != Index {
+			// "2025-W03" or "2025-03": a week or a month by its label.
+			if labels < 0 {
+				if lp != asked {
+					return nil, fmt.Errorf("%s:%d: column %s: period %q is a %s, but the history is planned by the %s: give --period %s", name, line, tr.Header[cols.time], ts, lp, asked, lp)
+				}
+				labels, cols.yearly, h.Period = lp, lp, lp
+			}
+			t, _, want := cols.yearTime(ys, ns)
+			if lp != labels {
+				want = fmt.Sprintf("want a period labelled like the file's others (a %s)", labels)
+			} else if want != "" {
+				want = "want a period such as 2025-W03 (an ISO week) or 2025-03 (a month) in the years 1900 to 2200"
+			}
+			if want != "" {
+				errs[idx] = &RowError{name, line, cols.timeName, strings.Clone(ts), want}
+				rows.add(rw)
+				continue
+			}
+			rw.v = t
 		} else {
+			if labels == Week || labels == Month {
+				errs[idx] = &RowError{name, line, cols.timeName, strings.Clone(ts), fmt.Sprintf("want a period labelled like the file's others (a %s, such as %s)", labels, labels.Label(periodOfDay(labels, 20000)))}
+				rows.add(rw)
+				continue
+			}
+			labels = Index
 			t, want := cols.timeOf(ts)
 			if want != "" {
 				errs[idx] = &RowError{name, line, cols.timeName, strings.Clone(ts), want}
@@ -505,6 +534,24 @@ type row struct {
 	line int
 	v    int // the index of the date text, or the time of a period column
 	q    int // signed: a return is negative
+}
+
+var (
+	reWeekLabel  = regexp.MustCompile(`^([0-9]{4})-?[Ww]([0-9]{1,2})$`)
+	reMonthLabel = regexp.MustCompile(`^([0-9]{4})-([0-9]{1,2})$`)
+)
+
+// periodLabel reads a period cell written as a label, "2025-W03" (an ISO
+// week; "2025W03" too) or "2025-03" (a month), into its period and the year
+// and number.
+func periodLabel(s string) (Period, string, string, bool) {
+	if m := reWeekLabel.FindStringSubmatch(s); m != nil {
+		return Week, m[1], m[2], true
+	}
+	if m := reMonthLabel.FindStringSubmatch(s); m != nil {
+		return Month, m[1], m[2], true
+	}
+	return 0, "", "", false
 }
 
 // readsSome reports whether a date text reads in some layout: only such
