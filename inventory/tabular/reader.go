@@ -263,6 +263,23 @@ func NewReader(r io.Reader, name string, opt Options) (*Reader, error) {
 			}
 		}
 		skip += titles
+	} else {
+		// The delimiter is known (given, or named by a sep= line): title
+		// lines are up to four lines without it above the first line with
+		// it, when the two lines after that have it too.
+		k := skip
+		for k < len(lines) && k-skip < 5 && countOutsideQuotes(lines[k], delim) == 0 {
+			k++
+		}
+		if k > skip && k-skip < 5 && k+2 < len(lines) && countOutsideQuotes(lines[k+1], delim) > 0 && countOutsideQuotes(lines[k+2], delim) > 0 {
+			for i := skip; i < k; i++ {
+				skipBytes += len(lines[i])
+				if strings.TrimSpace(lines[i]) != "" {
+					d.Titles++
+				}
+			}
+			skip = k
+		}
 	}
 	d.Delimiter = delim
 	tr.Discard(skipBytes)

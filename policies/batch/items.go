@@ -245,13 +245,17 @@ func ReadCatalogue(r io.Reader, name string, keep func(index int) bool, opt Read
 				first[strings.Clone(key)] = line
 			}
 		}
-		if keep != nil && !keep(index) {
-			if !width {
-				// The currencies of every row count, kept or not.
-				if err := cur.scan(name, line, nums, cell); err != nil {
-					return nil, err
-				}
+		if !width {
+			// The currencies of every row count, kept or not, whatever
+			// else is wrong with it, so that every shard agrees.
+			if err := cur.scan(name, line, nums, cell); err != nil {
+				return nil, err
 			}
+			// The decimal mark, when found from the file, is found from
+			// every row in file order, kept or not, for the same reason.
+			markFrom(nums, cell, line)
+		}
+		if keep != nil && !keep(index) {
 			continue
 		}
 		it := Item{Index: index, File: name, Line: line, SKU: strings.Clone(sku)}
@@ -273,9 +277,6 @@ func ReadCatalogue(r io.Reader, name string, keep func(index int) bool, opt Read
 			}
 			it.Err = &inventory.FieldError{Field: colSKU, Value: sku, Want: fmt.Sprintf("%s (it is first given on line %d)", what, dupOf)}
 		default:
-			if err := cur.scan(name, line, nums, cell); err != nil {
-				return nil, err
-			}
 			it.Err = parseItem(&it, cell, nums, line, opt)
 		}
 		if it.Err != nil {
@@ -289,6 +290,29 @@ func ReadCatalogue(r io.Reader, name string, keep func(index int) bool, opt Read
 		cat.Dialect += ", costs in " + cur.code
 	}
 	return cat, nil
+}
+
+// markFrom passes the number cells of a row through nums, so that a
+// decimal mark still to be found is found from this row as from any other
+// (the values are read again, and judged, by parseItem).
+func markFrom(nums *tabular.Numbers, cell func(int) string, line int) {
+	if _, found := nums.Mark(); found {
+		return
+	}
+	for i, c := range itemColumns {
+		v := cell(i)
+		if v == "" {
+			continue
+		}
+		switch c {
+		case colHolding, colShortage, colOrderCost, colUnitCost:
+			nums.Money(v, line)
+		case colMinFillRate:
+			nums.Fraction(v, line)
+		case colLeadTime, colLeadTimeDays, colCurReorder, colCurOrderUpTo, colCurMultiple:
+			nums.Parse(v, line)
+		}
+	}
 }
 
 // currency holds the one currency of a file's cost cells.
