@@ -322,6 +322,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			meta.Uncertainty += fmt.Sprintf(",floor_confidence=%g", conf)
 		}
 	}
+	meta.Reading, meta.Unit = readingDigest(c), unitOf(hopt.Scale)
 	meta.Run = meta.RunDigest()
 	var leadNotes map[int][]string
 	if receiptsPath != "" {

@@ -478,3 +478,37 @@ func spreadsheetConverter() func(in, outDir string) (string, error) {
 	}
 	return nil
 }
+
+// A run read with non-default reader flags records their digest and the
+// unit of a scaled history in its header record, so that parts read
+// differently never share a run digest; a plain run's record is as before.
+func TestReadingInHeaderRecord(t *testing.T) {
+	dir := t.TempDir()
+	items := filepath.Join(dir, "items.csv")
+	writeFile(t, items, "sku,lead_time,holding_cost,shortage_cost\nA,1,1,9\n")
+	var b strings.Builder
+	b.WriteString("sku,date,quantity\n")
+	for i := 0; i < 30; i++ {
+		fmt.Fprintf(&b, "A,%s,%d.5\n", time.Date(2026, 1, 5, 0, 0, 0, 0, time.UTC).AddDate(0, 0, 7*i).Format("2006-01-02"), i%4)
+	}
+	hist := filepath.Join(dir, "history.csv")
+	writeFile(t, hist, b.String())
+	record := func(args ...string) string {
+		out := filepath.Join(dir, "r.csv")
+		code, stderr := runBatchCmd(t, append([]string{"--items", items, "--history", hist, "--out", out}, args...)...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d, %s", args, code, stderr)
+		}
+		data, _ := os.ReadFile(out)
+		line, _, _ := strings.Cut(string(data), "\n")
+		return line
+	}
+	ten, hundred := record("--quantity-scale", "10"), record("--quantity-scale", "100")
+	if !strings.Contains(ten, "; unit=0.1") || !strings.Contains(hundred, "; unit=0.01") || !strings.Contains(ten, "; reading=") {
+		t.Errorf("records %q, %q", ten, hundred)
+	}
+	run := func(rec string) string { _, r, _ := strings.Cut(rec, "run="); return r[:16] }
+	if run(ten) == run(hundred) {
+		t.Errorf("runs at two scales share the run digest %s", run(ten))
+	}
+}

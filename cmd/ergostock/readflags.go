@@ -147,3 +147,34 @@ func historyNotes(h *history.History, opt history.Options) string {
 	parts = append(parts, h.Notes...)
 	return strings.Join(parts, ", ")
 }
+
+// readingFlags are the reader flags whose values can change what is read
+// from the inputs; a run that sets any records their digest (Meta.Reading).
+var readingFlags = []string{"decimal", "encoding", "date-format", "history-columns", "items-columns",
+	"returns", "returns-column", "quantity-scale", "history-sheet", "items-sheet"}
+
+// readingDigest returns the digest of the reader flags set away from their
+// defaults, in a fixed order, or "" when none is.
+func readingDigest(c *cli.Context) string {
+	var b strings.Builder
+	for _, f := range readingFlags {
+		if c.IsSet(f) {
+			fmt.Fprintf(&b, "%s=%q\n", f, c.String(f))
+		}
+	}
+	if b.Len() == 0 {
+		return ""
+	}
+	h := batch.NewDigest()
+	h.Write([]byte(b.String()))
+	return batch.DigestSum(h)
+}
+
+// unitOf writes the unit of a quantity scale for the header record: "0.1"
+// for 10; "" for none.
+func unitOf(scale float64) string {
+	if scale == 0 || scale == 1 {
+		return ""
+	}
+	return strings.TrimPrefix(history.UnitNote(scale), "quantities in units of ")
+}
