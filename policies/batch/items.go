@@ -1,6 +1,7 @@
 package batch
 
 import (
+	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -352,6 +353,25 @@ func (c *currency) scan(name string, line int, nums *tabular.Numbers, cell func(
 		}
 	}
 	return nil
+}
+
+// csvErr names the file in an encoding/csv error and says what the CSV
+// syntax wants; line is the line reached, for errors without a position
+// (used by the readers that still read plain CSV, such as the decisions
+// file).
+func csvErr(name string, line int, err error) error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		want := ""
+		switch {
+		case errors.Is(pe.Err, csv.ErrQuote):
+			want = `; want a quoted field closed by " and each " inside it doubled`
+		case errors.Is(pe.Err, csv.ErrBareQuote):
+			want = `; want a field holding " enclosed in quotes, with the " doubled`
+		}
+		return fmt.Errorf("%s:%d:%d: %w%s", name, pe.Line, pe.Column, pe.Err, want)
+	}
+	return fmt.Errorf("%s:%d: %w", name, line, err)
 }
 
 // quoteList lists header names for a message: "sku", "lead_time".
