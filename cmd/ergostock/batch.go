@@ -93,11 +93,11 @@ func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]]",
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]] [--delimiter D] [--decimal M] [--date-format F] [--history-columns MAP] [--items-columns MAP] [--returns ignore|net|error] [--quantity-scale X]",
 		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced." + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
 		Flags: append([]cli.Flag{
-			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
-			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
+			&cli.StringFlag{Name: "items", Usage: "items file (CSV in any common dialect, or .xlsx): costs, lead time and policy in use per SKU (and location)", Required: true},
+			&cli.StringFlag{Name: "history", Usage: "demand history (CSV in any common dialect, or .xlsx, with sku, date or period, quantity); may be omitted when every item has a demand column"},
 			&cli.StringFlag{Name: "out", Usage: "results file (CSV) to write; - writes the results to stdout", Required: true},
 			&cli.StringFlag{Name: "period", Usage: "review period the history is summed into: day, week (ISO, Monday first) or month", Value: "week"},
 			&cli.IntFlag{Name: "workers", Usage: "items planned at once", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
@@ -109,7 +109,7 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "carry", Usage: "item columns to copy to the results, comma-separated (e.g. supplier,category); appended after the results columns"},
 			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
 			&cli.StringFlag{Name: "decisions", Usage: "decisions file of ergostock serve: each SKU's latest decision becomes its policy in use"},
-		}, append(receiptsFlags(), uncertaintyFlags()...)...),
+		}, append(append(receiptsFlags(), uncertaintyFlags()...), readFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -254,14 +254,25 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if shard.N == 0 {
 		meta.Shard = batch.Shard{K: 0, N: 1}
 	}
-	items, count, digest, err := readItemsCounted(ctx, itemsPath, shard)
+	hopt, err := historyOptions(c)
+	if err != nil {
+		return err
+	}
+	iopt, err := itemsOptions(c, period)
+	if err != nil {
+		return err
+	}
+	cat, count, digest, err := readItemsCounted(ctx, itemsPath, shard, iopt)
 	if e := interrupted(); e != nil {
 		return e
 	}
 	if err != nil {
 		return err
 	}
+	items := cat.Items
 	meta.Items, meta.ItemCount = digest, count
+	read := "; read: items " + cat.Dialect
+	hopt.ByLocation = cat.ByLocation
 	if err := applyDecisionsFile(c.String("decisions"), items, stderr); err != nil {
 		return err
 	}
@@ -273,20 +284,30 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	}
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
-		h, digest, err := readHistoryFile(ctx, histPath, period)
+		h, digest, err := readHistoryFile(ctx, histPath, period, hopt)
 		if e := interrupted(); e != nil {
 			return e
 		}
 		if err != nil {
 			return err
 		}
+		if cat.ByLocation && !h.Location {
+			return fmt.Errorf("%s:1: the items file %s has a location column, so each (sku, location) is planned, but the history has none: add one to the history (or map it with --history-columns location=HEADER), or drop the items file's location column to plan each SKU on its whole history", h.File, itemsPath)
+		}
+		if h.Rows == 0 {
+			return fmt.Errorf("%s:2: no data rows, want at least one row of sku, date and quantity", h.File)
+		}
+		if err := fitNoSeries(h); err != nil {
+			return err
+		}
 		meta.History = digest
+		read += "; history " + historyNotes(h, hopt)
 		if n := len(h.Errors); n > 0 {
 			fmt.Fprintf(stderr, "ergostock: %s: %d rows without a sku skipped, first %v\n", histPath, n, h.Errors[0])
 		}
 		need := make(map[string]bool, len(items))
 		for _, it := range items {
-			need[it.SKU] = true
+			need[it.Key()] = true
 		}
 		planner.Fit, planner.Pattern = batch.HistoryFit(h, func(sku string) bool { return need[sku] })
 	} else {
@@ -305,6 +326,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			meta.Uncertainty += fmt.Sprintf(",floor_confidence=%g", conf)
 		}
 	}
+	meta.Reading, meta.Unit = readingDigest(c), unitOf(hopt.Scale)
 	meta.Run = meta.RunDigest()
 	var leadNotes map[int][]string
 	if receiptsPath != "" {
@@ -356,6 +378,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return usageErr("--out %s: %v", outPath, err)
 	}
 	bw.Carry(carried)
+	bw.SetLocation(cat.ByLocation)
 	if withUnc {
 		bw.SetUncertainty(uopt.Robust)
 	}
@@ -395,7 +418,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if toStdout {
 		where = "results on stdout"
 	}
-	msg := sum.String() + "; " + where
+	msg := sum.String() + read + "; " + where
 	if sum.failed > 0 {
 		return &exitError{code: 3, err: errors.New(msg)}
 	}
@@ -408,6 +431,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 type resultsWriter interface {
 	Carry(names []string)
 	SetUncertainty(robust bool)
+	SetLocation(on bool)
 	WriteMeta(batch.Meta) error
 	WriteHeader() error
 	Write(*batch.Row) error
@@ -476,28 +500,28 @@ func readDigested(ctx context.Context, flag, path string, read func(io.Reader) e
 	return batch.DigestSum(h), nil
 }
 
-func readItemsFile(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, digest string, err error) {
-	items, _, digest, err = readItemsCounted(ctx, path, shard)
-	return items, digest, err
+func readItemsFile(ctx context.Context, path string, shard batch.Shard, opt batch.ReadOptions) (cat *batch.Catalogue, digest string, err error) {
+	cat, _, digest, err = readItemsCounted(ctx, path, shard, opt)
+	return cat, digest, err
 }
 
 // readItemsCounted is readItemsFile that also counts the items of the
 // whole file (every shard's), for the header record's item_count.
-func readItemsCounted(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, count int, digest string, err error) {
+func readItemsCounted(ctx context.Context, path string, shard batch.Shard, opt batch.ReadOptions) (cat *batch.Catalogue, count int, digest string, err error) {
 	keep := func(i int) bool {
 		count = max(count, i+1)
 		return shard.Contains(i)
 	}
 	digest, err = readDigested(ctx, "items", path, func(r io.Reader) (err error) {
-		items, err = batch.ReadItems(r, path, keep)
+		cat, err = batch.ReadCatalogue(r, path, keep, opt)
 		return err
 	})
-	return items, count, digest, err
+	return cat, count, digest, err
 }
 
-func readHistoryFile(ctx context.Context, path string, p history.Period) (h *history.History, digest string, err error) {
+func readHistoryFile(ctx context.Context, path string, p history.Period, opt history.Options) (h *history.History, digest string, err error) {
 	digest, err = readDigested(ctx, "history", path, func(r io.Reader) (err error) {
-		h, err = history.Read(r, path, p)
+		h, err = history.ReadWith(r, path, p, opt)
 		return err
 	})
 	return h, digest, err

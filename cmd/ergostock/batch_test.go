@@ -108,7 +108,7 @@ func TestBatchFixtures(t *testing.T) {
 func TestBatchMissingColumn(t *testing.T) {
 	out := filepath.Join(t.TempDir(), "results.csv")
 	code, stderr := runBatchCmd(t, "--items", "../../testdata/batch/items-missing-column.csv", "--history", batchHistory, "--out", out)
-	want := `ergostock: ../../testdata/batch/items-missing-column.csv:1: missing column "shortage_cost" (the header names "sku", "lead_time", "holding_cost"; want columns sku, lead_time, holding_cost, shortage_cost)` + "\n"
+	want := `ergostock: ../../testdata/batch/items-missing-column.csv:1: missing column shortage_cost: the header (line 1) has "sku", "lead_time", "holding_cost"; name the column that holds it with --items-columns "shortage_cost=HEADER"` + "\n"
 	if code != 1 || stderr != want {
 		t.Errorf("exit %d, stderr %q; want 1, %q", code, stderr, want)
 	}

@@ -37,12 +37,12 @@ func fitCommand() *cli.Command {
 			"With --receipts instead of --history, fit prints each SKU's lead-time law from its\n" +
 			"receipts, with the orders counted per lead time (exit status 3 when some SKU has\n" +
 			"no usable receipt).\n\n" + receiptsHelp,
-		Flags: append([]cli.Flag{
-			&cli.StringFlag{Name: "history", Usage: "demand history CSV `FILE` (- for standard input)"},
+		Flags: append(append([]cli.Flag{
+			&cli.StringFlag{Name: "history", Usage: "demand history `FILE`, CSV in any common dialect or .xlsx (- for standard input)"},
 			&cli.StringFlag{Name: "period", Usage: "review period for dated rows: day, week (ISO 8601, Monday first) or month; an integer period column is taken as it is", Value: "week"},
 			&cli.BoolFlag{Name: "json", Usage: "print a JSON array, one object per SKU"},
 			&cli.StringFlag{Name: "out", Usage: "write the results as CSV to `FILE` (atomically) instead of a table"},
-		}, receiptsFlags()...),
+		}, receiptsFlags()...), append(tableFlags(), historyReadFlags()...)...),
 		Action: fitAction,
 	}
 }
@@ -81,7 +81,11 @@ func fitAction(c *cli.Context) error {
 	if err != nil {
 		return usageErr("--%v", err)
 	}
-	h, err := fitRead(c, path, period)
+	opt, err := historyOptions(c)
+	if err != nil {
+		return err
+	}
+	h, err := fitRead(c, path, period, opt)
 	if err != nil {
 		return err
 	}
@@ -132,8 +136,8 @@ func fitAction(c *cli.Context) error {
 	if left > 0 {
 		notes += fmt.Sprintf("; %d rows left out, far from the bulk of their SKU's dates", left)
 	}
-	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model%s\n",
-		len(res), h.File, h.Period, span, len(res)-failed, failed, notes)
+	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model%s; read as %s\n",
+		len(res), h.File, h.Period, span, len(res)-failed, failed, notes, historyNotes(h, opt))
 	if failed > 0 {
 		return &exitError{code: 3, err: fmt.Errorf("%d of %d SKUs have no demand model", failed, len(res))}
 	}
@@ -250,16 +254,16 @@ func fitFirst(h *history.History) int {
 }
 
 // fitRead reads the history from a file or, for "-", standard input.
-func fitRead(c *cli.Context, path string, p history.Period) (*history.History, error) {
+func fitRead(c *cli.Context, path string, p history.Period, opt history.Options) (*history.History, error) {
 	if path == "-" {
-		return history.Read(c.App.Reader, "stdin", p)
+		return history.ReadWith(c.App.Reader, "stdin", p, opt)
 	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("--history: %w", err)
 	}
 	defer f.Close()
-	return history.Read(f, path, p)
+	return history.ReadWith(f, path, p, opt)
 }
 
 // fitNum formats a figure for the table and the CSV; non-finite values

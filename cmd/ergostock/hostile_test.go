@@ -369,7 +369,7 @@ func hostileCases() []hostileCase {
 	}{
 		{"fit-empty", "", 1, []string{"h.csv"}},
 		{"fit-header-only", "sku,date,quantity\n", 1, []string{"h.csv"}},
-		{"fit-semicolon", "sku;date;quantity\nA;2025-01-06;3\n", 1, []string{"h.csv", ";"}},
+		{"fit-semicolon", "sku;date;quantity\nA;2025-01-06;3\n", 0, nil}, // read as ';'-delimited (issue 11)
 		{"fit-missing-quantity", "sku,date\nA,2025-01-06\n", 1, []string{"h.csv", "quantity"}},
 		{"fit-all-bad-rows", "sku,date,quantity\nA,2025-13-45,3\nA,yesterday,4\n", 1, []string{"h.csv"}},
 		{"fit-quantity-huge", "sku,date,quantity\nA,2025-01-06,1e300\n", 1, []string{"h.csv"}},
@@ -413,7 +413,7 @@ func hostileCases() []hostileCase {
 		want  []string
 	}{
 		{"batch-items-missing", nil, []string{"--items", "{dir}/none.csv", "--out", "{dir}/out.csv"}, 1, []string{"none.csv"}},
-		{"batch-items-semicolon", map[string]string{"items.csv": "sku;lead_time;holding_cost;shortage_cost\nA;1;0.4;12\n"}, []string{"--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, 1, []string{"items.csv", ";"}},
+		{"batch-items-semicolon", map[string]string{"items.csv": "sku;lead_time;holding_cost;shortage_cost\nA;1;0.4;12\n"}, []string{"--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--delimiter", ","}, 1, []string{"items.csv", ";"}},
 		{"batch-out-dir-missing", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--items", "{dir}/items.csv", "--out", "{dir}/no/such/out.csv"}, 1, []string{"out.csv"}},
 		{"batch-out-is-dir", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--items", "{dir}/items.csv", "--out", "{dir}"}, 1, []string{"--out"}},
 		{"batch-shard-bad", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--shard", "3/2"}, 2, []string{"--shard"}},
@@ -425,6 +425,77 @@ func hostileCases() []hostileCase {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"batch"}, c.args...), code: c.code, names: c.want})
 	}
 
+	// The reader flags of issue 11 (fit, batch and report share them):
+	// values of the wrong kind are usage errors naming the flag; files
+	// that cannot be read as asked are one-line refusals naming the file.
+	rhist := "sku,date,quantity\nA,2025-01-06,3\nA,2025-01-13,4\nA,2025-01-20,2\nA,2025-01-27,5\n"
+	for _, cmd := range []string{"fit", "batch"} {
+		base := []string{cmd, "--history", "{dir}/h.csv"}
+		if cmd == "batch" {
+			base = append(base, "--items", "{dir}/items.csv", "--out", "{dir}/out.csv")
+		}
+		files := map[string]string{"h.csv": rhist, "items.csv": "sku,lead_time,holding_cost,shortage_cost\nA,1,0.4,12\n"}
+		for _, c := range []struct{ flag, value string }{
+			{"--delimiter", "::"}, {"--delimiter", "\""}, {"--delimiter", ""}, {"--decimal", ";"}, {"--decimal", "komma"},
+			{"--date-format", "DD-MM-YY"}, {"--date-format", "julian"}, {"--returns", "keep"}, {"--returns-column", "type"},
+			{"--returns-column", "=RETURN"}, {"--quantity-scale", "0"}, {"--quantity-scale", "-10"}, {"--quantity-scale", "NaN"},
+			{"--quantity-scale", "1e400"}, {"--quantity-scale", "ten"}, {"--history-columns", "sku"}, {"--history-columns", "colour=Farbe"},
+			{"--history-columns", "sku=A,sku=B"}, {"--history-columns", "=Qty"},
+		} {
+			code := 2
+			if c.flag == "--delimiter" && c.value == "" {
+				code = 0 // "" is auto
+			}
+			add(hostileCase{name: fmt.Sprintf("%s%s=%q", cmd, c.flag, c.value), args: append(append([]string(nil), base...), c.flag, c.value), files: files, code: code, names: []string{c.flag}})
+		}
+		for _, c := range []struct {
+			name, body string
+			extra      []string
+			code       int
+			want       []string
+		}{
+			{"mixed-dates", "sku,date,quantity\nA,2025-01-06,3\nA,13.01.2025,4\n", nil, 1, []string{"h.csv", "line 2", "line 3", "--date-format"}},
+			{"ambiguous-dates", "sku,date,quantity\nA,06/01/2025,3\nA,07/01/2025,4\n", nil, 1, []string{"h.csv", "--date-format"}},
+			{"date-format-wrong", rhist, []string{"--date-format", "DD.MM.YYYY"}, 1, []string{"h.csv"}},
+			{"map-to-absent", rhist, []string{"--history-columns", "quantity=Qty"}, 1, []string{"h.csv", "Qty"}},
+			{"near-miss", "sku,date,quantiy\nA,2025-01-06,3\n", nil, 1, []string{"h.csv", "quantiy", "quantity"}},
+			{"returns-column-absent", rhist, []string{"--returns-column", "type=RETURN"}, 1, []string{"h.csv", "type"}},
+			{"monthly-as-weeks", "sku,date,quantity\nA,2025-01-01,30\nA,2025-02-01,40\nA,2025-03-01,20\nA,2025-04-01,50\n", nil, 1, []string{"h.csv", "--period month"}},
+			{"utf16-garbage", "\xff\xfe\x00\xd8\x00\xd8", nil, 1, []string{"h.csv"}},
+			{"xlsx-not-a-workbook", "PK\x03\x04garbage", nil, 1, []string{"h.csv"}},
+			{"encoding-unknown", rhist, []string{"--encoding", "klingon"}, 1, []string{"klingon"}},
+			{"sheet-absent", rhist, []string{"--history-sheet", "Sales"}, 0, nil},
+			{"all-returns", "sku,date,quantity\nA,2025-01-06,-3\nA,2025-01-13,-4\n", nil, 1, []string{"h.csv"}},
+			{"decimal-contradiction", "sku;date;quantity\nA;2025-01-06;1,5\nA;2025-01-13;2.5\n", []string{"--quantity-scale", "10"}, 0, nil},
+		} {
+			code := c.code
+			if cmd == "batch" && c.name == "decimal-contradiction" {
+				code = 3 // the SKU with a bad row fails
+			}
+			f := map[string]string{"h.csv": c.body, "items.csv": files["items.csv"]}
+			add(hostileCase{name: cmd + "-" + c.name, args: append(append([]string(nil), base...), c.extra...), files: f, code: code, names: c.want})
+		}
+	}
+	// Items cells from a spreadsheet: each bad one fails its item alone.
+	for _, c := range []struct{ name, row string }{
+		{"batch-fill-rate-100pct", "BAD,1,0.4,12,5,1,,,100%,poisson:mean=9,,,\n"},
+		{"batch-fill-rate-pct-text", "BAD,1,0.4,12,5,1,,,ninety%,poisson:mean=9,,,\n"},
+		{"batch-cost-currency-only", "BAD,1,€,12,5,1,,,,poisson:mean=9,,,\n"},
+		{"batch-cost-unknown-currency", "BAD,1,12 XYZ,12,5,1,,,,poisson:mean=9,,,\n"},
+	} {
+		add(hostileCase{
+			name:  c.name,
+			args:  []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
+			files: map[string]string{"items.csv": itemsHeader + goodItem + c.row + goodItem[:4] + "2" + goodItem[4:]},
+			code:  3,
+		})
+	}
+	add(hostileCase{name: "batch-mixed-currencies", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
+		files: map[string]string{"items.csv": "sku,lead_time,holding_cost,shortage_cost,demand\nA,1,€0.4,12,poisson:mean=9\nB,1,$0.4,12,poisson:mean=9\n"}, code: 1, names: []string{"items.csv", "EUR"}})
+	add(hostileCase{name: "batch-items-location-history-without", args: []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/out.csv"},
+		files: map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost\nA,north,1,0.4,12\n", "h.csv": rhist}, code: 1, names: []string{"h.csv", "location"}})
+	add(hostileCase{name: "batch-lead-time-days-huge", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
+		files: map[string]string{"items.csv": "sku,lead_time_days,holding_cost,shortage_cost,demand\nA,1e300,0.4,12,poisson:mean=9\nB,3,0.4,12,poisson:mean=9\n"}, code: 3})
 	// The results' output flags and --carry (issue 11).
 	outItems := map[string]string{"items.csv": itemsHeader + goodItem}
 	batchOut := func(extra ...string) []string {

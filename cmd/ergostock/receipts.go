@@ -56,6 +56,10 @@ func receiptsOptions(c *cli.Context, p history.Period) (receipts.Options, error)
 		return opt, usageErr("--receipts-date-format %q: %v", c.String("receipts-date-format"), err)
 	}
 	opt.Dates = l
+	// The dialect flags of the other inputs (readflags.go) apply here too.
+	if opt.Table, opt.Decimal, err = tableOptions(c); err != nil {
+		return opt, err
+	}
 	return opt, nil
 }
 

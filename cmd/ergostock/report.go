@@ -95,6 +95,7 @@ func reportCommand() *cli.Command {
 		&cli.StringFlag{Name: "network", Usage: "network file (see ergostock network --help): the page of a centre and its stores, planned as a network against each location alone"},
 		&cli.StringFlag{Name: "out", Usage: "HTML file to write", Required: true},
 	)
+	flags = append(flags, readFlags()...)
 	// One-SKU page with --history --sku: the resampling charts; --seed is
 	// shared with --simulate.
 	flags = append(flags, uncertaintyFlags("seed")...)
@@ -268,7 +269,11 @@ func reportHistory(c *cli.Context) (*report.History, error) {
 		return nil, usageErr("--%v", err)
 	}
 	path, sku := c.String("history"), c.String("sku")
-	h, err := reportReadHistory(path, period)
+	hopt, err := historyOptions(c)
+	if err != nil {
+		return nil, err
+	}
+	h, err := reportReadHistory(path, period, hopt)
 	if err != nil {
 		return nil, err
 	}
@@ -323,13 +328,13 @@ func reportExamples(h *history.History) string {
 	return strings.Join(names, ", ")
 }
 
-func reportReadHistory(path string, p history.Period) (*history.History, error) {
+func reportReadHistory(path string, p history.Period, opt history.Options) (*history.History, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("--history: %w", err)
 	}
 	defer f.Close()
-	return history.Read(f, path, p)
+	return history.ReadWith(f, path, p, opt)
 }
 
 // reportBatch gathers the batch page.
@@ -379,10 +384,23 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		in.Period = meta.Period
 	}
 	if p := c.String("items"); p != "" {
-		items, digest, err := readItemsFile(c.Context, p, batch.Shard{})
+		per, err := history.ParsePeriod(period)
+		if err != nil {
+			return nil, usageErr("--%v", err)
+		}
+		iopt, err := itemsOptions(c, per)
 		if err != nil {
 			return nil, err
 		}
+		cat, digest, err := readItemsFile(c.Context, p, batch.Shard{}, iopt)
+		if err != nil {
+			return nil, err
+		}
+		if cat.ByLocation {
+			// The batch page matches results to items by SKU alone.
+			return nil, fmt.Errorf("%s:1: the items file has a location column: the batch page does not yet draw its exchange curve by (sku, location); leave --items out, or give an items file without the location column", p)
+		}
+		items := cat.Items
 		if meta != nil && digest != meta.Items {
 			return nil, mismatch("items", p, digest, "items", meta.Items)
 		}
@@ -394,7 +412,11 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if err != nil {
 			return nil, usageErr("--%v", err)
 		}
-		h, digest, err := readHistoryFile(c.Context, p, per)
+		hopt, err := historyOptions(c)
+		if err != nil {
+			return nil, err
+		}
+		h, digest, err := readHistoryFile(c.Context, p, per, hopt)
 		if err != nil {
 			return nil, err
 		}

@@ -99,21 +99,28 @@ func serveConfig(ctx context.Context, resultsPath, itemsPath, histPath, decision
 	if err != nil {
 		return cfg, err
 	}
-	items, _, err := readItemsFile(ctx, itemsPath, batch.Shard{})
-	if err != nil {
-		return cfg, err
-	}
 	period := "week"
 	if res.Meta != nil && res.Meta.Period != "" {
 		period = res.Meta.Period
 	}
+	// The inputs are read with the reader's defaults (dialect, decimal
+	// mark and date layout found from the files).
+	per, _ := history.ParsePeriod(period)
+	cat, _, err := readItemsFile(ctx, itemsPath, batch.Shard{}, batch.ReadOptions{PeriodDays: periodDays(per), PeriodName: period})
+	if err != nil {
+		return cfg, err
+	}
+	if cat.ByLocation {
+		return cfg, fmt.Errorf("%s:1: the items file has a location column: serve does not yet plan by (sku, location); give an items file without it", itemsPath)
+	}
+	items := cat.Items
 	var h *history.History
 	if histPath != "" {
 		p, err := history.ParsePeriod(period)
 		if err != nil {
 			return cfg, fmt.Errorf("--results %s: %w", resultsPath, err)
 		}
-		if h, _, err = readHistoryFile(ctx, histPath, p); err != nil {
+		if h, _, err = readHistoryFile(ctx, histPath, p, history.Options{}); err != nil {
 			return cfg, err
 		}
 	}

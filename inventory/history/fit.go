@@ -259,6 +259,15 @@ func (k *SKU) Fit() (Summary, error) {
 	default:
 		s.Warnings = append(s.Warnings, fmt.Sprintf("%d bad rows skipped, first %v", len(k.Errors), k.Errors[0]))
 	}
+	if k.unit != "" {
+		s.Warnings = append(s.Warnings, k.unit)
+	}
+	switch {
+	case k.Returns > 0 && k.ReturnsMode == ReturnsIgnore:
+		s.Warnings = append(s.Warnings, fmt.Sprintf("returns ignored: %d rows with negative quantities (%d units) left out of the demand (--returns net nets them)", k.Returns, k.ReturnUnits))
+	case k.Returns > 0 && k.ReturnsMode == ReturnsNet:
+		s.Warnings = append(s.Warnings, fmt.Sprintf("returns netted: %d rows (%d units) subtracted within their periods, floored at 0", k.Returns, k.ReturnUnits))
+	}
 	for i, o := range k.LeftOut {
 		if i == 3 {
 			s.Warnings = append(s.Warnings, fmt.Sprintf("%d more dates left out, the last %v", len(k.LeftOut)-3, k.LeftOut[len(k.LeftOut)-1]))

@@ -1,11 +1,11 @@
 package history
 
 import (
-	"encoding/csv"
-	"errors"
 	"fmt"
 	"strconv"
 	"strings"
+
+	"ergostock/inventory/tabular"
 )
 
 // ForeignDelimiter reports whether a header line read as comma-separated
@@ -36,34 +36,6 @@ func quoteHeader(header []string) string {
 	return strings.Join(q, ", ")
 }
 
-// missingColumn is the error of a header without a required column: it
-// names the header found and, when the header looks delimited by another
-// character, says so and what the reader wants.
-func missingColumn(name, column, header string, fields []string) error {
-	if d, ok := ForeignDelimiter(fields); ok {
-		return fmt.Errorf("%s:1: %w %q: the header %q looks %s-delimited; want comma-separated columns %s",
-			name, ErrMissingColumn, column, strings.TrimPrefix(fields[0], "\ufeff"), d, header)
-	}
-	return fmt.Errorf("%s:1: %w %q (the header names %s; want columns %s)", name, ErrMissingColumn, column, quoteHeader(fields), header)
-}
-
-// csvErr names the file in an encoding/csv error and says what the CSV
-// syntax wants; line is the line reached, for errors without a position.
-func csvErr(name string, line int, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		want := ""
-		switch {
-		case errors.Is(pe.Err, csv.ErrQuote):
-			want = `; want a quoted field closed by " and each " inside it doubled`
-		case errors.Is(pe.Err, csv.ErrBareQuote):
-			want = `; want a field holding " enclosed in quotes, with the " doubled`
-		}
-		return fmt.Errorf("%s:%d:%d: %w%s", name, pe.Line, pe.Column, pe.Err, want)
-	}
-	return fmt.Errorf("%s:%d: %w", name, line, err)
-}
-
 // The columns the history reader knows, as a message lists them.
 const historyColumns = "sku, date (YYYY-MM-DD) or period (a whole number), and quantity"
 
@@ -72,39 +44,52 @@ const historyColumns = "sku, date (YYYY-MM-DD) or period (a whole number), and q
 // only asks for the cells and for timeOf.
 type columns struct {
 	sku, qty, time int
+	loc, ret       int    // -1 when absent
 	timeName       string // "date" or "period"
-	need           int    // the largest of the indices
-	width          int    // the number of fields of the header
+	// year is the year column beside a period column that counts weeks
+	// or months of the year (-1 when absent); yearly is then Week or
+	// Month, and times are day numbers (the Monday of the ISO week, the
+	// first of the month).
+	year   int
+	yearly Period
 }
 
-// readHeader finds the columns in the header fields.
-func readHeader(name string, header []string) (columns, error) {
-	col := map[string]int{}
-	for i, h := range header {
-		if i == 0 {
-			h = strings.TrimPrefix(h, "\ufeff")
+// HistoryColumns are the columns the history reader knows, in normal form
+// (see tabular.Normalize); a column map may name any of them.
+var HistoryColumns = []string{"sku", "date", "period", "quantity", "location", "year"}
+
+// readHeader finds the columns in the header of tr.
+func readHeader(tr *tabular.Reader, opt Options) (columns, error) {
+	known := append([]string(nil), HistoryColumns...)
+	ret := ""
+	if opt.ReturnsColumn != "" {
+		ret = tabular.Normalize(opt.ReturnsColumn)
+		known = append(known, ret)
+	}
+	flag := opt.ColumnsFlag
+	if flag == "" {
+		flag = "--history-columns"
+	}
+	idx, err := tabular.Columns{Known: known, Required: []string{"sku", "quantity", "date|period"},
+		Map: opt.Columns, MapFlag: flag}.Index(tr)
+	if err != nil {
+		return columns{}, atLine(err, tr.HeaderLine)
+	}
+	at := func(k string) int {
+		if i, ok := idx[k]; ok {
+			return i
 		}
-		h = strings.ToLower(strings.TrimSpace(h))
-		if j, dup := col[h]; dup && (h == "sku" || h == "date" || h == "period" || h == "quantity") {
-			return columns{}, fmt.Errorf("%s:1: column %q appears twice (fields %d and %d): want each of sku, date or period, and quantity once", name, h, j+1, i+1)
+		return -1
+	}
+	c := columns{sku: at("sku"), qty: at("quantity"), loc: at("location"), ret: -1, timeName: "date", time: at("date"), year: -1}
+	if c.time < 0 {
+		c.time, c.timeName, c.year = at("period"), "period", at("year")
+	}
+	if ret != "" {
+		if c.ret = at(ret); c.ret < 0 {
+			return c, fmt.Errorf("%s:%d: --returns-column %s=%s: the header has no column %q: it has %s", tr.Name, tr.HeaderLine, opt.ReturnsColumn, opt.ReturnsValue, opt.ReturnsColumn, quoteHeader(tr.Header))
 		}
-		col[h] = i
 	}
-	c := columns{timeName: "date", width: len(header)}
-	var ok bool
-	if c.sku, ok = col["sku"]; !ok {
-		return c, missingColumn(name, "sku", historyColumns, header)
-	}
-	if c.qty, ok = col["quantity"]; !ok {
-		return c, missingColumn(name, "quantity", historyColumns, header)
-	}
-	if c.time, ok = col["date"]; !ok {
-		if c.time, ok = col["period"]; !ok {
-			return c, missingColumn(name, "date", historyColumns, header)
-		}
-		c.timeName = "period"
-	}
-	c.need = max(c.sku, c.qty, c.time)
 	return c, nil
 }
 
@@ -119,6 +104,12 @@ const MaxPeriodNumber = 1 << 40
 
 // timeWant is what the time cell should hold.
 func (c columns) timeWant() string {
+	if c.yearly == Month {
+		return "want a month of the year, 1 to 12 (with the year column)"
+	}
+	if c.yearly == Week {
+		return "want an ISO week of the year, 1 to 52 or 53 (with the year column)"
+	}
 	if c.timeName == "period" {
 		return fmt.Sprintf("want a whole period number between -%d and %d", MaxPeriodNumber, MaxPeriodNumber)
 	}
@@ -153,8 +144,34 @@ func (c columns) timeOf(s string) (int, string) {
 
 // timeLabel writes a time back as the row gave it.
 func (c columns) timeLabel(t int) string {
+	if c.yearly == Week || c.yearly == Month {
+		return c.yearly.Label(periodOfDay(c.yearly, t))
+	}
 	if c.timeName == "period" {
 		return strconv.Itoa(t)
 	}
 	return Day.Label(t)
+}
+
+// yearTime reads a year cell and a week or month of that year as a day
+// number: the Monday of the ISO week (ISO 8601: week 1 holds 4 January),
+// or the first of the month.
+func (c columns) yearTime(ys, ps string) (int, string, string) {
+	y, ok := parseWhole(ys, MaxYear+1)
+	if !ok || y < MinYear {
+		return 0, "year", fmt.Sprintf("want a year %d to %d", MinYear, MaxYear)
+	}
+	n, ok := parseWhole(ps, 54)
+	if c.yearly == Month {
+		if !ok || n < 1 || n > 12 {
+			return 0, "period", c.timeWant()
+		}
+		return daysFromCivil(y, n, 1), "", ""
+	}
+	jan4 := daysFromCivil(y, 1, 4)
+	monday := jan4 - ((jan4+3)%7+7)%7 + 7*(n-1)
+	if !ok || n < 1 || periodOfDay(Week, monday+3) != periodOfDay(Week, monday) || Week.Label(periodOfDay(Week, monday))[:4] != strconv.Itoa(y) {
+		return 0, "period", c.timeWant()
+	}
+	return monday, "", ""
 }

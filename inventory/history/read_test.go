@@ -151,8 +151,7 @@ func TestBadRows(t *testing.T) {
 	}
 	want := []string{
 		`PAD-T3 bad-rows.csv:3: quantity "abc": want a whole number >= 0`,
-		`PAD-T3 bad-rows.csv:4: quantity "-2": want a whole number >= 0`,
-		`PAD-T3 bad-rows.csv:5: quantity "2.5": want a whole number >= 0`,
+		`PAD-T3 bad-rows.csv:5: quantity "2.5": want a whole number >= 0 (or give --quantity-scale 10 to plan in units of 0.1)`,
 		`LED-DSP bad-rows.csv:7: date "2026-02-30": want a date YYYY-MM-DD (2026-02 has 28 days)`,
 		`- bad-rows.csv:6: sku "": want a non-empty SKU`,
 	}
@@ -180,20 +179,24 @@ func TestReadFails(t *testing.T) {
 		data, want string
 		missing    bool
 	}{
-		{"sku,date,note\nA,2026-01-05,x\n", `h.csv:1: missing column "quantity" (the header names "sku", "date", "note"; want columns sku, date (YYYY-MM-DD) or period (a whole number), and quantity)`, true},
-		{"\ufeffdate,quantity\n2026-01-05,1\n", `h.csv:1: missing column "sku" (the header names "date", "quantity"; want columns`, true},
-		{"sku,quantity\nA,1\n", `h.csv:1: missing column "date" (the header names "sku", "quantity"; want columns sku, date (YYYY-MM-DD) or period`, true},
+		{"sku,date,note\nA,2026-01-05,x\n", `h.csv:1: missing column quantity: the header (line 1) has "sku", "date", "note"; name the column that holds it with --history-columns "quantity=HEADER"`, true},
+		{"\ufeffdate,quantity\n2026-01-05,1\n", `h.csv:1: missing column sku: the header (line 1) has "date", "quantity"`, true},
+		{"sku,quantity\nA,1\n", `h.csv:1: missing column date or period: the header (line 1) has "sku", "quantity"; name the column that holds it with --history-columns "date=HEADER"`, true},
 		{"", "h.csv:1: empty file, want a header line with columns sku, date", true},
-		{"sku,date,quantity,sku\n", `h.csv:1: column "sku" appears twice (fields 1 and 4): want each of sku, date or period, and quantity once`, false},
-		{"sku,date,quantity\nA,2026-01-05,\"1\n", `h.csv:2:17: extraneous or missing " in quoted-field; want a quoted field closed by " and each " inside it doubled`, false},
-		{"sku,date,quantity\nA,2026-01-05,1\"2\n", `h.csv:2:15: bare " in non-quoted-field; want a field holding " enclosed in quotes, with the " doubled`, false},
-		// A file in another dialect says so (issue 11 will read them).
-		{"sku;date;quantity\nA;2026-01-05;1\n", `h.csv:1: missing column "sku": the header "sku;date;quantity" looks ';'-delimited; want comma-separated columns sku, date (YYYY-MM-DD) or period (a whole number), and quantity`, true},
-		{"\ufeffsku\tdate\tquantity\n", `h.csv:1: missing column "sku": the header "sku\tdate\tquantity" looks tab-delimited; want comma-separated`, true},
-		{"sku|date|quantity\n", `h.csv:1: missing column "sku": the header "sku|date|quantity" looks '|'-delimited`, true},
-		{"sku;date;quantity;note|x\n", `h.csv:1: missing column "sku": the header "sku;date;quantity;note|x" looks ';'-delimited`, true},
+		{"sku,date,quantity,sku\n", `h.csv:1: column "sku" appears 2 times in the header`, false},
+		{"sku,date,quantity\nA,2026-01-05,\"1\n", `h.csv:2: extraneous or missing " in quoted-field (character 17): want a quoted field closed by " and each " inside it doubled`, false},
+		{"sku,date,quantity\nA,2026-01-05,1\"2\n", `h.csv:2: bare " in non-quoted-field (character 15): want a field holding " enclosed in quotes, with the " doubled`, false},
+		// A header in another dialect than the one given says so.
+		{"sku;date;quantity\nA;2026-01-05;1\n", `h.csv:1: missing column sku: the header (line 1) has "sku;date;quantity"; the header looks ';'-delimited, but the file was read as ','-delimited: give --delimiter ';'`, true},
+		// An unknown column close to a known one is refused, naming both.
+		{"sku,date,quantitty\nA,2026-01-05,1\n", `h.csv:1: column quantitty: not a column ergostock reads, but close to quantity`, false},
+		{"sku,date,qty,Locaton\nA,2026-01-05,1,N\n", `h.csv:1: column Locaton: not a column ergostock reads, but close to location`, false},
 	} {
-		_, err := Read(strings.NewReader(c.data), "h.csv", Week)
+		opt := Options{}
+		if strings.HasPrefix(c.data, "sku;") {
+			opt.Table.Delimiter = ','
+		}
+		_, err := ReadWith(strings.NewReader(c.data), "h.csv", Week, opt)
 		if err == nil || !strings.HasPrefix(err.Error(), c.want) || errors.Is(err, ErrMissingColumn) != c.missing {
 			t.Errorf("Read(%q) error %v, want prefix %q (missing column: %v)", c.data, err, c.want, c.missing)
 		}
@@ -207,7 +210,7 @@ func TestMissingColumnFixture(t *testing.T) {
 	}
 	defer f.Close()
 	_, err = Read(f, "missing-quantity.csv", Week)
-	if err == nil || !strings.HasPrefix(err.Error(), `missing-quantity.csv:1: missing column "quantity" (the header names "sku", "date", "note"`) {
+	if err == nil || !strings.HasPrefix(err.Error(), `missing-quantity.csv:1: missing column quantity: the header (line 1) has "sku", "date", "note"`) {
 		t.Errorf("error %v", err)
 	}
 }

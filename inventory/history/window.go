@@ -46,7 +46,7 @@ type gapScale struct {
 }
 
 func (c columns) gapScale() gapScale {
-	if c.timeName == "period" {
+	if c.timeName == "period" && c.yearly != Week && c.yearly != Month {
 		return gapScale{min: 52, abs: 520, unit: "periods"}
 	}
 	return gapScale{min: 366, abs: 3653, unit: "days"}
@@ -209,6 +209,8 @@ func (h *History) build(order []*acc, cols columns) error {
 		}
 	}
 
+	h.dropPartial(kept)
+
 	// Periods, spans and limits, before any allocation.
 	per := func(t int) int {
 		if h.Period == Index {
@@ -269,6 +271,11 @@ func (h *History) build(order []*acc, cols columns) error {
 		for _, r := range rs {
 			s.Demand[per(r.t)-s.Start] += r.q
 			s.Records += r.rows
+		}
+		if a.net {
+			for i, q := range s.Demand {
+				s.Demand[i] = max(q, 0) // returns beyond a period's demand
+			}
 		}
 		peak := 0
 		for i, q := range s.Demand {
@@ -407,4 +414,102 @@ func spanErr(h *History, cols columns, sku string, from rec, to *rec, span int) 
 	}
 	return fmt.Errorf("%w: the series of sku %q would span %d %s periods, from %s %q at %s:%d to %s, more than the limit of %d; check the %ss",
 		ErrSpan, sku, span, h.Period, cols.timeName, cols.timeLabel(from.t), h.File, from.line, end, MaxSpan, cols.timeName)
+}
+
+// periodDays returns the first and last day numbers of period n of p
+// (Week or Month).
+func periodDays(p Period, n int) (first, last int) {
+	if p == Week {
+		return n*7 - 3, n*7 + 3
+	}
+	y, m := floorDiv(n, 12), n-12*floorDiv(n, 12)+1
+	first = daysFromCivil(y, m, 1)
+	if m == 12 {
+		return first, daysFromCivil(y+1, 1, 1) - 1
+	}
+	return first, daysFromCivil(y, m+1, 1) - 1
+}
+
+// MinWholePeriods is the number of whole periods a dated history must keep
+// for a partial first or last period to be left out.
+const MinWholePeriods = 4
+
+// dropPartial leaves out, for a history of daily rows summed into weeks or
+// months, a first or a last period of the file that its rows cover for
+// less than half its days (the rows start after the period's middle day,
+// or end before it): such a period would read as a dip in demand. A file
+// of daily rows is one with rows on at least half the days from its first
+// row to its last (sparser files do not show where their data stop). It
+// does so only when at least MinWholePeriods periods remain between them,
+// and records a note and the rows left out (History.PartialRows).
+func (h *History) dropPartial(kept [][]rec) {
+	if h.Period != Week && h.Period != Month {
+		return
+	}
+	lo, hi, any := 0, 0, false
+	for _, rs := range kept {
+		if len(rs) == 0 {
+			continue
+		}
+		if !any || rs[0].t < lo {
+			lo = rs[0].t
+		}
+		if !any || rs[len(rs)-1].t > hi {
+			hi = rs[len(rs)-1].t
+		}
+		any = true
+	}
+	if !any {
+		return
+	}
+	pf, pl := periodOfDay(h.Period, lo), periodOfDay(h.Period, hi)
+	f0, f1 := periodDays(h.Period, pf)
+	l0, l1 := periodDays(h.Period, pl)
+	dropFirst := lo > f0+(f1-f0)/2
+	dropLast := hi < l0+(l1-l0)/2
+	whole := pl - pf + 1
+	if dropFirst {
+		whole--
+	}
+	if dropLast {
+		whole--
+	}
+	if (!dropFirst && !dropLast) || whole < MinWholePeriods || pf == pl || hi-lo > 1<<17 {
+		return
+	}
+	// Only a file of daily rows shows where its data stop: at least half
+	// the days from its first row to its last hold some row.
+	seen := make([]bool, hi-lo+1)
+	days := 0
+	for _, rs := range kept {
+		for _, r := range rs {
+			if !seen[r.t-lo] {
+				seen[r.t-lo] = true
+				days++
+			}
+		}
+	}
+	if 2*days < len(seen) {
+		return
+	}
+	var rowsFirst, rowsLast int
+	for k, rs := range kept {
+		i, j := 0, len(rs)
+		for dropFirst && i < j && periodOfDay(h.Period, rs[i].t) == pf {
+			rowsFirst += rs[i].rows
+			i++
+		}
+		for dropLast && j > i && periodOfDay(h.Period, rs[j-1].t) == pl {
+			rowsLast += rs[j-1].rows
+			j--
+		}
+		kept[k] = rs[i:j]
+	}
+	h.PartialRows = rowsFirst + rowsLast
+	if dropFirst {
+		h.Notes = append(h.Notes, fmt.Sprintf("%s: the first %s, %s, left out as partial: its rows start on %s (%d rows)", h.File, h.Period, h.Label(pf), Day.Label(lo), rowsFirst))
+	}
+	if dropLast {
+		h.Notes = append(h.Notes, fmt.Sprintf("%s: the last %s, %s, left out as partial: its rows end on %s (%d rows)", h.File, h.Period, h.Label(pl), Day.Label(hi), rowsLast))
+	}
 }

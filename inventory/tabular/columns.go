@@ -1,8 +1,10 @@
 package tabular
 
 import (
+	"errors"
 	"fmt"
 	"sort"
+	"strconv"
 	"strings"
 )
 
@@ -56,6 +58,10 @@ func ParseColumnMap(flag, s string, known []string) (map[string]string, error) {
 	}
 	return m, nil
 }
+
+// ErrMissingColumn is wrapped by the error of a header that lacks a
+// required column.
+var ErrMissingColumn = errors.New("missing column")
 
 // Columns says which columns a table may and must have.
 type Columns struct {
@@ -113,7 +119,7 @@ func (c Columns) Index(r *Reader) (map[string]int, error) {
 				if flag == "" {
 					flag = "the column map"
 				}
-				return nil, errorf(r.Name, r.HeaderLine, h, "not a column ergostock reads, but close to %s: rename it %s, or map it with %s \"%s=%s\"", k, k, flag, k, h)
+				return nil, errorf(r.Name, r.HeaderLine, h, "not a column ergostock reads, but close to %s: rename it %s, or map it with %s %s", k, k, flag, strconv.Quote(k+"="+h))
 			}
 		}
 	}
@@ -126,26 +132,32 @@ func (c Columns) Index(r *Reader) (map[string]int, error) {
 				}
 			}
 			if !found {
-				return nil, c.missing(r, strings.Join(alts, " or "))
+				return nil, c.missing(r, strings.Join(alts, " or "), alts[0])
 			}
 			continue
 		}
 		if _, ok := idx[k]; !ok {
-			return nil, c.missing(r, k)
+			return nil, c.missing(r, k, k)
 		}
 	}
 	return idx, nil
 }
 
-func (c Columns) missing(r *Reader, k string) error {
+func (c Columns) missing(r *Reader, k, mapName string) error {
 	msg := fmt.Sprintf("missing column %s: the header (line %d) has %s", k, r.HeaderLine, quoteHeader(r.Header))
 	if hint := r.HeaderHint(); hint != "" {
 		msg += "; " + hint
 	} else if c.MapFlag != "" {
-		msg += fmt.Sprintf("; name the column that holds it with %s \"%s=HEADER\"", c.MapFlag, k)
+		msg += fmt.Sprintf("; name the column that holds it with %s \"%s=HEADER\"", c.MapFlag, mapName)
 	}
-	return errorf(r.Name, r.HeaderLine, "", "%s", msg)
+	return &Error{File: r.Name, Line: r.HeaderLine, Err: missingErr{msg}}
 }
+
+// missingErr is the message of a missing column; it wraps ErrMissingColumn.
+type missingErr struct{ msg string }
+
+func (e missingErr) Error() string { return e.msg }
+func (e missingErr) Unwrap() error { return ErrMissingColumn }
 
 // quoteHeader lists a header's cells for a message.
 func quoteHeader(h []string) string {

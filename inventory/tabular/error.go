@@ -2,6 +2,7 @@ package tabular
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 )
 
@@ -22,7 +23,7 @@ func (e *Error) Error() string {
 		fmt.Fprintf(&b, ":%d", e.Line)
 	}
 	if e.Column != "" {
-		fmt.Fprintf(&b, ": column %s", e.Column)
+		fmt.Fprintf(&b, ": column %s", Shown(e.Column))
 	}
 	b.WriteString(": ")
 	b.WriteString(e.Err.Error())
@@ -30,6 +31,21 @@ func (e *Error) Error() string {
 }
 
 func (e *Error) Unwrap() error { return e.Err }
+
+// Shown writes a name from a file for a message: as it is, or quoted when
+// it holds a line break, a control character or surrounding spaces, so
+// that every message stays one line and says exactly what the file holds.
+func Shown(s string) string {
+	for _, r := range s {
+		if r < ' ' || r == 0x7f {
+			return strconv.Quote(s)
+		}
+	}
+	if strings.TrimSpace(s) != s {
+		return strconv.Quote(s)
+	}
+	return s
+}
 
 // errorf makes an *Error.
 func errorf(file string, line int, column, format string, a ...any) *Error {

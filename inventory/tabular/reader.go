@@ -30,6 +30,11 @@ type Options struct {
 	Encoding string
 	// Sheet is the sheet of a workbook to read; "" is the first.
 	Sheet string
+	// Reuse lets Read return the same slice on every call, overwritten by
+	// the next (the strings in it stay valid, as with encoding/csv's
+	// ReuseRecord): a reader that keeps no record saves an allocation a
+	// row.
+	Reuse bool
 }
 
 // Dialect is what a table was read as; String says it in a few words for
@@ -106,10 +111,27 @@ type Reader struct {
 	next     func() ([]string, int, error)
 }
 
+// ErrFieldCount is wrapped by the *Error of a record whose number of fields
+// differs from the header's.
+var ErrFieldCount = errors.New("field count differs from the header")
+
+// fieldCountErr is the *Error of a record of n fields.
+type fieldCountErr struct {
+	n, header, width int
+	hint             string
+}
+
+func (e fieldCountErr) Error() string {
+	return fmt.Sprintf("%d fields, but the header (line %d) has %d%s", e.n, e.header, e.width, e.hint)
+}
+func (e fieldCountErr) Unwrap() error { return ErrFieldCount }
+
 // Read returns the next record, the header's width at least (trailing
 // empty fields beyond it removed), and its line. It returns io.EOF after
 // the last record. A record with more non-empty fields than the header, or
-// fewer fields, is an *Error naming its line.
+// fewer fields, is an *Error naming its line that wraps ErrFieldCount; the
+// record is returned with it, as read, so that a caller may keep its
+// place (reading goes on with the next record).
 func (r *Reader) Read() ([]string, int, error) {
 	for {
 		rec, line, err := r.next()
@@ -120,8 +142,12 @@ func (r *Reader) Read() ([]string, int, error) {
 			continue
 		}
 		w := len(r.Header)
+		if len(rec) < w && r.Dialect.Format == "xlsx" {
+			// A sheet's rows end at their last non-empty cell.
+			rec = append(rec, make([]string, w-len(rec))...)
+		}
 		if len(rec) < w {
-			return nil, line, errorf(r.Name, line, "", "%d fields, but the header (line %d) has %d", len(rec), r.HeaderLine, w)
+			return rec, line, &Error{File: r.Name, Line: line, Err: fieldCountErr{len(rec), r.HeaderLine, w, ""}}
 		}
 		for i := w; i < len(rec); i++ {
 			if strings.TrimSpace(rec[i]) != "" {
@@ -129,7 +155,7 @@ func (r *Reader) Read() ([]string, int, error) {
 				if r.Dialect.Format == "csv" && r.Dialect.Delimiter == ',' {
 					hint = " (a decimal comma or a thousands separator in an unquoted number? quote the field, or write the file with ';')"
 				}
-				return nil, line, errorf(r.Name, line, "", "%d fields, but the header (line %d) has %d%s", len(rec), r.HeaderLine, w, hint)
+				return rec, line, &Error{File: r.Name, Line: line, Err: fieldCountErr{len(rec), r.HeaderLine, w, hint}}
 			}
 		}
 		return rec[:w], line, nil
@@ -237,6 +263,23 @@ func NewReader(r io.Reader, name string, opt Options) (*Reader, error) {
 			}
 		}
 		skip += titles
+	} else {
+		// The delimiter is known (given, or named by a sep= line): title
+		// lines are up to four lines without it above the first line with
+		// it, when the two lines after that have it too.
+		k := skip
+		for k < len(lines) && k-skip < 5 && countOutsideQuotes(lines[k], delim) == 0 {
+			k++
+		}
+		if k > skip && k-skip < 5 && k+2 < len(lines) && countOutsideQuotes(lines[k+1], delim) > 0 && countOutsideQuotes(lines[k+2], delim) > 0 {
+			for i := skip; i < k; i++ {
+				skipBytes += len(lines[i])
+				if strings.TrimSpace(lines[i]) != "" {
+					d.Titles++
+				}
+			}
+			skip = k
+		}
 	}
 	d.Delimiter = delim
 	tr.Discard(skipBytes)
@@ -244,7 +287,7 @@ func NewReader(r io.Reader, name string, opt Options) (*Reader, error) {
 	cr := csv.NewReader(tr)
 	cr.Comma = delim
 	cr.FieldsPerRecord = -1
-	cr.ReuseRecord = false
+	cr.ReuseRecord = opt.Reuse
 	offset := skip
 	rd := &Reader{Name: name, Dialect: d}
 	utf := d.Encoding == "UTF-8"
@@ -258,7 +301,14 @@ func NewReader(r io.Reader, name string, opt Options) (*Reader, error) {
 		if err != nil {
 			var pe *csv.ParseError
 			if errors.As(err, &pe) {
-				return nil, pe.StartLine + offset, errorf(name, pe.Line+offset, "", "%v", pe.Err)
+				want := ""
+				switch {
+				case errors.Is(pe.Err, csv.ErrQuote):
+					want = `: want a quoted field closed by " and each " inside it doubled`
+				case errors.Is(pe.Err, csv.ErrBareQuote):
+					want = `: want a field holding " enclosed in quotes, with the " doubled`
+				}
+				return nil, pe.StartLine + offset, errorf(name, pe.Line+offset, "", "%v (character %d)%s", pe.Err, pe.Column, want)
 			}
 			if err == io.EOF {
 				return nil, 0, io.EOF
@@ -281,6 +331,7 @@ func NewReader(r io.Reader, name string, opt Options) (*Reader, error) {
 	if err != nil {
 		return nil, err
 	}
+	hdr = append([]string(nil), hdr...) // kept: not to be overwritten
 	if len(hdr) > 0 {
 		hdr[0] = strings.TrimPrefix(hdr[0], "\ufeff")
 	}

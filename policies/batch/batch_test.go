@@ -264,7 +264,7 @@ func TestWriteFileAtomic(t *testing.T) {
 }
 
 func TestHistoryFitErrors(t *testing.T) {
-	const text = "sku,period,quantity\nA,1,3\nA,2,x\nA,3,-1\nZ,1,0\nZ,2,0\nB,1,2\nB,2,5\n"
+	const text = "sku,period,quantity\nA,1,3\nA,2,x\nA,3,2.5\nZ,1,0\nZ,2,0\nB,1,2\nB,2,5\n"
 	h, err := history.Read(strings.NewReader(text), "history.csv", history.Week)
 	if err != nil {
 		t.Fatal(err)

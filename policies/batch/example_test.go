@@ -140,3 +140,25 @@ func ExampleMerge() {
 	// COIL-SPRING-3
 	// shard 1/2 is missing: the 1 parts given are 0/2 (part-0.csv); want all 2
 }
+
+// An items sheet saved by a spreadsheet in a decimal-comma locale: headers
+// with spaces, costs with a currency sign, a fill-rate floor as a
+// percentage, the lead time in days.
+func ExampleReadCatalogue() {
+	const sheet = "SKU;Lead Time Days;Holding Cost;Shortage Cost;Order Cost;Min Fill Rate\n" +
+		"BRAKE-PAD-T3;10;€0,41;€12,00;€35;98,5 %\n"
+	c, err := batch.ReadCatalogue(strings.NewReader(sheet), "items.csv", nil,
+		batch.ReadOptions{PeriodDays: 7, PeriodName: "week"})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	it := c.Items[0]
+	fmt.Println(c.Dialect)
+	fmt.Println(it.SKU, it.System.LeadTime, it.System.Holding, it.System.Shortage, it.System.OrderCost, it.MinFillRate)
+	fmt.Println(it.Warnings[0])
+	// Output:
+	// ';'-delimited, UTF-8, decimal comma (line 2: "0,41"), costs in EUR
+	// BRAKE-PAD-T3 2 0.41 12 35 0.985
+	// lead_time_days 10 is 1.43 weeks: rounded up to 2 (a whole number of periods)
+}

@@ -202,6 +202,9 @@ func (f Format) bom() bool { return f.comma() != ',' || f.decimal() != '.' }
 // kinds for reformat.
 func (w *Writer) header() []string {
 	h := Header()
+	if w.Location {
+		h = append(h[:1], append([]string{"location"}, h[1:]...)...)
+	}
 	if w.Uncertainty != nil {
 		h = append(h, UncertaintyHeader(*w.Uncertainty)...)
 	}
@@ -248,3 +251,7 @@ func appendCarried(rec, carried []string, n int) []string {
 // the standard ones (and before any carried columns), as setting
 // Writer.Uncertainty does. Call it before WriteHeader.
 func (w *Writer) SetUncertainty(robust bool) { w.Uncertainty, w.kinds = &robust, nil }
+
+// SetLocation adds the location column after sku (a run that plans by
+// location); call it before WriteHeader.
+func (w *Writer) SetLocation(on bool) { w.Location, w.kinds = on, nil }

@@ -2,6 +2,9 @@ package batch
 
 import (
 	"fmt"
+	"strings"
+
+	"ergostock/inventory/tabular"
 
 	"ergostock/inventory/history"
 )
@@ -18,15 +21,19 @@ import (
 func HistoryFit(h *history.History, need func(sku string) bool) (fit func(sku string) (*Fitted, error), pattern func(sku string) string) {
 	bySKU := make(map[string]*history.SKU)
 	for _, k := range h.SKUs {
-		if need == nil || need(k.SKU) {
-			bySKU[k.SKU] = k
+		if key := PlanKey(k.SKU, k.Location); need == nil || need(key) {
+			bySKU[key] = k
 		}
 	}
 	file := h.File
 	fit = func(sku string) (*Fitted, error) {
 		k := bySKU[sku]
 		if k == nil {
-			return nil, fmt.Errorf("no history for sku %q in %s", sku, file)
+			s, loc, _ := strings.Cut(sku, "\x00")
+			if loc != "" {
+				return nil, fmt.Errorf("no history for sku %q at location %q in %s%s", s, loc, file, nearHint(h, s, loc))
+			}
+			return nil, fmt.Errorf("no history for sku %q in %s%s", sku, file, nearHint(h, sku, ""))
 		}
 		if n := len(k.Errors); n > 0 {
 			more := ""
@@ -37,10 +44,10 @@ func HistoryFit(h *history.History, need func(sku string) bool) (fit func(sku st
 		}
 		s, err := k.Fit()
 		if err != nil {
-			return nil, fmt.Errorf("%s: sku %q: %w", file, sku, err)
+			return nil, fmt.Errorf("%s: sku %q: %w", file, k.SKU, err)
 		}
 		if s.Demand == nil {
-			return nil, fmt.Errorf("%s: sku %q: no demand model fitted", file, sku)
+			return nil, fmt.Errorf("%s: sku %q: no demand model fitted", file, k.SKU)
 		}
 		return &Fitted{Demand: s.Demand, Pattern: string(s.Pattern), Warnings: s.Warnings, Series: k.Demand}, nil
 	}
@@ -52,4 +59,39 @@ func HistoryFit(h *history.History, need func(sku string) bool) (fit func(sku st
 		return string(history.Summarize(k.Demand).Pattern)
 	}
 	return fit, pattern
+}
+
+// nearHint names the SKUs of h that the items file may have meant by sku
+// (the same but for letter case or surrounding spaces, or with leading
+// zeros lost), as "; did you mean ...?"; "" when none.
+func nearHint(h *history.History, sku, loc string) string {
+	var have []string
+	seen := map[string]bool{}
+	for _, k := range h.SKUs {
+		if !seen[k.SKU] && (loc == "" || k.Location == loc || k.SKU != sku) {
+			seen[k.SKU] = true
+			have = append(have, k.SKU)
+		}
+	}
+	near := tabular.Near(sku, have)
+	if len(near) == 0 {
+		if loc != "" && seen[sku] {
+			var locs []string
+			for _, k := range h.SKUs {
+				if k.SKU == sku {
+					locs = append(locs, fmt.Sprintf("%q", k.Location))
+				}
+			}
+			if len(locs) > 5 {
+				locs = append(locs[:5], "...")
+			}
+			return fmt.Sprintf(" (the history has it at %s)", strings.Join(locs, ", "))
+		}
+		return ""
+	}
+	q := make([]string, len(near))
+	for i, n := range near {
+		q[i] = fmt.Sprintf("%q", n)
+	}
+	return "; did you mean " + strings.Join(q, " or ") + "?"
 }

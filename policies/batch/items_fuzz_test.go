@@ -36,6 +36,9 @@ func FuzzReadItems(f *testing.F) {
 		"sku|lead_time|holding_cost|shortage_cost\n", "sku,lead_time,holding_cost,shortage_cost,SKU\n",
 		"sku,lead_time,holding_cost,shortage_cost\nA,1,2,3\n\"B,1,2,3\n", "sku,lead_time,holding_cost,shortage_cost\nA,1,2\"x,3\n",
 		"sku,lead_time,holding_cost,shortage_cost\nA,1\n\nB,1,2,3,4\n", "", "\n", "sku\n",
+		"\ufeffSKU;Lead Time Days;Holding Cost;Shortage Cost;Min Fill Rate;Location\r\nA;14;€0,25;12,50 EUR;98,5 %;north\r\nA;3;$1;2;95%;north\r\n",
+		"Title\nsku|lead_time|holding_cost|shortage_cost|Order Csot\nA|1|1.200,5|3|4\n",
+		"sku;lead_time;holding_cost;shortage_cost\nA;1;0,5;3\nB;1;1.200;3\n;1;€2;$3\n",
 	} {
 		f.Add(s)
 	}

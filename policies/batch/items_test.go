@@ -26,7 +26,7 @@ func TestReadItemsErrors(t *testing.T) {
 		{"A,,1,2,,,,,,,", `items.csv:2: lead_time "": want a whole number of periods >= 0`},
 		{"A,1,1,2,,sold,,,,,", `items.csv:2: unmet "sold": want backorder or lost`},
 		{"A,1,1,2,,,(s;S),,,,", `items.csv:2: policy "(s;S)": want base-stock, s-S or s-nQ`},
-		{"A,1,1,2,,,,1.5,,,", `items.csv:2: min_fill_rate "1.5": want a fraction in [0, 1)`},
+		{"A,1,1,2,,,,1.5,,,", `items.csv:2: min_fill_rate "1.5": want a fraction in [0, 1) or a percentage below 100%`},
 		{"A,1,1,2,,,,,x,,", `items.csv:2: current_reorder_point "x": want a whole number`},
 		{"A,1,1,2,,,,,5,3,", `items.csv:2: current policy s-S(s=5,S=3): reorder point 5 must be below the order-up-to level 3`},
 		{"A,1,1,2,,,,,5,,", `items.csv:2: current_reorder_point needs current_order_up_to (s-S) or current_order_multiple (s-nQ)`},
@@ -46,7 +46,7 @@ func TestReadItemsErrors(t *testing.T) {
 		{"A,1_0,1,2,,,,,,,", `items.csv:2: lead_time "1_0": want a whole number of periods >= 0`},
 		{"A,2.0,1,2,,,,,,,", ""},
 		{"A,1e20,1,2,,,,,,,", `items.csv:2: lead_time "1e20": want a whole number of periods >= 0 below 9007199254740992 (2^53)`},
-		{"A,1,1,2,,,,nan,,,", `items.csv:2: min_fill_rate "nan": want a fraction in [0, 1)`},
+		{"A,1,1,2,,,,nan,,,", `items.csv:2: min_fill_rate "nan": want a fraction in [0, 1) or a percentage below 100%`},
 		{"A,1,1,2,,,,.95,,,", ""},
 		{"A,1,1,2,,,,,,1_000,", `items.csv:2: current_order_up_to "1_000": want a whole number`},
 		{"A,1,1,2,,,,,,0x10,", `items.csv:2: current_order_up_to "0x10": want a whole number`},
@@ -110,15 +110,16 @@ func TestReadItemsWholeFile(t *testing.T) {
 		want string
 	}{
 		{"", "items.csv:1: empty file, want a header line with columns sku, lead_time, holding_cost, shortage_cost: missing column"},
-		{"sku,lead_time,holding_cost\nA,1,2\n", `items.csv:1: missing column "shortage_cost" (the header names "sku", "lead_time", "holding_cost"; want columns sku, lead_time, holding_cost, shortage_cost)`},
-		{"\ufeffsku,lead_time,note\n", `items.csv:1: missing column "holding_cost" (the header names "sku", "lead_time", "note"; want columns sku, lead_time, holding_cost, shortage_cost)`},
-		{"sku,lead_time,holding_cost,shortage_cost,SKU\n", `items.csv:1: column "sku" appears twice (fields 1 and 5), want each column once`},
-		{"sku,lead_time,holding_cost,shortage_cost\nA,1,2,3\n\"B,1,2,3\n", `items.csv:3:10: extraneous or missing " in quoted-field; want a quoted field closed by " and each " inside it doubled`},
-		{"sku,lead_time,holding_cost,shortage_cost\nA,1,2,3\nB,1,2\"x,3\n", `items.csv:3:6: bare " in non-quoted-field; want a field holding " enclosed in quotes, with the " doubled`},
-		// Another delimiter is named, with what the reader wants today.
-		{"sku;lead_time;holding_cost;shortage_cost\nA;1;2;3\n", `items.csv:1: missing column "sku": the header "sku;lead_time;holding_cost;shortage_cost" looks ';'-delimited; want comma-separated columns sku, lead_time, holding_cost, shortage_cost (and optional ones)`},
-		{"\ufeffsku\tlead_time\tholding_cost\tshortage_cost\r\n", `items.csv:1: missing column "sku": the header "sku\tlead_time\tholding_cost\tshortage_cost" looks tab-delimited; want comma-separated columns sku, lead_time, holding_cost, shortage_cost (and optional ones)`},
-		{"sku|lead_time|holding_cost|shortage_cost\n", `items.csv:1: missing column "sku": the header "sku|lead_time|holding_cost|shortage_cost" looks '|'-delimited; want comma-separated columns sku, lead_time, holding_cost, shortage_cost (and optional ones)`},
+		{"sku,lead_time,holding_cost\nA,1,2\n", `items.csv:1: missing column shortage_cost: the header (line 1) has "sku", "lead_time", "holding_cost"; name the column that holds it with --items-columns "shortage_cost=HEADER"`},
+		{"\ufeffsku,lead_time,note\n", `items.csv:1: missing column holding_cost: the header (line 1) has "sku", "lead_time", "note"; name the column that holds it with --items-columns "holding_cost=HEADER"`},
+		{"sku,holding_cost,shortage_cost\n", `items.csv:1: missing column lead_time or lead_time_days: the header (line 1) has "sku", "holding_cost", "shortage_cost"; name the column that holds it with --items-columns "lead_time=HEADER"`},
+		{"sku,lead_time,holding_cost,shortage_cost,SKU\n", `items.csv:1: column "sku" appears 2 times in the header`},
+		{"sku,lead_time,holding_cost,shortage_cost\nA,1,2,3\n\"B,1,2,3\n", `items.csv:3: extraneous or missing " in quoted-field (character 10): want a quoted field closed by " and each " inside it doubled`},
+		{"sku,lead_time,holding_cost,shortage_cost\nA,1,2,3\nB,1,2\"x,3\n", `items.csv:3: bare " in non-quoted-field (character 6): want a field holding " enclosed in quotes, with the " doubled`},
+		// A near miss of a known column is refused, naming both.
+		{"sku,lead_time,holding_cost,shortage_cost,Order Csot\nA,1,2,3,4\n", `items.csv:1: column Order Csot: not a column ergostock reads, but close to order_cost: rename it order_cost, or map it with --items-columns "order_cost=Order Csot"`},
+		// Costs in two currencies.
+		{"sku,lead_time,holding_cost,shortage_cost\nA,1,€2,3\nB,1,$2,3\n", `items.csv:3: holding_cost "$2": costs in $, but line 2 (holding_cost) is in EUR: want one currency per file`},
 	}
 	for _, tt := range tests {
 		_, err := ReadItems(strings.NewReader(tt.text), "items.csv", nil)

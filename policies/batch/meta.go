@@ -52,6 +52,14 @@ type Meta struct {
 	// (e.g. "iid,resamples=200,seed=1"); "" for a plain run, whose record
 	// and run digest then stay as they were.
 	Uncertainty string
+	// Reading is a digest of the reader options that change what is read
+	// from the inputs (decimal mark, date layout, column maps, returns,
+	// quantity scale, encoding, sheets) when any differs from its default,
+	// so that parts read differently never share a run digest; "" for a
+	// run read with the defaults, whose record and digest stay as they
+	// were. Unit is the unit the quantities count in when the history was
+	// scaled (--quantity-scale 10: "0.1"), else "".
+	Reading, Unit string
 }
 
 // NewDigest returns the hash whose sum DigestSum prints.
@@ -68,6 +76,9 @@ func (m Meta) RunDigest() string {
 	if m.Uncertainty != "" {
 		fmt.Fprintf(h, "uncertainty=%s\n", m.Uncertainty)
 	}
+	if m.Reading != "" {
+		fmt.Fprintf(h, "reading=%s\nunit=%s\n", m.Reading, m.Unit)
+	}
 	return DigestSum(h)
 }
 
@@ -80,6 +91,12 @@ func (m Meta) String() string {
 	}
 	if m.ItemCount > 0 {
 		s += fmt.Sprintf("; item_count=%d", m.ItemCount)
+	}
+	if m.Reading != "" {
+		s += "; reading=" + m.Reading
+	}
+	if m.Unit != "" {
+		s += "; unit=" + m.Unit
 	}
 	s += "; costs=per " + m.Period
 	if m.Cells.decimal() == ',' {
@@ -145,6 +162,10 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			}
 		case "uncertainty":
 			m.Uncertainty = val
+		case "reading":
+			m.Reading = val
+		case "unit":
+			m.Unit = val
 		}
 	}
 	if m.Period == "" || m.Items == "" {

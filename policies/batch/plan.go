@@ -87,6 +87,8 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 		row.Err = it.Err
 		return row
 	}
+	row.Location = it.Location
+	row.Warnings = append(row.Warnings, it.Warnings...)
 	if strings.ContainsAny(it.SKU, "\r\n") {
 		row.Err = fmt.Errorf("sku %q: want a SKU without line breaks", it.SKU)
 		return row
@@ -96,7 +98,7 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	row.SetTiming(sys)
 	if sys.Demand != nil && p.Pattern != nil {
 		SetStage(ctx, "reading the demand pattern")
-		row.Pattern = p.Pattern(it.SKU)
+		row.Pattern = p.Pattern(it.Key())
 	}
 	if sys.Demand == nil {
 		if p.Fit == nil {
@@ -104,7 +106,7 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 			return row
 		}
 		SetStage(ctx, "fitting the demand history")
-		f, err := p.Fit(it.SKU)
+		f, err := p.Fit(it.Key())
 		if err != nil {
 			row.Err = err
 			return row

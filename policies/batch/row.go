@@ -14,6 +14,9 @@ import (
 type Row struct {
 	Item int    // 0-based position in the items file
 	SKU  string // as in the items file
+	// Location is the item's location when the run plans by location
+	// (the items file has a location column), else "".
+	Location string
 
 	// The demand model, when known: set from the item's demand column or
 	// from the fit of its history.
@@ -106,6 +109,10 @@ type Writer struct {
 	format  Format     // how cells are written (see NewFormatWriter)
 	kinds   []CellKind // of the header's columns, when format is not plain
 	started bool       // the byte-order mark, if any, is written
+	// Location adds a location column after sku, for a run that plans by
+	// location (set it before WriteHeader); without it the file is as it
+	// always was.
+	Location bool
 	// Uncertainty, when not nil, appends the columns of
 	// UncertaintyHeader(*Uncertainty) after the standard ones (true: with
 	// the robust policy's); nil keeps the plain file.
@@ -144,6 +151,9 @@ func (w *Writer) WriteHeader() error {
 // Write writes one row.
 func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
+	if w.Location {
+		w.rec = append(w.rec[:1], append([]string{Guard(r.Location)}, w.rec[1:]...)...)
+	}
 	if w.Uncertainty != nil {
 		w.rec = r.Uncertainty.appendCells(w.rec, *w.Uncertainty)
 	}

@@ -34,20 +34,21 @@ const maxSheetRows = excelize.TotalRows
 // Rows are streamed to a temporary part of the workbook; nothing reaches
 // the output before Flush, which writes the whole archive.
 type WorkbookWriter struct {
-	out    io.Writer
-	format Format
-	f      *excelize.File
-	sw     *excelize.StreamWriter
-	header []string
-	kinds  []CellKind
-	styles map[string]int // by column name
-	rows   int            // written to the results sheet, header included
-	warns  [][]any        // rows of the warnings sheet
-	meta   *Meta
-	carry  []string // carried item columns
-	unc    *bool    // the --uncertainty columns, with the robust policy's if true
-	rec    []string
-	err    error
+	out      io.Writer
+	format   Format
+	f        *excelize.File
+	sw       *excelize.StreamWriter
+	header   []string
+	kinds    []CellKind
+	styles   map[string]int // by column name
+	rows     int            // written to the results sheet, header included
+	warns    [][]any        // rows of the warnings sheet
+	meta     *Meta
+	carry    []string // carried item columns
+	unc      *bool    // the --uncertainty columns, with the robust policy's if true
+	location bool     // a location column after sku
+	rec      []string
+	err      error
 }
 
 // NewWorkbookWriter returns a WorkbookWriter on w. Of f only Digits
@@ -95,6 +96,9 @@ func displayFormat(name string, k CellKind) string {
 	return fmtQuantity
 }
 
+// SetLocation adds the location column after sku, as Writer.SetLocation.
+func (w *WorkbookWriter) SetLocation(on bool) { w.location = on }
+
 // SetUncertainty adds the --uncertainty columns, as Writer.SetUncertainty.
 func (w *WorkbookWriter) SetUncertainty(robust bool) { w.unc = &robust }
 
@@ -126,6 +130,9 @@ func (w *WorkbookWriter) WriteHeader() error {
 		return w.fail(err)
 	}
 	w.header = Header()
+	if w.location {
+		w.header = append(w.header[:1], append([]string{"location"}, w.header[1:]...)...)
+	}
 	if w.unc != nil {
 		w.header = append(w.header, UncertaintyHeader(*w.unc)...)
 	}
@@ -173,6 +180,9 @@ func (w *WorkbookWriter) Write(r *Row) error {
 		return w.fail(fmt.Errorf("a worksheet holds at most %d rows: write the results of %d or more items as CSV", maxSheetRows, maxSheetRows))
 	}
 	w.rec = r.appendRecord(w.rec[:0])
+	if w.location {
+		w.rec = append(w.rec[:1], append([]string{Guard(r.Location)}, w.rec[1:]...)...)
+	}
 	if w.unc != nil {
 		w.rec = r.Uncertainty.appendCells(w.rec, *w.unc)
 	}
