@@ -140,10 +140,7 @@ func Evaluate(sys inventory.System, p Policy, opt Options) (*Evaluation, error) 
 		err error
 	)
 	if sys.Mode == inventory.Lost {
-		if err := refuseLostTiming(sys); err != nil {
-			return nil, err
-		}
-		e, err = evaluateLost(sys, p, opt)
+		e, err = evaluateLostIn(sys, p, opt, nil)
 	} else {
 		e, err = evaluateBackorder(sys, p, opt)
 	}

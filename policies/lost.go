@@ -981,6 +981,11 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 // evaluateLostIn is evaluateLost with the chain built in w (nil: a new
 // lostWork). The Evaluation keeps no reference to w.
 func evaluateLostIn(sys inventory.System, p Policy, opt Options, w *lostWork) (*Evaluation, error) {
+	if !sys.FixedTiming() {
+		// A lead-time law or reviews every R > 1 periods: the chain at
+		// reviews (see lostTimed).
+		return evaluateLostTimed(sys, p, opt)
+	}
 	dist := sys.Demand
 	mean := dist.Mean()
 	c, dtab, err := solveLost(dist, p, sys.LeadTime, opt, w)

@@ -171,7 +171,7 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 		err error
 	)
 	if sys.Mode == inventory.Lost {
-		if err := refuseLostTiming(sys); err != nil {
+		if _, _, _, err := cutoffLaw(sys); err != nil {
 			return nil, err
 		}
 		o, err = optimizeLost(sys, kind, fl, opt)

@@ -96,21 +96,6 @@ func onePointLaw(sys inventory.System) bool {
 	return n == 1
 }
 
-// refuseLostTiming refuses lost sales under a random lead time or a review
-// period above 1: the chain of on-hand and pipeline under Kaplan's arrival
-// process (and with reviews every R periods) is not built by this engine.
-func refuseLostTiming(sys inventory.System) error {
-	if sys.FixedTiming() {
-		return nil
-	}
-	if sys.LeadTimeLaw != nil {
-		return &inventory.FieldError{Field: "lead_time", Value: sys.LeadTimeLaw.String(),
-			Want: "a fixed lead time with --unmet lost: the exact lost-sales chain under a random lead time is not built (its state would add the arrival cut-off to on-hand and pipeline)", Err: ErrNotExact}
-	}
-	return &inventory.FieldError{Field: "review_period", Value: fmt.Sprint(sys.ReviewPeriod),
-		Want: "review every period (1) with --unmet lost: the exact lost-sales chain between reviews is not built", Err: ErrNotExact}
-}
-
 // independentPipeline returns the laws x0 and x1 of timing for base-stock
 // under independent lead times. With the position S restored at every
 // review, each order is the demand of the R periods before it, D_R, and an
