@@ -180,12 +180,13 @@ func checkLeadTimeLaw(s System) error {
 }
 
 // shortLaw keeps a law's text short enough for a one-line message: a law
-// with a long support is cut after its first points, with the count of the
-// points left out.
+// whose text passes 4 KiB (hundreds of points) is cut after its first
+// points, with the count of the points left out; shorter laws are printed
+// whole, so that they can be copied into --lead-time.
 func shortLaw(s string) string {
-	const keep = 8
+	const keep, most = 8, 4096
 	parts := strings.Split(s, ",")
-	if len(parts) <= keep+2 {
+	if len(s) <= most || len(parts) <= keep+2 {
 		return s
 	}
 	return strings.Join(parts[:keep], ",") + ",… (" + strconv.Itoa(len(parts)-keep) + " more points)"
