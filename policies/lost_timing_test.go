@@ -309,3 +309,64 @@ func TestLostTimedSizeRefused(t *testing.T) {
 		t.Errorf("counted: %v", err)
 	}
 }
+
+// Optimize in lost mode under a lead-time law, a review period and both:
+// no unit neighbour of the optimum is cheaper on the chain, the floors hold
+// on the evaluated figures, and the search names its guarantee.
+func TestOptimizeLostTimed(t *testing.T) {
+	for _, c := range []struct {
+		law string
+		R   int
+	}{{"pmf:1=0.2,2=0.5,3=0.3", 1}, {"", 3}, {"pmf:0=0.3,1=0.7", 2}} {
+		sys := lostTimedSystem(t, "poisson:mean=2", 1, c.law, c.R)
+		sys.Shortage = 19
+		for _, k := range []Kind{BaseStock, SS, SNQ} {
+			name := fmt.Sprintf("law=%q R=%d %v", c.law, c.R, k)
+			o, err := Optimize(sys, k, SearchOptions{})
+			if err != nil {
+				t.Fatalf("%s: %v", name, err)
+			}
+			if o.Search.Guarantee == "" {
+				t.Errorf("%s: no guarantee stated", name)
+			}
+			p := o.Policy
+			var near []Policy
+			for _, d1 := range []int{-1, 0, 1} {
+				for _, d2 := range []int{-1, 0, 1} {
+					q := p
+					switch k {
+					case BaseStock:
+						if d2 != 0 {
+							continue
+						}
+						q.OrderUpTo += d1
+					case SS:
+						q.ReorderPoint, q.OrderUpTo = q.ReorderPoint+d1, q.OrderUpTo+d2
+					case SNQ:
+						q.ReorderPoint, q.OrderMultiple = q.ReorderPoint+d1, q.OrderMultiple+d2
+					}
+					if q == p || q.Validate(inventory.Lost) != nil {
+						continue
+					}
+					near = append(near, q)
+				}
+			}
+			for _, q := range near {
+				e, err := Evaluate(sys, q, Options{})
+				if err != nil {
+					t.Fatalf("%s: %v: %v", name, q, err)
+				}
+				if e.Figures.TotalCost < o.Figures.TotalCost-1e-9 {
+					t.Errorf("%s: %v costs %.12g < optimum %v %.12g", name, q, e.Figures.TotalCost, p, o.Figures.TotalCost)
+				}
+			}
+			o2, err := Optimize(sys, k, SearchOptions{MinFillRate: 0.98, MaxStockout: 0.05})
+			if err != nil {
+				t.Fatalf("%s floor: %v", name, err)
+			}
+			if o2.Figures.FillRate < 0.98 || o2.Figures.StockoutProbability > 0.05 {
+				t.Errorf("%s floor: fill %g, stockout %g", name, o2.Figures.FillRate, o2.Figures.StockoutProbability)
+			}
+		}
+	}
+}

@@ -97,7 +97,9 @@ type Optimum struct {
 // (for R-period reviews with a fixed lead time, see also Zipkin 2000,
 // section 6.7). Under independent lead times only base-stock is searched
 // (the fractile of the pipeline law, exact); other kinds are refused with
-// ErrNotExact, as is lost mode with a lead-time law or R > 1.
+// ErrNotExact, as is lost mode with independent lead times.
+// TestSearchCostConvexUnderTiming checks the convexity of G and the
+// monotone service on the search's own tables.
 //
 // Lost mode: searches that evaluate candidates on the exact chain (at most
 // MaxEvaluations of them, each once), starting from the backorder optimum
@@ -107,7 +109,14 @@ type Optimum struct {
 // Patience). s-S and s-nQ use a compass search: the result is a local
 // optimum (no cheaper policy among its eight unit neighbours), with no
 // global guarantee, because the lost-sales cost is not known to be convex.
-// Search.Guarantee says which case applies.
+// Search.Guarantee says which case applies. Under a lead-time law
+// (sequential deliveries) or a review period the candidates are evaluated
+// on the chain at reviews (see lostTimed) and the same searches run; the
+// base-stock bounds still hold (on hand at the end of a period is at least
+// the position after the last review whose orders have all arrived, less
+// the demand since, a law that does not depend on the position; on hand
+// before demand never exceeds S), so the base-stock scan keeps its
+// guarantee, and s-S and s-nQ stay local optima.
 //
 // Costs h <= 0 or b <= 0 are refused (no finite optimum, or none worth
 // finding); so are floors outside (0, 1), as *inventory.FieldError values
