@@ -184,6 +184,9 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 			return nil, err
 		}
 		o, err = optimizeLost(sys, kind, fl, opt)
+		if err == nil && !sys.FixedTiming() {
+			o.Search.Method += fmt.Sprintf("; each chain observed at reviews every %d period(s), with a cycle's transitions, under %s deliveries", sys.Review(), sys.Model())
+		}
 	} else {
 		o, err = optimizeBackorder(sys, kind, fl, opt)
 	}

@@ -219,8 +219,11 @@ func hostileCases() []hostileCase {
 			add(hostileCase{name: fmt.Sprintf("%s--lead-time=%q", cmd, c.law), args: with(base, "--lead-time", c.law), code: c.code, names: c.names})
 		}
 		law := with(base, "--lead-time", "pmf:1=0.2,2=0.5,3=0.3")
-		add(hostileCase{name: cmd + "-lost-law", args: with(law, "--unmet", "lost"), code: 1, names: []string{"--lead-time", "simulate"}})
-		add(hostileCase{name: cmd + "-lost-review", args: with(with(base, "--unmet", "lost"), "--review-period", "7"), code: 1, names: []string{"--review-period", "simulate"}})
+		// Lost sales under a law and a review period are exact; orders
+		// that may cross are not, and the refusal points to simulate.
+		add(hostileCase{name: cmd + "-lost-law", args: with(law, "--unmet", "lost"), code: 0})
+		add(hostileCase{name: cmd + "-lost-review", args: with(with(base, "--unmet", "lost"), "--review-period", "7"), code: 0})
+		add(hostileCase{name: cmd + "-lost-independent", args: with(with(law, "--unmet", "lost"), "--lead-time-model", "independent"), code: 1, names: []string{"--lead-time-model", "simulate"}})
 		add(hostileCase{name: cmd + "-law-review-ok", args: with(law, "--review-period", "7"), code: 0})
 	}
 	add(hostileCase{name: "evaluate-independent-ss", args: with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), code: 0}) // fixed lead time: both models agree

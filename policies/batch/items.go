@@ -73,13 +73,14 @@ const (
 	colCurReorder     = "current_reorder_point"
 	colCurOrderUpTo   = "current_order_up_to"
 	colCurMultiple    = "current_order_multiple"
+	colReviewPeriod   = "review_period"
 	requiredColumnsNo = 4
 )
 
 var itemColumns = []string{
 	colSKU, colLeadTime, colHolding, colShortage, // required, in this order
 	colOrderCost, colUnitCost, colUnmet, colPolicy, colMinFillRate, colDemand,
-	colCurReorder, colCurOrderUpTo, colCurMultiple,
+	colCurReorder, colCurOrderUpTo, colCurMultiple, colReviewPeriod,
 }
 
 // ReadItems reads the items file from r; name is the file name used in
@@ -351,6 +352,14 @@ func parseItem(it *Item, cell func(int) string) error {
 			return withCell(err, raw)
 		}
 		sys.Demand = d
+	}
+	if s := raw[colReviewPeriod]; s != "" {
+		// Reviews every R periods (empty: every period); Validate checks R.
+		r, _, ok := parseWhole(s)
+		if !ok || r < 1 {
+			return &inventory.FieldError{Field: colReviewPeriod, Value: s, Want: "a whole number of periods >= 1 between reviews"}
+		}
+		sys.ReviewPeriod = r
 	}
 	check := *sys
 	if check.Demand == nil {
