@@ -427,6 +427,26 @@ func componentPMF(c Distribution, out []float64) {
 // period's demand is Y - MixedDemand(s, 0). With a fixed lead time L and
 // R = 1 it is the sum over L + extra periods.
 func MixedDemand(s System, extra int) (Distribution, error) {
+	return mixedDemand(s, extra, nil)
+}
+
+// MixedDemands returns MixedDemand(s, e) for each e of extras, computing
+// each sum of demand over a number of periods once for all of them (the
+// laws of X_{V+f} and X_{V+f+1} share all but two of their components).
+func MixedDemands(s System, extras ...int) ([]Distribution, error) {
+	sums := map[int]Distribution{}
+	out := make([]Distribution, len(extras))
+	for i, e := range extras {
+		x, err := mixedDemand(s, e, sums)
+		if err != nil {
+			return nil, err
+		}
+		out[i] = x
+	}
+	return out, nil
+}
+
+func mixedDemand(s System, extra int, sums map[int]Distribution) (Distribution, error) {
 	lw, negl, err := s.LeadTimeWeights()
 	if err != nil {
 		return nil, err
@@ -442,7 +462,7 @@ func MixedDemand(s System, extra int) (Distribution, error) {
 			w[l+f] += p / float64(r)
 		}
 	}
-	return NewMixture(s.Demand, w, extra, negl)
+	return newMixture(s.Demand, w, extra, negl, sums)
 }
 
 // NewMixture returns the law of X_{m+extra}, m drawn with P(M = m) = w[m]
@@ -450,14 +470,26 @@ func MixedDemand(s System, extra int) (Distribution, error) {
 // mass already moved in w, added to the Neglected of the result. A weight
 // vector of one point gives that component itself.
 func NewMixture(d Distribution, w []float64, extra int, neglected float64) (Distribution, error) {
+	return newMixture(d, w, extra, neglected, nil)
+}
+
+// newMixture is NewMixture with the sums Sum(d, n) kept in sums (when not
+// nil) for the next mixture of the same demand.
+func newMixture(d Distribution, w []float64, extra int, neglected float64, sums map[int]Distribution) (Distribution, error) {
 	mx := &mixture{negl: neglected, lo: -1}
 	for m, p := range w {
 		if p <= 0 {
 			continue
 		}
-		x, err := Sum(d, m+extra)
-		if err != nil {
-			return nil, err
+		x, ok := sums[m+extra]
+		if !ok {
+			var err error
+			if x, err = Sum(d, m+extra); err != nil {
+				return nil, err
+			}
+			if sums != nil {
+				sums[m+extra] = x
+			}
 		}
 		if mx.lo < 0 {
 			mx.lo = m + extra

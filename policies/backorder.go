@@ -226,8 +226,11 @@ func evaluateBackorder(sys inventory.System, p Policy, opt Options) (*Evaluation
 	if err := checkPositions(p, opt.MaxStates); err != nil {
 		return nil, err
 	}
-	tm, err := timingOf(sys, p.Kind)
-	if err != nil {
+	var tm timing
+	var err error
+	if opt.tm != nil {
+		tm = *opt.tm
+	} else if tm, err = timingOf(sys, p.Kind); err != nil {
 		return nil, err
 	}
 	xl, neglL, xl1, neglL1 := tm.x0, tm.negl0, tm.x1, tm.negl1

@@ -39,6 +39,12 @@ type Options struct {
 	// and the searches check it and return its error, wrapped, once it is
 	// done. A batch gives each item a deadline through it.
 	Context context.Context
+
+	// tm, when not nil, holds the lead-time laws of the system being
+	// evaluated, computed by the search that chose the policy (see
+	// optimizeBackorder): the final evaluation reuses them instead of
+	// mixing the lead-time demand again.
+	tm *timing
 }
 
 // Evaluation is what a policy delivers, with the chain it came from.

@@ -230,7 +230,13 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	if !sys.FixedTiming() {
 		sr.Method += fmt.Sprintf("; at reviews every %d period(s), with the lead-time demand mixed over the lead-time law and the review phase (%s deliveries)", sys.Review(), sys.Model())
 	}
-	ev, err := Evaluate(sys, p, opt.Eval)
+	eopt := opt.Eval
+	if !sys.FixedTiming() {
+		// The mixed lead-time laws of the search are those of the final
+		// evaluation: build them once.
+		eopt.tm = &mo.tm
+	}
+	ev, err := Evaluate(sys, p, eopt)
 	if err != nil {
 		return nil, fmt.Errorf("evaluating the optimum: %w", err)
 	}

@@ -69,12 +69,11 @@ func timingOf(sys inventory.System, k Kind) (timing, error) {
 			return t, err
 		}
 	} else {
-		if t.x0, err = inventory.MixedDemand(sys, 0); err != nil {
+		xs, err := inventory.MixedDemands(sys, 0, 1)
+		if err != nil {
 			return t, err
 		}
-		if t.x1, err = inventory.MixedDemand(sys, 1); err != nil {
-			return t, err
-		}
+		t.x0, t.x1 = xs[0], xs[1]
 	}
 	t.negl0, t.negl1 = inventory.Neglected(t.x0), inventory.Neglected(t.x1)
 	return t, nil
