@@ -984,7 +984,7 @@ func evaluateLostIn(sys inventory.System, p Policy, opt Options, w *lostWork) (*
 	if !sys.FixedTiming() {
 		// A lead-time law or reviews every R > 1 periods: the chain at
 		// reviews (see lostTimed).
-		return evaluateLostTimed(sys, p, opt)
+		return evaluateLostTimed(sys, p, opt, w)
 	}
 	dist := sys.Demand
 	mean := dist.Mean()

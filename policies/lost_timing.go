@@ -323,7 +323,13 @@ func (ix *lostTimedIndex) offset(rest []int32) int {
 // the chain's negl. States, transitions, index slots and the estimated
 // memory are counted as the chain grows and refused past their limits with
 // a *SizeError or *LostMemoryError, as buildLost does.
-func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt Options) (*lostTimed, error) {
+//
+// The chain's arrays come from w (the buffers of a search, reused from
+// chain to chain; nil: new ones) and are valid until its next build.
+func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt Options, w *lostWork) (*lostTimed, error) {
+	if w == nil {
+		w = &lostWork{}
+	}
 	pT, lmax, _, err := cutoffLaw(sys)
 	if err != nil {
 		return nil, err
@@ -349,15 +355,15 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 	root := make([]int32, k)
 	root[0] = int32(top)
 	ix.slots[ix.offset(root[1:])+top] = 0
-	c.tuples = append(c.tuples, root...)
-	rowPtr := []int{0}
-	var col []int32
-	var val []float64
-	type ent struct {
-		j int32
-		p float64
-	}
-	var row []ent
+	c.tuples = append(w.tuples[:0], root...)
+	c.order = w.order[:0]
+	c.cyc = w.folded[:0]
+	rowPtr := append(w.rowPtr[:0], 0)
+	col, val := w.col[:0], w.val[:0]
+	// acc[j] gathers the row's probability of state j, mark[j] = i+1 once
+	// j is a target of row i, and stamp lists the row's targets.
+	acc, mark := []float64{0}, []int32{0} // the root's
+	var stamp []int32
 	next := make([]int32, k)
 	floor := negligibleTransition
 	if opt.Exhaustive {
@@ -375,7 +381,7 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 		q := lc.run(z, p, cyc[:], nil)
 		c.order = append(c.order, int32(q))
 		c.cyc = append(c.cyc, cyc[:]...)
-		row = row[:0]
+		stamp = stamp[:0]
 		for m := range lc.cur {
 			if !lc.used[m] {
 				continue
@@ -393,7 +399,10 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 			}
 			off := ix.offset(next[1:])
 			v := lc.cur[m]
-			for x := lc.lo[m]; x <= lc.hi[m]; x++ {
+			// New states are numbered in the order demand 0, 1, ... (on
+			// hand downwards): breadth-first by demand, which suits the
+			// Gauss-Seidel sweeps (see buildLost).
+			for x := lc.hi[m]; x >= lc.lo[m]; x-- {
 				w := v[x]
 				if w == 0 {
 					continue
@@ -407,43 +416,40 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 					ix.slots[off+y] = s
 					next[0] = int32(y)
 					c.tuples = append(c.tuples, next...)
+					acc, mark = append(acc, 0), append(mark, 0)
 				}
-				row = append(row, ent{s, w})
+				if mark[s] != int32(i+1) {
+					mark[s] = int32(i + 1)
+					stamp = append(stamp, s)
+				}
+				acc[s] += w
 			}
 			lc.used[m] = false
 		}
-		slices.SortFunc(row, func(a, b ent) int { return int(a.j) - int(b.j) })
-		// Merge equal targets, then fold the negligible entries.
-		out := row[:0]
-		for _, e := range row {
-			if n := len(out); n > 0 && out[n-1].j == e.j {
-				out[n-1].p += e.p
-				continue
-			}
-			out = append(out, e)
+		if !slices.IsSorted(stamp) {
+			slices.Sort(stamp)
 		}
-		best, fold := 0, 0.0
-		for t, e := range out {
-			if e.p > out[best].p {
-				best = t
+		// Fold the negligible entries into the largest.
+		best, fold := stamp[0], 0.0
+		for _, j := range stamp {
+			if acc[j] > acc[best] {
+				best = j
 			}
 		}
-		lo := len(col)
-		for t, e := range out {
-			if e.p < floor && t != best {
-				fold += e.p
-				continue
+		for _, j := range stamp {
+			if acc[j] < floor && j != best {
+				fold += acc[j]
+				acc[j] = 0
 			}
-			col = append(col, e.j)
-			val = append(val, e.p)
 		}
-		if fold > 0 {
-			for t := lo; t < len(col); t++ {
-				if col[t] == out[best].j {
-					val[t] += fold
-				}
+		acc[best] += fold
+		c.negl = max(c.negl, fold)
+		for _, j := range stamp {
+			if acc[j] > 0 || j == best {
+				col = append(col, j)
+				val = append(val, acc[j])
 			}
-			c.negl = max(c.negl, fold)
+			acc[j] = 0
 		}
 		rowPtr = append(rowPtr, len(col))
 		n := len(c.tuples) / k
@@ -463,6 +469,7 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 		}
 	}
 	n := len(c.tuples) / k
+	w.tuples, w.order, w.folded, w.rowPtr, w.col, w.val = c.tuples, c.order, c.cyc, rowPtr, col, val
 	m, err := chain.NewCSR(n, rowPtr, col, val)
 	if err != nil {
 		return nil, fmt.Errorf("building the lost-sales chain: %w", err)
@@ -474,7 +481,7 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 // evaluateLostTimed evaluates p in lost mode under a lead-time law or a
 // review period R > 1 on the chain of lostTimed; see its doc for the
 // figures.
-func evaluateLostTimed(sys inventory.System, p Policy, opt Options) (*Evaluation, error) {
+func evaluateLostTimed(sys inventory.System, p Policy, opt Options, w *lostWork) (*Evaluation, error) {
 	_, top := p.Levels()
 	top = max(top, 0)
 	_, lmax, lneg, err := cutoffLaw(sys)
@@ -494,7 +501,7 @@ func evaluateLostTimed(sys inventory.System, p Policy, opt Options) (*Evaluation
 	}
 	dist := sys.Demand
 	dtab := newLossTable(dist, 0, top)
-	c, err := buildLostTimed(sys, p, top, dtab, opt)
+	c, err := buildLostTimed(sys, p, top, dtab, opt, w)
 	if err != nil {
 		return nil, fmt.Errorf("%v: %w", p, err)
 	}

@@ -38,7 +38,7 @@ func TestLostTimedFixedMatches(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				got, err := evaluateLostTimed(sys, p, opt)
+				got, err := evaluateLostTimed(sys, p, opt, nil)
 				if err != nil {
 					t.Fatal(err)
 				}

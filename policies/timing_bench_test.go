@@ -66,3 +66,51 @@ func BenchmarkOptimizeSSLeadTimeLaw(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkEvaluateLostTimed: lost sales on the chain at reviews (see
+// lostTimed) beside the fixed-lead-time chain: base-stock S = 30 at
+// Poisson 5 with a fixed lead time 3 and with a law uniform on 1..3 (the
+// same number of pipeline components), and weekly review of daily demand
+// (Poisson 2 a day, s-S(10, 40)) with a lead time of 2 days and with a law
+// uniform on 1..5 days.
+//
+//	go test -run '^$' -bench EvaluateLostTimed -benchtime 3x -count 3 -benchmem ./policies/
+func BenchmarkEvaluateLostTimed(b *testing.B) {
+	law3, err := inventory.Parse("pmf:1=0.3333333333333333,2=0.3333333333333333,3=0.3333333333333334")
+	if err != nil {
+		b.Fatal(err)
+	}
+	law5, err := inventory.Parse("pmf:1=0.2,2=0.2,3=0.2,4=0.2,5=0.2")
+	if err != nil {
+		b.Fatal(err)
+	}
+	bs := Policy{Kind: BaseStock, OrderUpTo: 30}
+	ss := Policy{Kind: SS, ReorderPoint: 10, OrderUpTo: 40}
+	for _, c := range []struct {
+		name   string
+		demand float64
+		L, R   int
+		law    inventory.Distribution
+		p      Policy
+	}{
+		{"fixed=3", 5, 3, 1, nil, bs},
+		{"law=1..3", 5, 0, 1, law3, bs},
+		{"daily,fixed=2,R=7", 2, 2, 7, nil, ss},
+		{"daily,law=1..5,R=7", 2, 0, 7, law5, ss},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			sys := inventory.System{Demand: poisson(b, c.demand), LeadTime: c.L, LeadTimeLaw: c.law, ReviewPeriod: c.R,
+				Holding: 1, Shortage: 9, OrderCost: 20, Mode: inventory.Lost}
+			b.ReportAllocs()
+			var states int
+			for b.Loop() {
+				e, err := Evaluate(sys, c.p, Options{})
+				if err != nil {
+					b.Fatal(err)
+				}
+				states = e.States
+			}
+			b.ReportMetric(float64(states), "states")
+		})
+	}
+}
