@@ -3,6 +3,7 @@ package inventory
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -327,6 +328,7 @@ type mixture struct {
 	vari float64
 	negl float64
 	lo   int // the smallest number of periods
+	span int // the length of the table (mixtureSpan)
 	// A table of the law on 0..len(pmf)-1, where the tail of every
 	// component is below mixtureCacheEps: pmf, cdf[k] = P(X <= k) by
 	// prefix sums and tail[k] = P(X >= k) by suffix sums from the
@@ -355,18 +357,47 @@ func mixtureSpan(x *mixture) int {
 	return hi + 1
 }
 
-// tabulate fills the table of x (skipped when it would be too long).
-func (x *mixture) tabulate() {
-	hi := mixtureSpan(x) - 1
+// mixCache keeps what the mixtures of one demand law share (see
+// MixedDemands): the sums Sum(d, n), their bounds and their pmf tables,
+// by the number of periods n.
+type mixCache struct {
+	sums   map[int]Distribution
+	bounds map[int]int
+	tabs   map[int][]float64
+}
+
+func newMixCache() *mixCache {
+	return &mixCache{sums: map[int]Distribution{}, bounds: map[int]int{}, tabs: map[int][]float64{}}
+}
+
+// mixCacheEntries caps the pmf tables a mixCache keeps (32 MiB).
+const mixCacheEntries = 1 << 22
+
+// tabulate fills the table of x (skipped when it would be too long); ns
+// are the numbers of periods of its components, whose pmf tables come
+// from mc when it holds one at least as long (nil: none kept). A table's
+// values do not depend on its length (componentPMF), so a shared one gives
+// the same numbers.
+func (x *mixture) tabulate(mc *mixCache, ns []int) {
+	hi := x.span - 1
 	if hi+1 > maxMixtureCache {
 		return
 	}
 	n := hi + 1
 	pmf := make([]float64, n)
-	comp := make([]float64, n)
+	keep := mc != nil && n*len(x.c) <= mixCacheEntries
 	var top float64 // P(X >= n)
 	for i, c := range x.c {
-		componentPMF(c, comp)
+		var comp []float64
+		if t, ok := mc.tab(ns[i]); ok && len(t) >= n {
+			comp = t[:n]
+		} else {
+			comp = make([]float64, n)
+			componentPMF(c, comp)
+			if keep {
+				mc.tabs[ns[i]] = comp
+			}
+		}
 		for k, v := range comp {
 			pmf[k] += x.w[i] * v
 		}
@@ -385,6 +416,15 @@ func (x *mixture) tabulate() {
 	}
 	tail[0] = 1
 	x.pmf, x.cdf, x.tail = pmf, cdf, tail
+}
+
+// tab returns the table of n periods kept in mc (nil mc: none).
+func (mc *mixCache) tab(n int) ([]float64, bool) {
+	if mc == nil {
+		return nil, false
+	}
+	t, ok := mc.tabs[n]
+	return t, ok
 }
 
 // componentPMF writes P(C = k), k = 0..len(out)-1. A Poisson law is
@@ -434,10 +474,16 @@ func MixedDemand(s System, extra int) (Distribution, error) {
 // each sum of demand over a number of periods once for all of them (the
 // laws of X_{V+f} and X_{V+f+1} share all but two of their components).
 func MixedDemands(s System, extras ...int) ([]Distribution, error) {
-	sums := map[int]Distribution{}
+	mc := newMixCache()
 	out := make([]Distribution, len(extras))
-	for i, e := range extras {
-		x, err := mixedDemand(s, e, sums)
+	// The longest first, so that its tables serve the shorter ones.
+	order := make([]int, len(extras))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int { return extras[b] - extras[a] })
+	for _, i := range order {
+		x, err := mixedDemand(s, extras[i], mc)
 		if err != nil {
 			return nil, err
 		}
@@ -446,7 +492,7 @@ func MixedDemands(s System, extras ...int) ([]Distribution, error) {
 	return out, nil
 }
 
-func mixedDemand(s System, extra int, sums map[int]Distribution) (Distribution, error) {
+func mixedDemand(s System, extra int, mc *mixCache) (Distribution, error) {
 	lw, negl, err := s.LeadTimeWeights()
 	if err != nil {
 		return nil, err
@@ -462,7 +508,7 @@ func mixedDemand(s System, extra int, sums map[int]Distribution) (Distribution, 
 			w[l+f] += p / float64(r)
 		}
 	}
-	return newMixture(s.Demand, w, extra, negl, sums)
+	return newMixture(s.Demand, w, extra, negl, mc)
 }
 
 // NewMixture returns the law of X_{m+extra}, m drawn with P(M = m) = w[m]
@@ -475,22 +521,28 @@ func NewMixture(d Distribution, w []float64, extra int, neglected float64) (Dist
 
 // newMixture is NewMixture with the sums Sum(d, n) kept in sums (when not
 // nil) for the next mixture of the same demand.
-func newMixture(d Distribution, w []float64, extra int, neglected float64, sums map[int]Distribution) (Distribution, error) {
+func newMixture(d Distribution, w []float64, extra int, neglected float64, mc *mixCache) (Distribution, error) {
 	mx := &mixture{negl: neglected, lo: -1}
+	var ns []int
 	for m, p := range w {
 		if p <= 0 {
 			continue
 		}
-		x, ok := sums[m+extra]
+		var x Distribution
+		ok := false
+		if mc != nil {
+			x, ok = mc.sums[m+extra]
+		}
 		if !ok {
 			var err error
 			if x, err = Sum(d, m+extra); err != nil {
 				return nil, err
 			}
-			if sums != nil {
-				sums[m+extra] = x
+			if mc != nil {
+				mc.sums[m+extra] = x
 			}
 		}
+		ns = append(ns, m+extra)
 		if mx.lo < 0 {
 			mx.lo = m + extra
 		}
@@ -511,11 +563,26 @@ func newMixture(d Distribution, w []float64, extra int, neglected float64, sums 
 		dm := x.Mean() - mx.mean
 		mx.vari += mx.w[i] * (x.Variance() + dm*dm)
 	}
-	if work := float64(len(mx.c)) * float64(mixtureSpan(mx)); work > maxMixtureWork {
-		return nil, &FieldError{Field: "lead_time", Value: "a law of " + strconv.Itoa(len(mx.c)) + " values",
-			Want: fmt.Sprintf("a lead-time law whose demand tables need at most 1e9 entries (%d values times %d units of demand; plan in longer periods or larger units)", len(mx.c), mixtureSpan(mx)), Err: ErrLimit}
+	hi := 0
+	for i, c := range mx.c {
+		b, ok := 0, false
+		if mc != nil {
+			b, ok = mc.bounds[ns[i]]
+		}
+		if !ok {
+			b = c.Bound(mixtureCacheEps)
+			if mc != nil {
+				mc.bounds[ns[i]] = b
+			}
+		}
+		hi = max(hi, b)
 	}
-	mx.tabulate()
+	mx.span = hi + 1
+	if work := float64(len(mx.c)) * float64(mx.span); work > maxMixtureWork {
+		return nil, &FieldError{Field: "lead_time", Value: "a law of " + strconv.Itoa(len(mx.c)) + " values",
+			Want: fmt.Sprintf("a lead-time law whose demand tables need at most 1e9 entries (%d values times %d units of demand; plan in longer periods or larger units)", len(mx.c), mx.span), Err: ErrLimit}
+	}
+	mx.tabulate(mc, ns)
 	return Mixture{mx}, nil
 }
 

@@ -21,14 +21,13 @@ import (
 // LeadTimeWeights). Independent lead times (orders that may cross) are
 // refused with ErrNotExact: this chain keeps orders in their sequence.
 func cutoffLaw(sys inventory.System) (pT []float64, lmax int, neglected float64, err error) {
+	if err := checkLostTiming(sys); err != nil {
+		return nil, 0, 0, err
+	}
 	if sys.LeadTimeLaw == nil {
 		pT = make([]float64, sys.LeadTime+1)
 		pT[sys.LeadTime] = 1
 		return pT, sys.LeadTime, 0, nil
-	}
-	if sys.Model() == inventory.Independent && !onePointLaw(sys) {
-		return nil, 0, 0, &inventory.FieldError{Field: "lead_time_model", Value: string(sys.Model()),
-			Want: "sequential with --unmet lost (with independent lead times, where orders may cross, only base-stock in backorder mode is evaluated exactly)", Err: ErrNotExact}
 	}
 	w, negl, err := sys.LeadTimeWeights()
 	if err != nil {
@@ -57,6 +56,35 @@ func cutoffLaw(sys inventory.System) (pT []float64, lmax int, neglected float64,
 		prev = max(prev, f)
 	}
 	return pT, lmax, negl, nil
+}
+
+// checkLostTiming refuses, with ErrNotExact, the lead-time model the
+// lost-sales chain does not carry: independent lead times (orders that may
+// cross) with a law of more than one point.
+func checkLostTiming(sys inventory.System) error {
+	if sys.LeadTimeLaw != nil && sys.Model() == inventory.Independent && !onePointLaw(sys) {
+		return &inventory.FieldError{Field: "lead_time_model", Value: string(sys.Model()),
+			Want: "sequential with --unmet lost (with independent lead times, where orders may cross, only base-stock in backorder mode is evaluated exactly)", Err: ErrNotExact}
+	}
+	return nil
+}
+
+// longestLeadTime returns lmax of cutoffLaw without building the law (a
+// fixed lead time is returned as it is, however long).
+func longestLeadTime(sys inventory.System) (int, error) {
+	if sys.LeadTimeLaw == nil {
+		return sys.LeadTime, nil
+	}
+	_, lmax, _, err := cutoffLaw(sys)
+	return lmax, err
+}
+
+// lostTimedBytes estimates the memory of a lostTimed chain's fixed part
+// before anything is allocated: the cut-off law and the orders by age
+// (lmax + 1 entries each), and the cycle's three sets of lmax + 2 vectors
+// over on hand 0..top, plus one state.
+func lostTimedBytes(lmax, top, k int) float64 {
+	return float64(lmax+2)*(3*float64(top+1)*8+8+4+8) + lostTimedStateBytes(k)
 }
 
 // lostTimed is the lost-sales chain under Kaplan's sequential deliveries
@@ -339,11 +367,7 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 	c := &lostTimed{R: R, lmax: lmax, k: k, top: top, pT: pT}
 	bound := lostBound(top, k)
 	perState := lostTimedStateBytes(k)
-	// The cycle's vectors: three sets of lmax+2 vectors over on hand.
-	cycleBytes := 3 * float64(lmax+2) * float64(top+1) * 8
-	if perState+cycleBytes > lostMemoryLimit {
-		return nil, memoryError(lmax, 1, perState+cycleBytes)
-	}
+	cycleBytes := lostTimedBytes(lmax, top, k) - perState
 	maxTransitions := transitionsPerState * opt.MaxStates
 	maxSlots := indexSlotsPerState * opt.MaxStates
 	memory := func(n, nnz, slots, groups int) float64 {
@@ -371,7 +395,7 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 	}
 	ctx := opt.Context
 	for i := 0; i < len(c.tuples)/k; i++ {
-		if ctx != nil && i%1024 == 1023 {
+		if ctx != nil && (R > 64 || i%1024 == 1023) {
 			if err := ctx.Err(); err != nil {
 				return nil, fmt.Errorf("building the lost-sales chain (%d states so far): %w", i, err)
 			}
@@ -484,7 +508,12 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 func evaluateLostTimed(sys inventory.System, p Policy, opt Options, w *lostWork) (*Evaluation, error) {
 	_, top := p.Levels()
 	top = max(top, 0)
-	_, lmax, lneg, err := cutoffLaw(sys)
+	if err := checkLostTiming(sys); err != nil {
+		return nil, err
+	}
+	// Refuse before anything of the size of the pipeline or of the levels
+	// is allocated (a fixed lead time may be up to 1e9 periods).
+	lmax, err := longestLeadTime(sys)
 	if err != nil {
 		return nil, err
 	}
@@ -493,8 +522,12 @@ func evaluateLostTimed(sys inventory.System, p Policy, opt Options, w *lostWork)
 	if top >= opt.MaxStates {
 		return nil, fmt.Errorf("%v: %w", p, &SizeError{Chain: "lost-sales", Bound: lostBound(top, k), Limit: opt.MaxStates, What: "states"})
 	}
-	if b := lostTimedStateBytes(k) + 3*float64(lmax+2)*float64(top+1)*8; b > lostMemoryLimit {
+	if b := lostTimedBytes(lmax, top, k); b > lostMemoryLimit {
 		return nil, fmt.Errorf("%v: %w", p, memoryError(lmax, 1, b))
+	}
+	_, _, lneg, err := cutoffLaw(sys)
+	if err != nil {
+		return nil, err
 	}
 	if err := ctxErr(opt.Context); err != nil {
 		return nil, fmt.Errorf("%v: %w", p, err)

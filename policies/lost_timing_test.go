@@ -491,3 +491,14 @@ func TestLostTimedAgainstSimulation(t *testing.T) {
 		}
 	}
 }
+
+// A fixed lead time of a billion periods with weekly review is refused
+// before the pipeline is allocated, as a memory limit.
+func TestLostTimedHugeLeadTime(t *testing.T) {
+	sys := lostTimedSystem(t, "poisson:mean=5", 1_000_000_000, "", 7)
+	_, err := Evaluate(sys, Policy{Kind: BaseStock, OrderUpTo: 30}, Options{})
+	var me *LostMemoryError
+	if !errors.As(err, &me) || strings.Contains(err.Error(), "\n") {
+		t.Errorf("huge lead time: %v", err)
+	}
+}

@@ -180,7 +180,7 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 		err error
 	)
 	if sys.Mode == inventory.Lost {
-		if _, _, _, err := cutoffLaw(sys); err != nil {
+		if err := checkLostTiming(sys); err != nil {
 			return nil, err
 		}
 		o, err = optimizeLost(sys, kind, fl, opt)

@@ -2,6 +2,7 @@ package policies
 
 import (
 	"testing"
+	"time"
 
 	"ergostock/inventory"
 )
@@ -113,4 +114,37 @@ func BenchmarkEvaluateLostTimed(b *testing.B) {
 			b.ReportMetric(float64(states), "states")
 		})
 	}
+}
+
+// BenchmarkLeadTimeLawOverFixed reports the ratio of the time of the
+// evaluation of BenchmarkEvaluateSSLeadTimeLaw's law=1..10 to that of
+// fixed=5 (issue 12 item 9: at most 3), the two interleaved in every
+// iteration so that the load of a shared machine falls on both alike.
+//
+//	go test -run '^$' -bench LeadTimeLawOverFixed -benchtime 300x -count 3 ./policies/
+func BenchmarkLeadTimeLawOverFixed(b *testing.B) {
+	law, err := inventory.Parse("pmf:1=0.1,2=0.1,3=0.1,4=0.1,5=0.1,6=0.1,7=0.1,8=0.1,9=0.1,10=0.1")
+	if err != nil {
+		b.Fatal(err)
+	}
+	p := Policy{Kind: SS, ReorderPoint: 300, OrderUpTo: 500}
+	fixed := inventory.System{Demand: poisson(b, 50), LeadTime: 5, Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
+	withLaw := fixed
+	withLaw.LeadTime, withLaw.LeadTimeLaw = 0, law
+	var tf, tl time.Duration
+	for b.Loop() {
+		t0 := time.Now()
+		if _, err := Evaluate(fixed, p, Options{}); err != nil {
+			b.Fatal(err)
+		}
+		t1 := time.Now()
+		if _, err := Evaluate(withLaw, p, Options{}); err != nil {
+			b.Fatal(err)
+		}
+		tf += t1.Sub(t0)
+		tl += time.Since(t1)
+	}
+	b.ReportMetric(float64(tl)/float64(tf), "law/fixed")
+	b.ReportMetric(float64(tf.Microseconds())/float64(b.N), "µs-fixed")
+	b.ReportMetric(float64(tl.Microseconds())/float64(b.N), "µs-law")
 }
