@@ -33,6 +33,10 @@ const MaxReviewPeriod = 100_000
 // may take: each value costs one lead-time demand table.
 const MaxLeadTimeSpan = 10_000
 
+// MaxLeadTimeWeights is the longest fixed lead time LeadTimeWeights
+// tabulates (the weights of a one-point law at it): 2^22 periods, 32 MiB.
+const MaxLeadTimeWeights = 1 << 22
+
 // LeadTimeNeglect is the tail mass at which a lead-time law of unbounded
 // support (poisson, negbin, normal, gamma) is cut: the mass beyond its
 // Bound(LeadTimeNeglect) is placed on that bound and reported as
@@ -118,8 +122,15 @@ func (s System) FixedTiming() bool { return s.LeadTimeLaw == nil && s.Review() =
 // l = 0..len(w)-1 (a fixed lead time is a one-point law), cut where the
 // tail falls below LeadTimeNeglect with the rest placed on the last point;
 // neglected is the mass so moved.
+//
+// A fixed lead time longer than MaxLeadTimeWeights is refused (ErrLimit)
+// before anything is allocated: the weights are indexed by the lead time.
 func (s System) LeadTimeWeights() (w []float64, neglected float64, err error) {
 	if s.LeadTimeLaw == nil {
+		if s.LeadTime < 0 || s.LeadTime > MaxLeadTimeWeights {
+			return nil, 0, &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime),
+				Want: "a lead time of at most " + strconv.Itoa(MaxLeadTimeWeights) + " periods with a review period above 1 (the lead-time demand is tabulated by the lead time; plan in longer periods)", Err: ErrLimit}
+		}
 		w = make([]float64, s.LeadTime+1)
 		w[s.LeadTime] = 1
 		return w, 0, nil

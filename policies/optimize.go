@@ -252,8 +252,11 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 func checkCostScale(sys inventory.System) error {
 	n := float64(sys.LeadTime) + 1
 	if !sys.FixedTiming() {
-		if w, _, err := sys.LeadTimeWeights(); err == nil {
-			n = float64(len(w) + sys.Review())
+		n = float64(sys.LeadTime + sys.Review())
+		if sys.LeadTimeLaw != nil {
+			if w, _, err := sys.LeadTimeWeights(); err == nil {
+				n = float64(len(w) + sys.Review())
+			}
 		}
 	}
 	d := sys.Demand

@@ -388,6 +388,23 @@ func hostileCases() []hostileCase {
 			code:  3,
 		})
 	}
+	// The review_period column (issue 12): bad cells fail their row alone;
+	// lost sales reviewed weekly are planned.
+	const reviewHeader = "sku,lead_time,holding_cost,shortage_cost,unmet,demand,review_period\n"
+	for _, c := range []struct{ name, row string }{
+		{"batch-review-period-0", "BAD,1,0.4,12,,poisson:mean=9,0\n"},
+		{"batch-review-period-frac", "BAD,1,0.4,12,,poisson:mean=9,1.5\n"},
+		{"batch-review-period-word", "BAD,1,0.4,12,,poisson:mean=9,weekly\n"},
+		{"batch-review-period-huge", "BAD,1,0.4,12,,poisson:mean=9,1e15\n"},
+		{"batch-review-period-lost-huge-lead", "BAD,1000000000,0.4,12,lost,poisson:mean=9,7\n"},
+	} {
+		add(hostileCase{
+			name:  c.name,
+			args:  []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
+			files: map[string]string{"items.csv": reviewHeader + "GOOD,1,0.4,12,lost,poisson:mean=2,7\n" + c.row + "GOOD2,3,0.4,12,,poisson:mean=9,7\n"},
+			code:  3,
+		})
+	}
 	for _, c := range []struct {
 		name  string
 		files map[string]string
