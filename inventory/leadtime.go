@@ -375,6 +375,11 @@ type mixCache struct {
 	sums   map[int]Distribution
 	bounds map[int]int
 	tabs   map[int][]float64
+	// later holds the numbers of periods that the mixtures still to be
+	// built use: only their tables are kept; the others are written
+	// into scratch.
+	later   map[int]bool
+	scratch []float64
 }
 
 func newMixCache() *mixCache {
@@ -397,17 +402,27 @@ func (x *mixture) tabulate(mc *mixCache, ns []int) {
 	n := hi + 1
 	pmf := make([]float64, n)
 	keep := mc != nil && n*len(x.c) <= mixCacheEntries
+	var scratch []float64
+	if mc != nil {
+		scratch = mc.scratch
+		defer func() { mc.scratch = scratch }()
+	}
 	var top float64 // P(X >= n)
 	for i, c := range x.c {
 		var comp []float64
 		if t, ok := mc.tab(ns[i]); ok && len(t) >= n {
 			comp = t[:n]
 		} else {
-			comp = make([]float64, n)
-			componentPMF(c, comp)
-			if keep {
+			if keep && mc.later[ns[i]] {
+				comp = make([]float64, n)
 				mc.tabs[ns[i]] = comp
+			} else {
+				if cap(scratch) < n {
+					scratch = make([]float64, n)
+				}
+				comp = scratch[:n]
 			}
+			componentPMF(c, comp)
 		}
 		for k, v := range comp {
 			pmf[k] += x.w[i] * v
@@ -493,7 +508,19 @@ func MixedDemands(s System, extras ...int) ([]Distribution, error) {
 		order[i] = i
 	}
 	slices.SortStableFunc(order, func(a, b int) int { return extras[b] - extras[a] })
-	for _, i := range order {
+	w, _, err := phaseWeights(s)
+	if err != nil {
+		return nil, err
+	}
+	for j, i := range order {
+		mc.later = map[int]bool{}
+		for _, k := range order[j+1:] {
+			for m, p := range w {
+				if p > 0 {
+					mc.later[m+extras[k]] = true
+				}
+			}
+		}
 		x, err := mixedDemand(s, extras[i], mc)
 		if err != nil {
 			return nil, err
@@ -504,9 +531,19 @@ func MixedDemands(s System, extras ...int) ([]Distribution, error) {
 }
 
 func mixedDemand(s System, extra int, mc *mixCache) (Distribution, error) {
-	lw, negl, err := s.LeadTimeWeights()
+	w, negl, err := phaseWeights(s)
 	if err != nil {
 		return nil, err
+	}
+	return newMixture(s.Demand, w, extra, negl, mc)
+}
+
+// phaseWeights returns the law of M = L + phase of MixedDemand: the
+// lead-time law convolved with the uniform phase on 0..R-1.
+func phaseWeights(s System) ([]float64, float64, error) {
+	lw, negl, err := s.LeadTimeWeights()
+	if err != nil {
+		return nil, 0, err
 	}
 	r := s.Review()
 	// Convolve the lead-time law with the uniform phase on 0..r-1.
@@ -519,7 +556,7 @@ func mixedDemand(s System, extra int, mc *mixCache) (Distribution, error) {
 			w[l+f] += p / float64(r)
 		}
 	}
-	return newMixture(s.Demand, w, extra, negl, mc)
+	return w, negl, nil
 }
 
 // NewMixture returns the law of X_{m+extra}, m drawn with P(M = m) = w[m]
