@@ -87,6 +87,16 @@ func lostTimedBytes(lmax, top, k int) float64 {
 	return float64(lmax+2)*(3*float64(top+1)*8+8+4+8) + lostTimedStateBytes(k)
 }
 
+// timedMemoryError is memoryError for a lostTimed chain of k components
+// (its states and the cycle's vectors).
+func timedMemoryError(lmax, k int, states, bytes float64) error {
+	err := memoryError(lmax, states, bytes)
+	if me, ok := err.(*LostMemoryError); ok {
+		me.StateBytes = lostTimedStateBytes(k)
+	}
+	return err
+}
+
 // lostTimed is the lost-sales chain under Kaplan's sequential deliveries
 // (a lead-time law) or reviews every R > 1 periods, observed at the
 // reviews. Each period runs: review (at phase 0 of the cycle only: the
@@ -488,7 +498,7 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 		}
 		if i%256 == 255 || i == n-1 {
 			if mb := memory(max(n, cap(c.tuples)/k), max(len(col), cap(col)), cap(ix.slots), len(ix.group)); mb > lostMemoryLimit {
-				return nil, memoryError(lmax, float64(n), mb)
+				return nil, timedMemoryError(lmax, k, float64(n), mb)
 			}
 		}
 	}
@@ -523,7 +533,17 @@ func evaluateLostTimed(sys inventory.System, p Policy, opt Options, w *lostWork)
 		return nil, fmt.Errorf("%v: %w", p, &SizeError{Chain: "lost-sales", Bound: lostBound(top, k), Limit: opt.MaxStates, What: "states"})
 	}
 	if b := lostTimedBytes(lmax, top, k); b > lostMemoryLimit {
-		return nil, fmt.Errorf("%v: %w", p, memoryError(lmax, 1, b))
+		return nil, fmt.Errorf("%v: %w", p, timedMemoryError(lmax, k, 1, b))
+	}
+	// With a fixed lead time every order sits, at k-1 successive reviews,
+	// in each of the pipeline's components in turn, so once the policy
+	// orders (at the empty position, say) the chain has at least k
+	// states: refuse a very long pipeline at once rather than after
+	// counting them.
+	if sys.LeadTimeLaw == nil && k > 1 && p.Order(0) > 0 {
+		if b := float64(k) * lostTimedStateBytes(k); b > lostMemoryLimit {
+			return nil, fmt.Errorf("%v: %w", p, timedMemoryError(lmax, k, float64(k), b))
+		}
 	}
 	_, _, lneg, err := cutoffLaw(sys)
 	if err != nil {
