@@ -8,6 +8,7 @@ import (
 	"os"
 	"os/signal"
 	"runtime"
+	"strings"
 	"sync/atomic"
 	"syscall"
 	"time"
@@ -17,8 +18,10 @@ import (
 	"golang.org/x/term"
 
 	"ergostock/inventory/history"
+	"ergostock/inventory/tabular"
 	"ergostock/policies"
 	"ergostock/policies/batch"
+	"ergostock/policies/uncertainty"
 )
 
 const batchDescription = `Plans every item of the items file: fits a demand model to the item's
@@ -53,9 +56,20 @@ the run, removes the temporary file and exits 130 or 143. --out - writes
 the results to stdout instead (no temporary file).
 --shard K/N plans only the items at positions K, K+N, K+2N, ... (0-based),
 so that N runs, for instance the tasks of a cluster array job, split the
-catalogue; their parts share one run digest in the header record and join
-(header record and column header once) into the full result, the item
-column restoring input order.
+catalogue; their parts share one run digest in the header record, and
+ergostock merge --out results.csv part-*.csv joins them into the file the
+unsharded run writes.
+
+For spreadsheets: --out-delimiter ';' --out-decimal , writes a file that a
+spreadsheet in a decimal-comma locale opens cleanly (tab works too; a file
+in such a dialect starts with a UTF-8 byte-order mark, and its header record
+says decimal=comma); --digits N rounds every figure to N significant digits
+(levels and counts are whole numbers and never rounded). --out FILE.xlsx
+writes a workbook instead: a results sheet (header row frozen, numbers as
+numbers, fill rate and stockout probability as percentages; figures keep
+the 15 significant digits a spreadsheet cell holds), a warnings sheet (sku,
+item, warning) and a run sheet with the header record. ergostock report
+reads every one of these.
 
 Exit status: 0 when every item was planned; 3 when the results file was
 written but some items failed; 1 when the run failed as a whole (an
@@ -63,13 +77,25 @@ unreadable file, a missing column, a write error, --out busy or not
 writable) and nothing was written; 2 for a usage error; 130 (SIGINT) or 143
 (SIGTERM) when the run was interrupted and nothing was written.`
 
+// batchUncertaintyHelp says what --uncertainty adds to the results.
+const batchUncertaintyHelp = `In a batch, --uncertainty appends columns after the usual ones (a plain run's
+file is unchanged): resampling, resamples_used; reorder_point_p05/_p50/_p95,
+order_up_to_p05/..., order_multiple_p05/... (the levels' bands);
+expected_fill_rate, fill_rate_p05, fill_rate_p95, expected_stockout_probability,
+expected_total_cost, total_cost_p95 (the recommendation under the resampled
+models); regret_mean, regret_p95; share_meeting_min_fill_rate; and with
+--robust robust_policy, robust_reorder_point, robust_order_up_to,
+robust_order_multiple, robust_mean_total_cost,
+robust_share_meeting_min_fill_rate, plug_in_mean_total_cost, robust_extra_cost.
+Items planned from a demand column get empty cells and a warning.`
+
 func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D]",
-		Description: batchDescription,
-		Flags: []cli.Flag{
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]]",
+		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced." + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV): costs, lead time and policy in use per SKU", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity); may be omitted when every item has a demand column"},
 			&cli.StringFlag{Name: "out", Usage: "results file (CSV) to write; - writes the results to stdout", Required: true},
@@ -78,7 +104,11 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "shard", Usage: "plan only the items at positions K, K+N, K+2N, ... (0-based), given as K/N"},
 			&cli.DurationFlag{Name: "item-timeout", Usage: "budget of one item, e.g. 90s or 5m; an item past it fails with that reason and the others go on (0: no limit)", Value: time.Minute},
 			&cli.IntFlag{Name: "max-states", Usage: "largest lost-sales chain to build per evaluation", Value: policies.DefaultMaxStates},
-		},
+			&cli.StringFlag{Name: "out-delimiter", Usage: "field separator of the results CSV: , ; or tab", Value: ","},
+			&cli.StringFlag{Name: "out-decimal", Usage: "decimal mark of the results CSV: . or , (a decimal comma needs --out-delimiter ';' or tab)", Value: "."},
+			&cli.StringFlag{Name: "carry", Usage: "item columns to copy to the results, comma-separated (e.g. supplier,category); appended after the results columns"},
+			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
+		}, append(receiptsFlags(), uncertaintyFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
@@ -89,6 +119,7 @@ func batchCommand() *cli.Command {
 type batchSummary struct {
 	items, failed, withCurrent int
 	totalCost, saving          float64
+	period                     string // the planning period: day, week or month
 }
 
 func (s *batchSummary) add(r *batch.Row) {
@@ -105,8 +136,12 @@ func (s *batchSummary) add(r *batch.Row) {
 }
 
 func (s *batchSummary) String() string {
-	return fmt.Sprintf("batch: %d items: %d planned, %d failed; total cost %.2f per period; saving %.2f per period over %d items with a current policy",
-		s.items, s.items-s.failed, s.failed, s.totalCost, s.saving, s.withCurrent)
+	p := s.period
+	if p == "" {
+		p = "period"
+	}
+	return fmt.Sprintf("batch: %d items: %d planned, %d failed; planning period %s, costs per %s: total cost %.2f per %s; saving %.2f per %s over %d items with a current policy",
+		s.items, s.items-s.failed, s.failed, p, p, s.totalCost, p, s.saving, p, s.withCurrent)
 }
 
 func runBatch(c *cli.Context, stderr io.Writer) error {
@@ -133,9 +168,34 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err != nil {
 		return usageErr("--%v", err)
 	}
+	cells, err := outFormat(c)
+	if err != nil {
+		return err
+	}
+	var carry []string
+	if c.IsSet("carry") {
+		if carry, err = batch.ParseCarry(c.String("carry")); err != nil {
+			return usageErr("%v", err)
+		}
+	}
+	uopt, withUnc, err := uncertaintyOptions(c)
+	if err != nil {
+		return err
+	}
 	itemsPath, histPath, outPath := c.String("items"), c.String("history"), c.String("out")
+	receiptsPath := c.String("receipts")
+	if c.IsSet("receipts") && receiptsPath == "" {
+		return usageErr("--receipts: want the receipts file")
+	}
+	if receiptsPath == "-" {
+		return usageErr("--receipts -: batch reads the receipts from a file, not standard input")
+	}
+	ropt, err := receiptsOptions(c, period)
+	if err != nil {
+		return err
+	}
 	toStdout := outPath == "-"
-	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}} {
+	for _, in := range []struct{ flag, path string }{{"items", itemsPath}, {"history", histPath}, {"receipts", receiptsPath}} {
 		if in.path != "" && !toStdout && sameFile(in.path, outPath) {
 			return usageErr("--out %s: it is the --%s file; choose another results file", outPath, in.flag)
 		}
@@ -193,14 +253,20 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if shard.N == 0 {
 		meta.Shard = batch.Shard{K: 0, N: 1}
 	}
-	items, digest, err := readItemsFile(ctx, itemsPath, shard)
+	items, count, digest, err := readItemsCounted(ctx, itemsPath, shard)
 	if e := interrupted(); e != nil {
 		return e
 	}
 	if err != nil {
 		return err
 	}
-	meta.Items = digest
+	meta.Items, meta.ItemCount = digest, count
+	var carried []string
+	if len(carry) > 0 {
+		if carried, err = batch.Carry(items, itemsPath, carry); err != nil {
+			return usageErr("%v", err)
+		}
+	}
 	planner := &batch.Planner{Options: policies.Options{MaxStates: c.Int("max-states")}}
 	if histPath != "" {
 		h, digest, err := readHistoryFile(ctx, histPath, period)
@@ -224,7 +290,43 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			return nil, errors.New("no demand column and no --history file")
 		}
 	}
+	if withUnc {
+		planner.Uncertainty = batch.UncertaintyStep(uopt, planner.Options)
+		meta.Uncertainty = fmt.Sprintf("%s,resamples=%d,seed=%d,robust=%v", uopt.Scheme, uopt.Resamples, uopt.Seed, uopt.Robust)
+		if uopt.Robust {
+			conf := uopt.FloorConfidence
+			if conf == 0 {
+				conf = uncertainty.DefaultFloorConfidence
+			}
+			meta.Uncertainty += fmt.Sprintf(",floor_confidence=%g", conf)
+		}
+	}
 	meta.Run = meta.RunDigest()
+	var leadNotes map[int][]string
+	if receiptsPath != "" {
+		rf, digest, err := readReceiptsFile(ctx, nil, receiptsPath, ropt)
+		if e := interrupted(); e != nil {
+			return e
+		}
+		if err != nil {
+			return err
+		}
+		if err := receiptsNoLaw(rf); err != nil {
+			return err
+		}
+		if n := len(rf.Errors); n > 0 {
+			fmt.Fprintf(stderr, "ergostock: %s: %d receipt rows without a sku skipped, first %v\n", receiptsPath, n, rf.Errors[0])
+		}
+		var tally receiptsTally
+		leadNotes, tally = applyReceipts(items, rf)
+		fmt.Fprintf(stderr, "ergostock: %s (%s; lead times in %s periods): lead-time laws set for %d items; lead_time kept for %d items on too few receipts and %d items without receipts; %d SKUs of the receipts match no item planned in this run\n",
+			receiptsPath, rf.Dialect, rf.Period, tally.set, tally.kept, tally.without, tally.unmatched)
+		// The receipts shape the figures: they join the run digest, so
+		// shards planned with other receipts do not join this run.
+		h := batch.NewDigest()
+		fmt.Fprintf(h, "run=%s\nreceipts=%s\n", meta.Run, digest)
+		meta.Run = batch.DigestSum(h)
+	}
 
 	var bar *progressbar.ProgressBar
 	if isTerminal(stderr) && len(items) > 0 {
@@ -239,8 +341,20 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 			progressbar.OptionClearOnFinish(),
 		)
 	}
-	var sum batchSummary
-	bw := batch.NewWriter(out)
+	sum := batchSummary{period: period.String()}
+	var bw resultsWriter
+	if isWorkbookName(outPath) {
+		bw, err = batch.NewWorkbookWriter(out, cells)
+	} else {
+		bw, err = batch.NewFormatWriter(out, cells)
+	}
+	if err != nil {
+		return usageErr("--out %s: %v", outPath, err)
+	}
+	bw.Carry(carried)
+	if withUnc {
+		bw.SetUncertainty(uopt.Robust)
+	}
 	err = bw.WriteMeta(meta)
 	if err == nil {
 		err = bw.WriteHeader()
@@ -248,6 +362,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if err == nil {
 		err = planner.PlanAll(ctx, items, batch.RunOptions{Workers: workers, ItemTimeout: timeout},
 			func(r *batch.Row) error {
+				if n := leadNotes[r.Item]; len(n) > 0 {
+					r.Warnings = append(append([]string(nil), n...), r.Warnings...)
+				}
 				sum.add(r)
 				if bar != nil {
 					bar.Add(1)
@@ -280,6 +397,47 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	}
 	fmt.Fprintf(stderr, "ergostock: %s\n", msg)
 	return nil
+}
+
+// resultsWriter writes the results file: CSV (batch.Writer) or a
+// workbook (batch.WorkbookWriter).
+type resultsWriter interface {
+	Carry(names []string)
+	SetUncertainty(robust bool)
+	WriteMeta(batch.Meta) error
+	WriteHeader() error
+	Write(*batch.Row) error
+	Flush() error
+}
+
+// isWorkbookName reports whether --out names an .xlsx workbook.
+func isWorkbookName(path string) bool { return strings.HasSuffix(strings.ToLower(path), ".xlsx") }
+
+// outFormat reads --out-delimiter, --out-decimal and --digits.
+func outFormat(c *cli.Context) (batch.Format, error) {
+	var f batch.Format
+	if out := c.String("out"); isWorkbookName(out) {
+		for _, flag := range []string{"out-delimiter", "out-decimal"} {
+			if c.IsSet(flag) {
+				return f, usageErr("--%s with --out %s: a workbook stores numbers as numbers and shows them in the spreadsheet's own locale; leave --%s out (it applies to CSV results)", flag, out, flag)
+			}
+		}
+	}
+	d, err := tabular.ParseDelimiter(c.String("out-delimiter"))
+	if err != nil || d == 0 {
+		return f, usageErr("--out-delimiter %q: want , ; or tab", c.String("out-delimiter"))
+	}
+	f.Delimiter = d
+	m, err := tabular.ParseDecimal(c.String("out-decimal"))
+	if err != nil || m == 0 {
+		return f, usageErr("--out-decimal %q: want . or ,", c.String("out-decimal"))
+	}
+	f.Decimal = m
+	f.Digits = c.Int("digits")
+	if err := f.Validate(); err != nil {
+		return f, usageErr("%v", err)
+	}
+	return f, nil
 }
 
 // ctxReader fails its reads once ctx is done, so that an interrupt stops
@@ -315,11 +473,22 @@ func readDigested(ctx context.Context, flag, path string, read func(io.Reader) e
 }
 
 func readItemsFile(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, digest string, err error) {
+	items, _, digest, err = readItemsCounted(ctx, path, shard)
+	return items, digest, err
+}
+
+// readItemsCounted is readItemsFile that also counts the items of the
+// whole file (every shard's), for the header record's item_count.
+func readItemsCounted(ctx context.Context, path string, shard batch.Shard) (items []batch.Item, count int, digest string, err error) {
+	keep := func(i int) bool {
+		count = max(count, i+1)
+		return shard.Contains(i)
+	}
 	digest, err = readDigested(ctx, "items", path, func(r io.Reader) (err error) {
-		items, err = batch.ReadItems(r, path, shard.Contains)
+		items, err = batch.ReadItems(r, path, keep)
 		return err
 	})
-	return items, digest, err
+	return items, count, digest, err
 }
 
 func readHistoryFile(ctx context.Context, path string, p history.Period) (h *history.History, digest string, err error) {

@@ -23,8 +23,8 @@ import (
 func fitCommand() *cli.Command {
 	return &cli.Command{
 		Name:      "fit",
-		Usage:     "fit a demand distribution to each SKU of a demand history",
-		UsageText: "ergostock fit --history FILE [--period day|week|month] [--json | --out FILE]",
+		Usage:     "fit a demand distribution to each SKU of a demand history, or a lead-time law to each SKU of a receipts file",
+		UsageText: "ergostock fit (--history FILE | --receipts FILE) [--period day|week|month] [--json | --out FILE]",
 		Description: "Reads a CSV with columns sku, date (YYYY-MM-DD) or an integer period, and quantity\n" +
 			"(other columns ignored), sums it into periods, and for every SKU reports the mean,\n" +
 			"variance, demand pattern (Syntetos-Boylan-Croston) and the candidate models\n" +
@@ -33,13 +33,16 @@ func fitCommand() *cli.Command {
 			"are skipped with a warning; rows far from the bulk of a SKU's dates (a typo year)\n" +
 			"are left out with a warning, and a SKU without a clear bulk gets no model.\n" +
 			"FILE - reads standard input. Exit status 3 when some SKU gets no model (no\n" +
-			"demand, no usable rows, no clear bulk), 1 when no SKU has a usable series.",
-		Flags: []cli.Flag{
+			"demand, no usable rows, no clear bulk), 1 when no SKU has a usable series.\n\n" +
+			"With --receipts instead of --history, fit prints each SKU's lead-time law from its\n" +
+			"receipts, with the orders counted per lead time (exit status 3 when some SKU has\n" +
+			"no usable receipt).\n\n" + receiptsHelp,
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "history", Usage: "demand history CSV `FILE` (- for standard input)"},
 			&cli.StringFlag{Name: "period", Usage: "review period for dated rows: day, week (ISO 8601, Monday first) or month; an integer period column is taken as it is", Value: "week"},
 			&cli.BoolFlag{Name: "json", Usage: "print a JSON array, one object per SKU"},
 			&cli.StringFlag{Name: "out", Usage: "write the results as CSV to `FILE` (atomically) instead of a table"},
-		},
+		}, receiptsFlags()...),
 		Action: fitAction,
 	}
 }
@@ -60,6 +63,9 @@ type fitResult struct {
 func fitAction(c *cli.Context) error {
 	if c.NArg() > 0 {
 		return usageErr("fit: unexpected argument %q (see --help)", c.Args().First())
+	}
+	if c.IsSet("receipts") {
+		return fitReceiptsAction(c)
 	}
 	path := c.String("history")
 	if path == "" {
@@ -132,6 +138,27 @@ func fitAction(c *cli.Context) error {
 		return &exitError{code: 3, err: fmt.Errorf("%d of %d SKUs have no demand model", failed, len(res))}
 	}
 	return nil
+}
+
+// fitReceiptsAction checks the flags of fit --receipts and runs it.
+func fitReceiptsAction(c *cli.Context) error {
+	if c.IsSet("history") {
+		return usageErr("--history and --receipts: fit reads one of them at a time (demand laws or lead-time laws)")
+	}
+	if c.String("receipts") == "" {
+		return usageErr("--receipts: want the receipts file (- for standard input)")
+	}
+	if c.Bool("json") && c.IsSet("out") {
+		return usageErr("--json and --out: give one of them, not both")
+	}
+	if c.IsSet("out") && c.String("out") == "" {
+		return usageErr("--out: want a file name")
+	}
+	period, err := history.ParsePeriod(c.String("period"))
+	if err != nil {
+		return usageErr("--%v", err)
+	}
+	return fitReceipts(c, period)
 }
 
 // fitAll fits every SKU, spread over all cores; the results are in the

@@ -326,14 +326,14 @@ func (t *table) Flush() error {
 }
 
 // simulateHandlesTiming says whether policies/sim models lead-time laws,
-// the lead-time models and review periods; until it does, simulate refuses
-// them rather than simulate a fixed lead time in their place. (Set it to
-// true when the simulator's support lands.)
-const simulateHandlesTiming = false
+// the lead-time models and review periods (it does: Kaplan cut-offs or
+// per-order lead times, and reviews every R periods, in both modes).
+const simulateHandlesTiming = true
 
 // reportHandlesTiming says the same of the one-SKU page of policies/report
-// (its cost map and charts).
-const reportHandlesTiming = false
+// (it does: the page shows the law, the model and the review period, draws
+// the law, and its cost map evaluates each cell on its chain).
+const reportHandlesTiming = true
 
 // leadTimeValue is the value of --lead-time: a whole number of periods or
 // a law, read by inventory.ParseLeadTime (a one-point law is the fixed

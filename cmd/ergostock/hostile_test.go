@@ -11,6 +11,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"ergostock/policies/batch"
 )
 
 // The hostile-input suite: inputs a careless or hostile user gives every
@@ -226,6 +228,24 @@ func hostileCases() []hostileCase {
 		add(hostileCase{name: cmd + "-lost-independent", args: with(with(law, "--unmet", "lost"), "--lead-time-model", "independent"), code: 1, names: []string{"--lead-time-model", "simulate"}})
 		add(hostileCase{name: cmd + "-law-review-ok", args: with(law, "--review-period", "7"), code: 0})
 	}
+	// simulate plays the same laws, models and review periods literally
+	// (both modes); it refuses what the System refuses, and a warm-up too
+	// short for the longest lead time and the review period.
+	{
+		base := with(with(sys("simulate", "--reorder-point", "5", "--order-up-to", "20"), "--periods", "4000"), "--replications", "3")
+		for _, v := range []string{"-1", "0", "abc", "100001"} {
+			add(hostileCase{name: fmt.Sprintf("simulate--review-period=%q", v), args: with(base, "--review-period", v), code: 2, names: []string{"--review-period", v}})
+		}
+		add(hostileCase{name: "simulate--lead-time-model=crossing", args: with(base, "--lead-time-model", "crossing"), code: 2, names: []string{"--lead-time-model", "crossing"}})
+		add(hostileCase{name: "simulate-kaplan-refused", args: with(base, "--lead-time", "pmf:2=0.2,3=0.5,5=0.3"), code: 2, names: []string{"--lead-time", "hazard", "nearest"}})
+		law := with(base, "--lead-time", "pmf:1=0.2,2=0.5,3=0.3")
+		add(hostileCase{name: "simulate-law-review", args: with(law, "--review-period", "7"), code: 0})
+		add(hostileCase{name: "simulate-lost-law-review", args: with(with(law, "--review-period", "3"), "--unmet", "lost"), code: 0})
+		add(hostileCase{name: "simulate-independent-ss", args: with(with(base, "--lead-time", "pmf:0=0.2,1=0.3,4=0.5"), "--lead-time-model", "independent"), code: 0})
+		add(hostileCase{name: "simulate-law-short-warmup", args: with(with(law, "--review-period", "7"), "--warmup", "9"), code: 2, names: []string{"--warmup", "9"}})
+		add(hostileCase{name: "simulate-L-1e9-review", args: with(with(base, "--lead-time", "1000000000"), "--review-period", "7"), code: 1, names: []string{"--lead-time", "1000000000"}})
+		add(hostileCase{name: "simulate-law-wide", args: with(base, "--lead-time", "poisson:mean=1e6"), code: 1, names: []string{"--lead-time"}})
+	}
 	add(hostileCase{name: "evaluate-independent-ss", args: with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), code: 0}) // fixed lead time: both models agree
 	add(hostileCase{name: "evaluate-independent-law-ss", args: with(with(sys("evaluate", "--reorder-point", "5", "--order-up-to", "20"), "--lead-time-model", "independent"), "--lead-time", "pmf:1=0.5,3=0.5"), code: 1, names: []string{"--lead-time-model", "simulate"}})
 	add(hostileCase{name: "evaluate-independent-law-base-stock", args: with(with(sys("evaluate", "--order-up-to", "20"), "--lead-time-model", "independent"), "--lead-time", "pmf:1=0.5,3=0.5"), code: 0})
@@ -425,6 +445,154 @@ func hostileCases() []hostileCase {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"batch"}, c.args...), code: c.code, names: c.want})
 	}
 
+	// The results' output flags and --carry (issue 11).
+	outItems := map[string]string{"items.csv": itemsHeader + goodItem}
+	batchOut := func(extra ...string) []string {
+		return append([]string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, extra...)
+	}
+	for _, c := range []struct {
+		name string
+		args []string
+		code int
+		want []string
+	}{
+		{"batch-out-delimiter-pipe", batchOut("--out-delimiter", "|"), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-two", batchOut("--out-delimiter", ";;"), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-quote", batchOut("--out-delimiter", `"`), 2, []string{"--out-delimiter"}},
+		{"batch-out-delimiter-empty", batchOut("--out-delimiter", ""), 2, []string{"--out-delimiter"}},
+		{"batch-out-decimal-comma-comma", batchOut("--out-decimal", ","), 2, []string{"--out-delimiter", "--out-decimal"}},
+		{"batch-out-decimal-x", batchOut("--out-decimal", "x"), 2, []string{"--out-decimal"}},
+		{"batch-digits-neg", batchOut("--digits", "-1"), 2, []string{"--digits"}},
+		{"batch-digits-18", batchOut("--digits", "18"), 2, []string{"--digits"}},
+		{"batch-digits-huge", batchOut("--digits", "1e300"), 2, []string{"--digits"}},
+		{"batch-digits-word", batchOut("--digits", "all"), 2, []string{"--digits"}},
+		{"batch-xlsx-with-delimiter", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.xlsx", "--out-delimiter", ";"}, 2, []string{"--out-delimiter", "out.xlsx"}},
+		{"batch-xlsx-dir-missing", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/no/out.xlsx"}, 1, []string{"out.xlsx"}},
+		{"batch-xlsx-upper-case", []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/OUT.XLSX", "--digits", "4"}, 0, nil},
+		{"batch-semicolon-comma-digits", batchOut("--out-delimiter", "semicolon", "--out-decimal", "comma", "--digits", "1"), 0, nil},
+		{"batch-carry-empty", batchOut("--carry", ""), 2, []string{"--carry"}},
+		{"batch-carry-commas", batchOut("--carry", ",,,"), 2, []string{"--carry"}},
+		{"batch-carry-unknown", batchOut("--carry", "vendor"), 2, []string{"--carry vendor", "items.csv", `"sku"`}},
+		{"batch-carry-results-column", batchOut("--carry", "sku"), 2, []string{"--carry sku"}},
+		{"batch-carry-twice", batchOut("--carry", "unmet,UNMET"), 2, []string{"--carry", "twice"}},
+		{"batch-carry-long", batchOut("--carry", strings.Repeat("x", 100000)), 2, []string{"--carry"}},
+		{"batch-carry-known", batchOut("--carry", "unmet,min_fill_rate"), 0, nil},
+	} {
+		add(hostileCase{name: c.name, files: outItems, args: c.args, code: c.code, names: c.want})
+	}
+
+	// merge on parts that are not one run's.
+	part := func(k, n int, run string, rows ...string) string {
+		m := batch.Meta{Format: batch.MetaFormat, Period: "week", Items: "0123456789abcdef", History: "none", Shard: batch.Shard{K: k, N: n}, Version: "t"}
+		m.Run = run
+		return m.String() + "\n" + strings.Join(batch.Header(), ",") + "\n" + strings.Join(rows, "")
+	}
+	row := func(item string) string { // a failed item's row
+		cells := make([]string, len(batch.Header()))
+		for i, h := range batch.Header() {
+			switch h {
+			case "sku":
+				cells[i] = "A" + item
+			case "error":
+				cells[i] = "not planned"
+			case "item":
+				cells[i] = item
+			}
+		}
+		return strings.Join(cells, ",") + "\n"
+	}
+	// Receipts for fit and batch (issue 12): refusals name the file and
+	// line or the flag; a file with some usable rows plans (exit 0 or 3).
+	const okReceipts = "sku,supplier,order_date,receipt_date\nA,S,2025-03-03,2025-03-12\nA,S,2025-03-10,2025-03-24\n"
+	for _, c := range []struct {
+		name, body string
+		extra      []string
+		code       int
+		want       []string
+	}{
+		{"receipts-empty", "", nil, 1, []string{"r.csv"}},
+		{"receipts-header-only", "sku,order_date,receipt_date\n", nil, 1, []string{"r.csv", "no data rows"}},
+		{"receipts-binary", "\x00\x01\x02\xff\xfe", nil, 1, []string{"r.csv"}},
+		{"receipts-missing-column", "sku,order_date\nA,2025-03-03\n", nil, 1, []string{"r.csv:1", "receipt_date"}},
+		{"receipts-misspelt-column", "sku,order_date,recieved_date\nA,2025-03-03,2025-03-12\n", nil, 1, []string{"r.csv:1", "recieved_date", "receipt_date"}},
+		{"receipts-before-order", "sku,order_date,receipt_date\nA,2025-03-10,2025-03-03\n", nil, 1, []string{"r.csv:2", "receipt_date", "before"}},
+		{"receipts-year-typo", "sku,order_date,receipt_date\nA,2025-03-10,2205-03-13\n", nil, 1, []string{"r.csv:2", "receipt_date"}},
+		{"receipts-ten-years", "sku,order_date,receipt_date\nA,1990-03-10,2025-03-13\n", nil, 1, []string{"r.csv:2", "3653 days"}},
+		{"receipts-ambiguous-dates", "sku,order_date,receipt_date\nA,03/04/2025,05/04/2025\n", nil, 1, []string{"r.csv", "--receipts-date-format"}},
+		{"receipts-mixed-dates", "sku,order_date,receipt_date\nA,2025-03-04,05.04.2025\nA,31/03/2025,04/30/2025\n", nil, 1, []string{"r.csv", "--receipts-date-format"}},
+		{"receipts-quantity-negative", "sku,order_date,receipt_date,quantity\nA,2025-03-03,2025-03-12,-5\n", nil, 1, []string{"r.csv:2", "quantity"}},
+		{"receipts-quantity-nan", "sku,order_date,receipt_date,quantity\nA,2025-03-03,2025-03-12,NaN\n", nil, 1, []string{"r.csv:2", "quantity"}},
+		{"receipts-short-row", "sku,order_date,receipt_date\nA,2025-03-03\n", nil, 1, []string{"r.csv:2"}},
+		{"receipts-wrong-layout-given", okReceipts, []string{"--receipts-date-format", "DD.MM.YYYY"}, 1, []string{"r.csv:2", "DD.MM.YYYY"}},
+		{"receipts-layout-bad", okReceipts, []string{"--receipts-date-format", "YY-MM"}, 2, []string{"--receipts-date-format", "YY-MM"}},
+		{"receipts-columns-bad", okReceipts, []string{"--receipts-columns", "sku"}, 2, []string{"--receipts-columns"}},
+		{"receipts-columns-unknown", okReceipts, []string{"--receipts-columns", "vendor=Supplier"}, 2, []string{"--receipts-columns", "vendor"}},
+		{"receipts-columns-absent", okReceipts, []string{"--receipts-columns", "order_date=PO Date"}, 1, []string{"r.csv:1", "PO Date"}},
+		{"receipts-with-history", okReceipts, []string{"--history", "{dir}/r.csv"}, 2, []string{"--history", "--receipts"}},
+		{"receipts-json-and-out", okReceipts, []string{"--json", "--out", "{dir}/o.csv"}, 2, []string{"--json", "--out"}},
+		{"receipts-one-bad-sku", okReceipts + "B,S,2025-03-10,2025-03-03\n", nil, 3, nil},
+		{"receipts-ok", okReceipts, nil, 0, nil},
+		{"receipts-out", okReceipts, []string{"--out", "{dir}/o.csv"}, 0, nil},
+		{"receipts-daily-ten-years", "sku,order_date,receipt_date\nA,2015-03-10,2025-03-09\nA,2015-03-10,2015-03-10\nA,2015-03-11,2015-03-12\n", []string{"--period", "day"}, 0, nil},
+		{"receipts-utf16", "\xff\xfes\x00k\x00u\x00,\x00o\x00r\x00d\x00e\x00r\x00_\x00d\x00a\x00t\x00e\x00,\x00r\x00e\x00c\x00e\x00i\x00p\x00t\x00_\x00d\x00a\x00t\x00e\x00\n\x00A\x00,\x002\x000\x002\x005\x00-\x000\x003\x00-\x000\x003\x00,\x002\x000\x002\x005\x00-\x000\x003\x00-\x001\x002\x00\n\x00", nil, 0, nil},
+	} {
+		add(hostileCase{name: "fit-" + c.name, args: append([]string{"fit", "--receipts", "{dir}/r.csv"}, c.extra...), files: map[string]string{"r.csv": c.body}, code: c.code, names: c.want})
+	}
+	add(hostileCase{name: "fit-receipts-missing-file", args: []string{"fit", "--receipts", "{dir}/none.csv"}, code: 1, names: []string{"--receipts", "none.csv"}})
+	for _, c := range []struct {
+		name  string
+		files map[string]string
+		args  []string
+		code  int
+		want  []string
+	}{
+		{"merge-no-parts", nil, []string{"--out", "{dir}/m.csv"}, 2, []string{"no parts"}},
+		{"merge-no-out", map[string]string{"p.csv": part(0, 1, "r", row("0"))}, []string{"{dir}/p.csv"}, 2, []string{"--out"}},
+		{"merge-part-missing", nil, []string{"--out", "{dir}/m.csv", "{dir}/none.csv"}, 1, []string{"none.csv"}},
+		{"merge-part-empty", map[string]string{"p.csv": ""}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv"}},
+		{"merge-part-foreign", map[string]string{"p.csv": "a,b\n1,2\n"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv:1", "header record"}},
+		{"merge-part-binary", map[string]string{"p.csv": "\x00\xff\xfe\x01garbage"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv"}},
+		{"merge-part-workbook", map[string]string{"p.xlsx": "PK\x03\x04junk"}, []string{"--out", "{dir}/m.csv", "{dir}/p.xlsx"}, 1, []string{"p.xlsx", "workbook"}},
+		{"merge-part-newer", map[string]string{"p.csv": "# ergostock results v9; period=week; items=x\n"}, []string{"--out", "{dir}/m.csv", "{dir}/p.csv"}, 1, []string{"p.csv:1", "v9"}},
+		{"merge-digest-mismatch", map[string]string{"a.csv": part(0, 2, "aaaa", row("0")), "b.csv": part(1, 2, "bbbb", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv", "{dir}/b.csv"}, 1, []string{"b.csv:1", "run digest bbbb", "aaaa"}},
+		{"merge-shard-missing", map[string]string{"a.csv": part(0, 3, "r", row("0")), "b.csv": part(1, 3, "r", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv", "{dir}/b.csv"}, 1, []string{"shard 2/3 is missing"}},
+		{"merge-duplicate", map[string]string{"a.csv": part(0, 1, "r", row("0"), row("0"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:4", "item 0"}},
+		{"merge-gap", map[string]string{"a.csv": part(0, 1, "r", row("0"), row("2"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv", "item 1"}},
+		{"merge-item-huge", map[string]string{"a.csv": part(0, 1, "r", row("99999999999999999999999"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:3", "item"}},
+		{"merge-item-negative", map[string]string{"a.csv": part(0, 1, "r", row("-1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/a.csv"}, 1, []string{"a.csv:3", "item"}},
+		{"merge-out-is-part", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/a.csv", "{dir}/a.csv"}, 2, []string{"--out", "a.csv"}},
+		{"merge-out-xlsx", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/m.xlsx", "{dir}/a.csv"}, 2, []string{"--out", "m.xlsx"}},
+		{"merge-out-dir-missing", map[string]string{"a.csv": part(0, 1, "r", row("0"))}, []string{"--out", "{dir}/no/m.csv", "{dir}/a.csv"}, 1, []string{"m.csv"}},
+		{"merge-ok", map[string]string{"a.csv": part(0, 2, "r", row("0"), row("2")), "b.csv": part(1, 2, "r", row("1"))},
+			[]string{"--out", "{dir}/m.csv", "{dir}/b.csv", "{dir}/a.csv"}, 0, nil},
+	} {
+		add(hostileCase{name: c.name, files: c.files, args: append([]string{"merge"}, c.args...), code: c.code, names: c.want})
+	}
+	for _, c := range []struct {
+		name  string
+		files map[string]string
+		args  []string
+		code  int
+		want  []string
+	}{
+		{"batch-receipts-missing", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", "{dir}/none.csv"}, 1, []string{"--receipts", "none.csv"}},
+		{"batch-receipts-stdin", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", "-"}, 2, []string{"--receipts"}},
+		{"batch-receipts-empty-flag", map[string]string{"items.csv": itemsHeader + goodItem}, []string{"--receipts", ""}, 2, []string{"--receipts"}},
+		{"batch-receipts-is-out", map[string]string{"items.csv": itemsHeader + goodItem, "out.csv": okReceipts}, []string{"--receipts", "{dir}/out.csv"}, 2, []string{"--out", "--receipts"}},
+		{"batch-receipts-no-usable-row", map[string]string{"items.csv": itemsHeader + goodItem, "r.csv": "sku,order_date,receipt_date\nGOOD,2025-03-10,2025-03-03\n"}, []string{"--receipts", "{dir}/r.csv"}, 1, []string{"r.csv:2", "receipt_date"}},
+		{"batch-receipts-layout-bad", map[string]string{"items.csv": itemsHeader + goodItem, "r.csv": okReceipts}, []string{"--receipts", "{dir}/r.csv", "--receipts-date-format", "julian"}, 2, []string{"--receipts-date-format"}},
+		{"batch-receipts-ok", map[string]string{"items.csv": itemsHeader + goodItem + "A,2,0.4,12,0,1,,,,poisson:mean=3,,,\n", "r.csv": okReceipts}, []string{"--receipts", "{dir}/r.csv"}, 0, nil},
+	} {
+		args := append([]string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, c.args...)
+		add(hostileCase{name: c.name, files: c.files, args: args, code: c.code, names: c.want})
+	}
+
 	// Report on inputs that are not what it needs.
 	for _, c := range []struct {
 		name  string
@@ -439,6 +607,14 @@ func hostileCases() []hostileCase {
 		{"report-sku-S-2e9", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--order-up-to", "2000000000", "--out", "{dir}/r.html"}, 1, []string{"--order-up-to"}},
 		{"report-sku-L-1e6-lost", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--unmet", "lost", "--lead-time", "1000000", "--out", "{dir}/r.html"}, 1, []string{"--lead-time"}},
 		{"report-nothing", nil, []string{"--out", "{dir}/r.html"}, 2, nil},
+		{"report-results-workbook-junk", map[string]string{"r.xlsx": "PK\x03\x04junk"}, []string{"--results", "{dir}/r.xlsx", "--out", "{dir}/r.html"}, 1, []string{"r.xlsx"}},
+		{"report-results-workbook-empty", map[string]string{"r.xlsx": ""}, []string{"--results", "{dir}/r.xlsx", "--out", "{dir}/r.html"}, 1, []string{"r.xlsx"}},
+		{"report-results-semicolon-foreign", map[string]string{"r.csv": "\ufeff# ergostock results v2; period=week; items=x; decimal=comma\nsku;demand\nA;1,5\n"}, []string{"--results", "{dir}/r.csv", "--out", "{dir}/r.html"}, 1, []string{"r.csv:2", "missing columns"}},
+		{"report-results-decimal-contradiction", map[string]string{"r.csv": "# ergostock results v2; period=week; items=x\n" + strings.Join(batch.Header(), ";") + "\nA;poisson:mean=1;1,5" + strings.Repeat(";", len(batch.Header())-3) + "\n"}, []string{"--results", "{dir}/r.csv", "--out", "{dir}/r.html"}, 1, []string{"r.csv:3", "demand_mean"}},
+		// Issue 12: a lead-time law, the models and a review period on the page, simulated too.
+		{"report-law-review-simulate", map[string]string{"h.csv": okHistory}, []string{"--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:1=0.2,2=0.5,3=0.3", "--review-period", "7", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},
+		{"report-independent-base-stock", nil, []string{"--demand", "poisson:mean=4", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:0=0.2,1=0.3,4=0.5", "--lead-time-model", "independent", "--policy", "base-stock", "--simulate", "--periods", "3000", "--replications", "3", "--out", "{dir}/r.html"}, 0, nil},
+		{"report-kaplan-refused", nil, []string{"--demand", "poisson:mean=4", "--holding-cost", "1", "--shortage-cost", "9", "--lead-time", "pmf:2=0.2,3=0.5,5=0.3", "--out", "{dir}/r.html"}, 2, []string{"--lead-time", "hazard"}},
 	} {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"report"}, c.args...), code: c.code, names: c.want})
 	}
@@ -455,6 +631,34 @@ func hostileCases() []hostileCase {
 	add(hostileCase{name: "simulate-replications-1", args: sys("simulate", "--order-up-to", "20", "--replications", "1"), code: 2, names: []string{"--replications"}})
 	add(hostileCase{name: "simulate-periods-0", args: sys("simulate", "--order-up-to", "20", "--periods", "0"), code: 2, names: []string{"--periods"}})
 	add(hostileCase{name: "simulate-warmup-over", args: sys("simulate", "--order-up-to", "20", "--periods", "100", "--warmup", "100"), code: 2, names: []string{"--periods", "warm-up"}})
+
+	// optimize --history --sku --uncertainty (issue 13).
+	hist := map[string]string{"h.csv": "sku,period,quantity\nA,1,3\nA,2,0\nA,3,5\nA,4,2\nA,5,4\nA,6,1\nA,7,6\nA,8,2\nZ,1,0\nZ,2,0\n"}
+	unc := []string{"optimize", "--history", "{dir}/h.csv", "--sku", "A", "--holding-cost", "1", "--shortage-cost", "9", "--uncertainty", "--resamples", "20"}
+	add(hostileCase{name: "optimize-uncertainty-ok", args: unc, files: hist, code: 0})
+	for _, v := range []string{"1", "0", "-5", "abc", "1e9", "100001", ""} {
+		add(hostileCase{name: fmt.Sprintf("optimize--resamples=%q", v), args: with(unc, "--resamples", v), files: hist, code: 2, names: []string{"--resamples"}})
+	}
+	for _, v := range []string{"-1", "abc", "1.5"} {
+		add(hostileCase{name: fmt.Sprintf("optimize--seed=%q", v), args: with(unc, "--seed", v), files: hist, code: 2, names: []string{"--seed"}})
+	}
+	add(hostileCase{name: "optimize-resampling-bad", args: with(unc, "--resampling", "jackknife"), files: hist, code: 2, names: []string{"--resampling", "jackknife"}})
+	for _, v := range []string{"0", "1.5", "NaN", "abc"} {
+		add(hostileCase{name: fmt.Sprintf("optimize--floor-confidence=%q", v), args: append(with(unc, "--floor-confidence", v), "--robust"), files: hist, code: 2, names: []string{"--floor-confidence"}})
+	}
+	add(hostileCase{name: "optimize-uncertainty-no-history", args: sys("optimize", "--uncertainty"), code: 2, names: []string{"--uncertainty", "--history"}})
+	add(hostileCase{name: "optimize-resamples-alone", args: sys("optimize", "--resamples", "50"), code: 2, names: []string{"--resamples", "--uncertainty"}})
+	add(hostileCase{name: "optimize-history-no-sku", args: []string{"optimize", "--history", "{dir}/h.csv", "--holding-cost", "1", "--shortage-cost", "9"}, files: hist, code: 2, names: []string{"--history", "--sku"}})
+	add(hostileCase{name: "optimize-history-missing", args: with(unc, "--history", "{dir}/none.csv"), code: 1, names: []string{"--history", "none.csv"}})
+	add(hostileCase{name: "optimize-history-unknown-sku", args: with(unc, "--sku", "Q"), files: hist, code: 1, names: []string{"h.csv", "\"Q\""}})
+	add(hostileCase{name: "optimize-history-no-demand", args: with(unc, "--sku", "Z"), files: hist, code: 1, names: []string{"h.csv", "\"Z\""}})
+	add(hostileCase{name: "optimize-uncertainty-with-demand", args: append(append([]string{}, unc...), "--demand", "poisson:mean=3"), files: hist, code: 2, names: []string{"--demand", "--uncertainty"}})
+	uitems := map[string]string{"h.csv": hist["h.csv"], "items.csv": "sku,lead_time,holding_cost,shortage_cost\nA,1,1,9\n"}
+	ubatch := []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--uncertainty", "--resamples", "10"}
+	add(hostileCase{name: "batch-uncertainty-ok", args: ubatch, files: uitems, code: 0})
+	add(hostileCase{name: "batch-uncertainty-resamples-1", args: with(ubatch, "--resamples", "1"), files: uitems, code: 2, names: []string{"--resamples"}})
+	add(hostileCase{name: "batch-robust-confidence-alone", args: []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--floor-confidence", "0.8"}, files: uitems, code: 2, names: []string{"--floor-confidence"}})
+	add(hostileCase{name: "report-uncertainty-no-history", args: []string{"report", "--demand", "poisson:mean=3", "--holding-cost", "1", "--shortage-cost", "9", "--out", "{dir}/p.html", "--uncertainty"}, code: 2, names: []string{"--uncertainty", "--history"}})
 	return cs
 }
 

@@ -50,6 +50,7 @@ func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
 			fitCommand(),
 			batchCommand(),
 			reportCommand(),
+			mergeCommand(),
 		},
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
 			return usageErr("%s (see --help)", flagMessage(nil, err))
@@ -83,7 +84,7 @@ func oneLineUsage(cmd *cli.Command) {
 				return usageErr("%s: --%s is required (see --help)", name, f)
 			}
 		}
-		if c.NArg() > 0 {
+		if c.NArg() > 0 && cmd.ArgsUsage == "" { // a command that takes arguments says so in ArgsUsage
 			return usageErr("%s: unexpected argument %q (every input is given by a flag)", name, c.Args().First())
 		}
 		return action(c)

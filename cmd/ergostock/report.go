@@ -17,6 +17,7 @@ import (
 	"ergostock/policies/batch"
 	"ergostock/policies/report"
 	"ergostock/policies/sim"
+	"ergostock/policies/uncertainty"
 )
 
 const reportDescription = `Writes one self-contained HTML page (--out): charts drawn inline as SVG,
@@ -29,12 +30,28 @@ policy of its type (or of --policy); without them it shows the cheapest
 policy of --policy (default s-S). --history FILE --sku ID adds the demand
 history and the fitted distribution over its histogram; without --demand the
 fitted model is used. --simulate adds the exact-versus-simulated table.
+--uncertainty (with --history and --sku, without --demand) adds the stock
+levels under the point model with their spread over resampled models and the
+fill rate of the recommendation as a distribution (--resamples, --resampling,
+--robust, --floor-confidence as for optimize; --seed is shared with
+--simulate).
+
+Random lead times and review periods (--lead-time LAW, --lead-time-model,
+--review-period R) are shown in the item table, the law is drawn beside the
+demand history, and the page's cautions state the model: under sequential
+deliveries orders arrive in the order placed (Kaplan 1970), under
+independent each order draws its own lead time and may overtake another;
+with a review period orders are placed only every R periods while costs and
+figures stay per period. The cost map is then evaluated cell by cell on the
+exact chain, and left out for independent lead times (its s-S and s-nQ
+cells have no exact figures).
 
 A batch: --results FILE (written by ergostock batch) gives the table of
 items, the saving by demand pattern, and the warnings and errors; with
 --items FILE (the batch's items file) also the exchange curve, which
 re-optimises every item under common fill-rate targets (--targets); with
---history also the map of demand patterns. The --items, --history and
+--history also the map of demand patterns. Results of batch --uncertainty
+add the items ranked by regret. The --items, --history and
 --period given must be those in the header record of the results (the
 line batch writes first); a mismatch is refused, naming both. Without
 --period the record's period is used.
@@ -72,6 +89,9 @@ func reportCommand() *cli.Command {
 		&cli.IntFlag{Name: "workers", Usage: "searches run at once for the exchange curve (default: all cores)", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
 		&cli.StringFlag{Name: "out", Usage: "HTML file to write", Required: true},
 	)
+	// One-SKU page with --history --sku: the resampling charts; --seed is
+	// shared with --simulate.
+	flags = append(flags, uncertaintyFlags("seed")...)
 	return &cli.Command{
 		Name:  "report",
 		Usage: "a self-contained HTML page with charts for one SKU or for a batch's results",
@@ -203,6 +223,29 @@ func reportSKU(c *cli.Context) (*report.SKUPage, error) {
 				Periods: r.Periods, Warmup: r.Warmup, Replications: r.Replications, Seed: r.Seed}, nil
 		}
 	}
+	uopt, withUnc, err := uncertaintyOptions(c, "seed")
+	if err != nil {
+		return nil, err
+	}
+	if withUnc {
+		if in.History == nil || in.DemandSource == "--demand" {
+			return nil, usageErr("--uncertainty: needs --history FILE --sku ID without --demand (the resamples are refitted from the history)")
+		}
+		uopt.Kind = in.Kind
+		if uopt.Kind == "" {
+			uopt.Kind = policies.SS
+			if in.Current != nil {
+				uopt.Kind = in.Current.Kind
+			}
+		}
+		uopt.Search = policies.SearchOptions{MinFillRate: in.MinFillRate, Eval: in.Options}
+		uopt.KeepModels = true // the level band chart evaluates each model
+		res, err := uncertainty.Analyze(in.SKU, in.History.Demand, sys, uopt)
+		if err != nil {
+			return nil, engineErr(c, fmt.Errorf("--uncertainty: %w", err))
+		}
+		in.Uncertainty = res
+	}
 	pg, err := report.BuildSKU(in)
 	if err != nil {
 		return nil, engineErr(c, err)
@@ -284,7 +327,8 @@ func reportReadHistory(path string, p history.Period) (*history.History, error) 
 // reportBatch gathers the batch page.
 func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 	for _, f := range []string{"demand", "lead-time", "holding-cost", "shortage-cost", "order-cost", "unit-cost", "unmet",
-		"reorder-point", "order-up-to", "order-multiple", "policy", "min-fill-rate", "sku", "simulate"} {
+		"reorder-point", "order-up-to", "order-multiple", "policy", "min-fill-rate", "sku", "simulate",
+		"uncertainty", "resamples", "resampling", "robust", "floor-confidence"} {
 		if c.IsSet(f) {
 			return nil, usageErr("--%s belongs to a one-SKU page; a batch page (--results) takes --items, --history, --targets and --workers", f)
 		}

@@ -42,7 +42,15 @@ func simulateCommand() *cli.Command {
 			"level and demand within the 9.2e18 that the exact int64 sums of a replication hold; at most 1 GB\n" +
 			"of memory (pipelines of --lead-time + 1 slots per worker, the demand table, the figures of each\n" +
 			"replication); at most 1024 --workers. Costs whose figures overflow are refused. A --warmup\n" +
-			"not longer than --lead-time is refused (exit status 2): no order would have arrived.",
+			"not longer than --lead-time is refused (exit status 2): no order would have arrived.\n\n" +
+			"Random lead times and review periods are played literally. Under --lead-time-model\n" +
+			"sequential each period draws a cut-off T from the law that Kaplan (1970) derives from the\n" +
+			"lead-time law, and every order placed at least T periods ago arrives, so orders arrive in\n" +
+			"the order placed; under independent each order draws its own lead time and may overtake\n" +
+			"an earlier one. With --review-period R orders are placed only in periods 0, R, 2R, ...;\n" +
+			"costs and figures stay per period. Where the exact engine does not evaluate a case\n" +
+			"(independent lead times with s-S or s-nQ, and whatever it refuses), the exact column is\n" +
+			"left out with a note and the figures are estimates only.",
 		Flags:  flags,
 		Action: simulateAction,
 		OnUsageError: func(_ *cli.Context, err error, _ bool) error {
@@ -84,6 +92,9 @@ func simulateAction(c *cli.Context) error {
 	if sys.LeadTime > 0 && opt.Warmup <= sys.LeadTime {
 		return usageErr("--warmup %d: want a warm-up longer than the lead time %d, so that the orders of the counted periods can arrive (raise --periods or --warmup)", opt.Warmup, sys.LeadTime)
 	}
+	if lmax := simLongestLead(sys); !sys.FixedTiming() && opt.Warmup <= lmax+sys.Review()-1 {
+		return usageErr("--warmup %d: want a warm-up longer than the longest lead time %d plus the review period %d less one, so that the first orders can arrive (raise --periods or --warmup)", opt.Warmup, lmax, sys.Review())
+	}
 	res, err := sim.Run(sys, p, opt)
 	if err != nil {
 		return simErr(err)
@@ -95,7 +106,9 @@ func simulateAction(c *cli.Context) error {
 	var exact *inventory.Figures
 	if n := simChainSize(sys, p); n > float64(c.Int("max-states")) {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the chain of %v would have about %.3g states, over --max-states %d\n", p, n, c.Int("max-states"))
-	} else if ev, err := policies.Evaluate(sys, p, evalOptions(c)); err != nil {
+	} else if ev, err := policies.Evaluate(sys, p, evalOptions(c)); errors.Is(err, policies.ErrNotExact) {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: no exact values: the exact engine does not evaluate this case (%v); the figures are simulation estimates only\n", oneLine(err.Error()))
+	} else if err != nil {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: %v\n", oneLine(err.Error()))
 	} else if f := simInfinite(ev.Figures); f != "" {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: simulate: exact values not shown: the exact %s overflows float64 (costs too large)\n", f)
@@ -127,6 +140,32 @@ func simInfinite(f inventory.Figures) string {
 	return ""
 }
 
+// simLongestLead returns the longest lead time of sys: the fixed lead
+// time, or the last point of its law as the System cuts it.
+func simLongestLead(sys inventory.System) int {
+	if sys.LeadTimeLaw == nil {
+		return sys.LeadTime
+	}
+	w, _, err := sys.LeadTimeWeights()
+	if err != nil {
+		return sys.LeadTime
+	}
+	return len(w) - 1
+}
+
+// simTiming describes the lead time, model and review period for the
+// table's heading: "lead time 2" for today's timing, as before.
+func simTiming(sys inventory.System) string {
+	s := fmt.Sprintf("lead time %d", sys.LeadTime)
+	if sys.LeadTimeLaw != nil {
+		s = fmt.Sprintf("lead time %s (%s)", sys.LeadTimeLaw, sys.Model())
+	}
+	if sys.Review() > 1 {
+		s += fmt.Sprintf(", review every %d periods", sys.Review())
+	}
+	return s
+}
+
 // simChainSize estimates the states of the exact engine's chain for p, so
 // that simulate skips the exact column rather than ask for a chain it
 // cannot build: the inventory positions s+1..top in backorder mode, about
@@ -142,7 +181,7 @@ func simChainSize(sys inventory.System, p policies.Policy) float64 {
 		top = s + Q
 	}
 	if sys.Mode == inventory.Lost {
-		L := float64(sys.LeadTime)
+		L := float64(simLongestLead(sys))
 		a, _ := math.Lgamma(top + L + 2)
 		b, _ := math.Lgamma(L + 2)
 		d, _ := math.Lgamma(top + 1)
@@ -161,12 +200,16 @@ type simSettings struct {
 	Confidence   float64 `json:"confidence"`
 	TQuantile    float64 `json:"t_quantile"`
 	Demand       string  `json:"demand"`
-	LeadTime     int     `json:"lead_time"`
+	LeadTime     any     `json:"lead_time"` // whole periods, or the law as text
 	Unmet        string  `json:"unmet"`
-	HoldingCost  float64 `json:"holding_cost"`
-	ShortageCost float64 `json:"shortage_cost"`
-	OrderCost    float64 `json:"order_cost"`
-	UnitCost     float64 `json:"unit_cost"`
+	// LeadTimeModel and ReviewPeriod as simulated (sequential and 1 for
+	// today's timing).
+	LeadTimeModel string  `json:"lead_time_model"`
+	ReviewPeriod  int     `json:"review_period"`
+	HoldingCost   float64 `json:"holding_cost"`
+	ShortageCost  float64 `json:"shortage_cost"`
+	OrderCost     float64 `json:"order_cost"`
+	UnitCost      float64 `json:"unit_cost"`
 }
 
 // simNumber encodes a float as JSON, NaN (an undefined figure) as null.
@@ -194,7 +237,8 @@ func simWriteJSON(w io.Writer, sys inventory.System, p policies.Policy, res *sim
 	set, err := json.Marshal(simSettings{
 		Periods: res.Periods, Warmup: res.Warmup, Replications: res.Replications, Seed: res.Seed,
 		Confidence: res.Level, TQuantile: res.TQuantile,
-		Demand: sys.Demand.String(), LeadTime: sys.LeadTime, Unmet: string(sys.Mode),
+		Demand: sys.Demand.String(), LeadTime: newTimingJSON(sys).LeadTime, Unmet: string(sys.Mode),
+		LeadTimeModel: string(sys.Model()), ReviewPeriod: sys.Review(),
 		HoldingCost: sys.Holding, ShortageCost: sys.Shortage, OrderCost: sys.OrderCost, UnitCost: sys.UnitCost,
 	})
 	if err != nil {
@@ -216,8 +260,8 @@ func simDecimals(h float64) int {
 // simWriteTable prints the aligned table: figure | mean ± ci95 | exact |
 // mark | unit, with a summary of how many exact values fall outside.
 func simWriteTable(w io.Writer, sys inventory.System, p policies.Policy, res *sim.Result, exact *inventory.Figures) error {
-	fmt.Fprintf(w, "simulated %v: demand %s, lead time %d, unmet %s, h=%g b=%g K=%g c=%g\n",
-		p, sys.Demand, sys.LeadTime, sys.Mode, sys.Holding, sys.Shortage, sys.OrderCost, sys.UnitCost)
+	fmt.Fprintf(w, "simulated %v: demand %s, %s, unmet %s, h=%g b=%g K=%g c=%g\n",
+		p, sys.Demand, simTiming(sys), sys.Mode, sys.Holding, sys.Shortage, sys.OrderCost, sys.UnitCost)
 	fmt.Fprintf(w, "%d replications of %d periods (first %d discarded), seed %d; %g%% intervals, Student t with %d df (t = %.4f)\n\n",
 		res.Replications, res.Periods, res.Warmup, res.Seed, 100*res.Level, res.Replications-1, res.TQuantile)
 	rows := [][]string{{"figure", "mean", "", "ci95", "exact", "", "unit"}}

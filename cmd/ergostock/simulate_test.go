@@ -254,3 +254,35 @@ func TestReportSKUFarCurrent(t *testing.T) {
 	}
 	noNonFinite(t, "page", string(page))
 }
+
+// Issue 12: simulate under a lead-time law, both models and a review
+// period. The table names the timing, the JSON settings carry it, the
+// exact column is shown where the engine evaluates the case, and a case
+// it does not evaluate is labelled as estimates on stderr.
+func TestSimulateTiming(t *testing.T) {
+	law := []string{"--demand", "poisson:mean=4", "--lead-time", "pmf:1=0.2,2=0.5,3=0.3", "--holding-cost", "1", "--shortage-cost", "9",
+		"--order-cost", "20", "--reorder-point", "20", "--order-up-to", "29", "--periods", "20000", "--replications", "4"}
+	for _, c := range []struct {
+		name   string
+		extra  []string
+		out    []string
+		stderr string
+	}{
+		{"sequential, weekly review", []string{"--review-period", "7"}, []string{"lead time pmf:1=0.2,2=0.5,3=0.3 (sequential), review every 7 periods", "exact values outside their interval"}, ""},
+		{"independent s-S", []string{"--lead-time-model", "independent"}, []string{"(independent)"}, "the figures are simulation estimates only"},
+		{"json", []string{"--review-period", "3", "--json"}, []string{`"lead_time": "pmf:1=0.2,2=0.5,3=0.3"`, `"lead_time_model": "sequential"`, `"review_period": 3`}, ""},
+	} {
+		code, out, errs := simRun(append(append([]string{}, law...), c.extra...)...)
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s", c.name, code, errs)
+		}
+		for _, w := range c.out {
+			if !strings.Contains(out, w) {
+				t.Errorf("%s: output lacks %q:\n%s", c.name, w, out)
+			}
+		}
+		if c.stderr != "" && !strings.Contains(errs, c.stderr) {
+			t.Errorf("%s: stderr %q, want %q", c.name, errs, c.stderr)
+		}
+	}
+}

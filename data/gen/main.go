@@ -8,7 +8,8 @@
 //	go run ./data/gen
 //
 // It writes data/history.csv and data/items.csv, a catalogue in which every
-// item can be planned, and data/messy/, a small example of items that
+// item can be planned, data/receipts.csv, goods receipts of some of its parts
+// (see receipts.go), and data/messy/, a small example of items that
 // cannot (a part listed before any issue, one whose history holds a
 // malformed row, one never issued) beside two that can. The output is a
 // pure function of the fixed seed below, so running it again reproduces
@@ -187,7 +188,7 @@ type part struct {
 }
 
 func main() {
-	dir := flag.String("dir", "data", "directory to write history.csv and items.csv into")
+	dir := flag.String("dir", "data", "directory to write history.csv, items.csv and receipts.csv into")
 	flag.Parse()
 	rng := rand.New(rand.NewPCG(seed1, seed2))
 	parts := makeParts(rng)
@@ -203,6 +204,9 @@ func main() {
 		log.Fatal(err)
 	}
 	if err := writeItems(filepath.Join(*dir, "items.csv"), items, clean); err != nil {
+		log.Fatal(err)
+	}
+	if err := writeReceipts(filepath.Join(*dir, "receipts.csv"), items, clean); err != nil {
 		log.Fatal(err)
 	}
 	messyDir := filepath.Join(*dir, "messy")
@@ -224,10 +228,13 @@ var (
 	messyAlso = map[string]bool{"WIPE-CAB-100": true, "BRAKE-PAD-T4-FRONT": true}
 )
 
-// itemRow is one line of an items file, with its part.
+// itemRow is one line of an items file, with its part, its lead time in
+// weeks and whether unmet demand is lost.
 type itemRow struct {
 	p    *part
 	line string
+	lead int
+	lost bool
 }
 
 func uniform(rng *rand.Rand, r [2]float64) float64 { return r[0] + (r[1]-r[0])*rng.Float64() }
@@ -515,7 +522,7 @@ func itemRows(parts []*part, rng *rand.Rand) ([]itemRow, error) {
 				cur = [3]string{} // no policy on record
 			}
 		}
-		out = append(out, itemRow{p, fmt.Sprintf("%s,%d,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", p.sku, lead, ftoa(hold), ftoa(short), ftoa(order),
+		out = append(out, itemRow{p: p, lead: lead, lost: unmet == "lost", line: fmt.Sprintf("%s,%d,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", p.sku, lead, ftoa(hold), ftoa(short), ftoa(order),
 			ftoa(p.cost), unmet, policy, minFill, quote(demand), cur[0], cur[1], cur[2])})
 	}
 	return out, nil

@@ -182,3 +182,12 @@ func daysIn(y, m int) int {
 	}
 	return 31
 }
+
+// Of returns the number of the period of p that holds the date of t (its
+// year, month and day in t's location; the time of day is ignored), in the
+// numbering that Label reads: days from 1970-01-01, ISO weeks, or
+// 12*year+month-1. Index has no dates; Of gives the day number for it.
+func (p Period) Of(t time.Time) int {
+	y, m, d := t.Date()
+	return periodOf(p, y, int(m), d)
+}

@@ -111,6 +111,11 @@ func NewWorkbookReader(r io.Reader, name string, opt Options) (*Reader, error) {
 		for i < len(rows) {
 			row := rows[i]
 			i++
+			// A sheet stores no trailing empty cells: a short row is
+			// padded to the header's width.
+			for len(row) < rd.rawWidth {
+				row = append(row, "")
+			}
 			return row, i, nil
 		}
 		return nil, 0, io.EOF

@@ -207,15 +207,15 @@ func TestPlanAndWrite(t *testing.T) {
 	if err := w.Flush(); err != nil {
 		t.Fatal(err)
 	}
-	want := `sku,demand,demand_mean,demand_variance,pattern,policy,reorder_point,order_up_to,order_multiple,fill_rate,stockout_probability,mean_on_hand,mean_backorders,mean_lost_sales,order_frequency,mean_order_quantity,holding_cost,shortage_cost,ordering_cost,purchase_cost,total_cost,current_total_cost,saving,warnings,error,states,residual,balance,neglected,policies_evaluated,item
-BP-1,pmf:4=1,4,0,smooth,base-stock,,8,,1,0,0,0,0,1,4,0,0,0,0,0,1,1,,,9,0,0,0,7,0
-CS-2,pmf:3=1,3,0,smooth,s-S,2,3,,1,0,0,0,0,1,3,0,0,25,0,25,,,,,4,0,0,0,7,1
-DS-3,pmf:2=1,2,0,,s-nQ,3,,2,1,0,1,0,0,1,2,1,0,0,0,1,,,,,6,0,0,0,7,2
-NO-4,,,,,,,,,,,,,,,,,,,,,,,,"no history for sku ""NO-4"" in history.csv",,,,,,3
-UN-5,pmf:13=1,13,0,smooth,,,,,,,,,,,,,,,,,,,,optimize base-stock: unlucky demand,,,,,,4
-PA-6,pmf:17=1,17,0,smooth,,,,,,,,,,,,,,,,,,,,internal error: bug in the engine,,,,,,5
-BP-1,,,,,,,,,,,,,,,,,,,,,,,,"items.csv:8: sku ""BP-1"": want a SKU given once (it is first given on line 2)",,,,,,6
-BAD-8,,,,,,,,,,,,,,,,,,,,,,,,"items.csv:9: holding_cost ""-1"": want a finite cost >= 0",,,,,,7
+	want := `sku,demand,demand_mean,demand_variance,pattern,policy,reorder_point,order_up_to,order_multiple,lead_time,lead_time_model,review_period,fill_rate,stockout_probability,mean_on_hand,mean_backorders,mean_lost_sales,order_frequency,mean_order_quantity,holding_cost,shortage_cost,ordering_cost,purchase_cost,total_cost,current_total_cost,saving,warnings,error,states,residual,balance,neglected,policies_evaluated,item,current_policy,current_reorder_point,current_order_up_to,current_order_multiple,current_fill_rate
+BP-1,pmf:4=1,4,0,smooth,base-stock,,8,,1,sequential,1,1,0,0,0,0,1,4,0,0,0,0,0,1,1,,,9,0,0,0,7,0,base-stock,,10,,1
+CS-2,pmf:3=1,3,0,smooth,s-S,2,3,,0,sequential,1,1,0,0,0,0,1,3,0,0,25,0,25,,,,,4,0,0,0,7,1,,,,,
+DS-3,pmf:2=1,2,0,,s-nQ,3,,2,1,sequential,1,1,0,1,0,0,1,2,1,0,0,0,1,,,,,6,0,0,0,7,2,,,,,
+NO-4,,,,,,,,,1,sequential,1,,,,,,,,,,,,,,,,"no history for sku ""NO-4"" in history.csv",,,,,,3,,,,,
+UN-5,pmf:13=1,13,0,smooth,,,,,1,sequential,1,,,,,,,,,,,,,,,,optimize base-stock: unlucky demand,,,,,,4,,,,,
+PA-6,pmf:17=1,17,0,smooth,,,,,1,sequential,1,,,,,,,,,,,,,,,,internal error: bug in the engine,,,,,,5,,,,,
+BP-1,,,,,,,,,,,,,,,,,,,,,,,,,,,"items.csv:8: sku ""BP-1"": want a SKU given once (it is first given on line 2)",,,,,,6,,,,,
+BAD-8,,,,,,,,,,,,,,,,,,,,,,,,,,,"items.csv:9: holding_cost ""-1"": want a finite cost >= 0",,,,,,7,,,,,
 `
 	if got := buf.String(); got != want {
 		t.Errorf("results:\n%s\nwant:\n%s", got, want)

@@ -72,6 +72,14 @@
 // single quote) gets a leading single quote so that a spreadsheet does not
 // run it as a formula; Unguard drops it when reading.
 //
+// After item come the policy in use and its fill rate (current_policy,
+// current_reorder_point, current_order_up_to, current_order_multiple,
+// current_fill_rate), then any item columns carried by Carry. A Format
+// (NewFormatWriter) writes the same cells in a spreadsheet dialect: ';' or
+// tab delimited, decimal commas, figures rounded to N significant digits;
+// WorkbookWriter writes them as an .xlsx workbook. Merge joins the parts
+// of a sharded run into the file the unsharded run writes.
+//
 // # Running a catalogue
 //
 // Planner.PlanAll plans the items over Run: each item in its own goroutine

@@ -42,7 +42,7 @@ func HistoryFit(h *history.History, need func(sku string) bool) (fit func(sku st
 		if s.Demand == nil {
 			return nil, fmt.Errorf("%s: sku %q: no demand model fitted", file, sku)
 		}
-		return &Fitted{Demand: s.Demand, Pattern: string(s.Pattern), Warnings: s.Warnings}, nil
+		return &Fitted{Demand: s.Demand, Pattern: string(s.Pattern), Warnings: s.Warnings, Series: k.Demand}, nil
 	}
 	pattern = func(sku string) string {
 		k := bySKU[sku]

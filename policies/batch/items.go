@@ -30,6 +30,8 @@ type Item struct {
 	MinFillRate float64          // 0 means no floor
 	Current     *policies.Policy // the policy in use, nil when none is given
 	Err         error            // why the row cannot be planned, or nil
+	Row         RowCells         // the row as read, for columns carried to the results (see Carry)
+	Carried     []string         // the cells Carry chose, in its order
 }
 
 // LineError is an error of one row of an input file, printed in the style
@@ -116,6 +118,7 @@ func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, err
 	if err != nil {
 		return nil, err
 	}
+	header = append([]string(nil), header...) // kept by every item's Row; the reader reuses its records
 
 	var items []Item
 	first := make(map[string]int) // sku -> line of its first row
@@ -149,6 +152,7 @@ func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, err
 			continue
 		}
 		it := Item{Index: index, File: name, Line: line, SKU: strings.Clone(sku)}
+		it.Row = rowCells(header, rec)
 		switch {
 		case sku == "":
 			it.Err = &inventory.FieldError{Field: colSKU, Want: "a non-empty SKU"}

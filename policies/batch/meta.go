@@ -19,8 +19,10 @@ const MetaFormat = 2
 // Meta is the header record of a results file: the comment line before
 // the CSV header that says what the rows were computed from, e.g.
 //
-//	# ergostock results v2; period=week; run=5d0c1a2b3e4f5a6b; items=0a1b2c3d4e5f6a7b; history=8c9d0e1f2a3b4c5d; max_states=5000000; shard=0/1; version=0.1.0
+//	# ergostock results v2; period=week; run=5d0c1a2b3e4f5a6b; items=0a1b2c3d4e5f6a7b; history=8c9d0e1f2a3b4c5d; max_states=5000000; shard=0/1; version=0.1.0; item_count=196; costs=per week
 //
+// period is the planning period: every figure is a long-run average per
+// period, and costs= says so in words (costs are money per period).
 // Fields are "key=value" separated by "; "; no value holds a comma, so the
 // line is one cell in a spreadsheet. Digests are the first 16 hex digits
 // (64 bits) of SHA-256: items and history of those files' bytes ("none"
@@ -38,6 +40,18 @@ type Meta struct {
 	MaxStates int
 	Shard     Shard
 	Version   string
+	// ItemCount is the number of items (data rows) of the whole items
+	// file, in every shard's record (item_count=; 0 means not recorded),
+	// so that a merge can tell a complete set of parts.
+	ItemCount int
+	// Cells is how the cells were written; the keys decimal= and digits=
+	// appear only when they differ from the plain form (decimal point,
+	// full precision), so plain files keep their header record.
+	Cells Format
+	// Uncertainty describes the resampling of a run with --uncertainty
+	// (e.g. "iid,resamples=200,seed=1"); "" for a plain run, whose record
+	// and run digest then stay as they were.
+	Uncertainty string
 }
 
 // NewDigest returns the hash whose sum DigestSum prints.
@@ -51,13 +65,30 @@ func (m Meta) RunDigest() string {
 	h := NewDigest()
 	fmt.Fprintf(h, "ergostock results v%d\nperiod=%s\nitems=%s\nhistory=%s\nmax_states=%d\nversion=%s\n",
 		m.Format, m.Period, m.Items, m.History, m.MaxStates, m.Version)
+	if m.Uncertainty != "" {
+		fmt.Fprintf(h, "uncertainty=%s\n", m.Uncertainty)
+	}
 	return DigestSum(h)
 }
 
 // String prints the header record (without a line end).
 func (m Meta) String() string {
-	return fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
+	s := fmt.Sprintf("%s%d; period=%s; run=%s; items=%s; history=%s; max_states=%d; shard=%s; version=%s",
 		MetaPrefix, m.Format, m.Period, m.Run, m.Items, m.History, m.MaxStates, m.Shard, m.Version)
+	if m.Uncertainty != "" {
+		s += "; uncertainty=" + m.Uncertainty
+	}
+	if m.ItemCount > 0 {
+		s += fmt.Sprintf("; item_count=%d", m.ItemCount)
+	}
+	s += "; costs=per " + m.Period
+	if m.Cells.decimal() == ',' {
+		s += "; decimal=comma"
+	}
+	if m.Cells.Digits > 0 {
+		s += fmt.Sprintf("; digits=%d", m.Cells.Digits)
+	}
+	return s
 }
 
 // ParseMeta reads a header record written by Meta.String; name and line
@@ -100,6 +131,20 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			}
 		case "version":
 			m.Version = val
+		case "item_count":
+			if n, err := strconv.Atoi(val); err == nil && n > 0 {
+				m.ItemCount = n
+			}
+		case "decimal":
+			if val == "comma" {
+				m.Cells.Decimal = ','
+			}
+		case "digits":
+			if d, err := strconv.Atoi(val); err == nil && d > 0 && d <= MaxDigits {
+				m.Cells.Digits = d
+			}
+		case "uncertainty":
+			m.Uncertainty = val
 		}
 	}
 	if m.Period == "" || m.Items == "" {

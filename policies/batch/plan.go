@@ -18,6 +18,9 @@ type Fitted struct {
 	Demand   inventory.Distribution
 	Pattern  string   // smooth, erratic, intermittent or lumpy; "" if none
 	Warnings []string // about the history and the fit
+	// Series is the per-period demand the model was fitted to (for the
+	// resampling of --uncertainty); nil when not kept.
+	Series []int
 }
 
 // Planner runs the plan of one item: the demand model (the item's demand
@@ -36,6 +39,10 @@ type Planner struct {
 	Optimize func(inventory.System, policies.Kind, policies.SearchOptions) (*policies.Optimum, error)
 	Evaluate func(inventory.System, policies.Policy, policies.Options) (*policies.Evaluation, error)
 	Options  policies.Options // for every evaluation
+	// Uncertainty, when not nil, runs after a successful plan of an item
+	// (see UncertaintyStep) and adds its cells and warnings to the row;
+	// fitted is nil when the item's demand column replaced the fit.
+	Uncertainty func(ctx context.Context, it Item, sys inventory.System, fitted *Fitted, row *Row)
 }
 
 // DefaultKind is the policy type searched when an item names none: s-S when
@@ -58,21 +65,21 @@ func (p *Planner) Plan(it Item) Row { return p.PlanContext(context.Background(),
 // A row whose figures are not finite and non-negative (an overflow) fails
 // too, with the first such figure named.
 func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
-	row = Row{Item: it.Index, SKU: it.SKU}
+	row = Row{Item: it.Index, SKU: it.SKU, Carried: it.Carried}
 	defer func() {
 		if v := recover(); v != nil {
-			row.Policy, row.Figures, row.CurrentTotalCost = nil, nil, nil
+			row.Policy, row.Figures, row.CurrentTotalCost, row.Current, row.CurrentFillRate = nil, nil, nil, nil, nil
 			row.Err = &PanicError{Value: v, Stack: debug.Stack()}
 		}
 		if row.Err != nil {
 			if te := timeoutOf(ctx); te != nil {
-				row.Policy, row.Figures, row.CurrentTotalCost = nil, nil, nil
+				row.Policy, row.Figures, row.CurrentTotalCost, row.Current, row.CurrentFillRate = nil, nil, nil, nil, nil
 				row.Err = te
 			}
 			return
 		}
 		if err := row.checkFinite(); err != nil {
-			row.Policy, row.Figures, row.CurrentTotalCost = nil, nil, nil
+			row.Policy, row.Figures, row.CurrentTotalCost, row.Current, row.CurrentFillRate = nil, nil, nil, nil, nil
 			row.Err = err
 		}
 	}()
@@ -85,6 +92,8 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 		return row
 	}
 	sys := it.System
+	var fitted *Fitted
+	row.SetTiming(sys)
 	if sys.Demand != nil && p.Pattern != nil {
 		SetStage(ctx, "reading the demand pattern")
 		row.Pattern = p.Pattern(it.SKU)
@@ -101,6 +110,7 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 			return row
 		}
 		sys.Demand = f.Demand
+		fitted = f
 		row.Pattern = f.Pattern
 		row.Warnings = append(row.Warnings, f.Warnings...)
 	}
@@ -160,12 +170,16 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	row.Neglected = best.Neglected
 	row.Evaluated = best.Search.Evaluated
 	if cur != nil {
-		c := cur.Figures.TotalCost
-		row.CurrentTotalCost = &c
+		c, fr, p := cur.Figures.TotalCost, cur.Figures.FillRate, *it.Current
+		row.CurrentTotalCost, row.CurrentFillRate, row.Current = &c, &fr, &p
 		if it.MinFillRate > 0 && cur.Figures.FillRate < it.MinFillRate {
 			row.Warnings = append(row.Warnings, fmt.Sprintf("current policy %v has fill rate %.4g, below min_fill_rate %g",
 				*it.Current, cur.Figures.FillRate, it.MinFillRate))
 		}
+	}
+	if p.Uncertainty != nil {
+		SetStage(ctx, "resampling the history")
+		p.Uncertainty(ctx, it, sys, fitted, &row)
 	}
 	return row
 }
@@ -199,6 +213,11 @@ func (r *Row) checkFinite() error {
 		if err := bad("current_total_cost", *r.CurrentTotalCost); err != nil {
 			return err
 		}
+		if r.CurrentFillRate != nil {
+			if err := bad("current_fill_rate", *r.CurrentFillRate); err != nil {
+				return err
+			}
+		}
 		if v, ok := r.Saving(); ok && (math.IsNaN(v) || math.IsInf(v, 0)) {
 			return fmt.Errorf("saving %v: want a finite figure (the item's costs are too large for double precision)", v)
 		}
@@ -217,7 +236,7 @@ func (r *Row) checkFinite() error {
 // FailedRow is the row of an item that failed with err before or outside
 // its plan (a timeout, a panic caught by Run).
 func FailedRow(it Item, err error) Row {
-	return Row{Item: it.Index, SKU: it.SKU, Err: err}
+	return Row{Item: it.Index, SKU: it.SKU, Err: err, Carried: it.Carried}
 }
 
 // PlanAll plans items with Run: each item gets the budget opt.ItemTimeout,

@@ -22,11 +22,23 @@ type Row struct {
 	DemandVariance float64
 	Pattern        string // of the history; "" without one
 
+	// The timing the item was planned under (see SetTiming): the lead
+	// time as a whole number of periods or a law in the demand grammar,
+	// the lead-time model and the review period; "" and 0 when unknown
+	// (an item that failed before its system was read).
+	LeadTime      string
+	LeadTimeModel string
+	ReviewPeriod  int
+
 	// The cheapest policy and what it delivers; nil when the item failed.
 	Policy  *policies.Policy
 	Figures *inventory.Figures
 	// The cost of the policy in use; nil without one or when the item failed.
 	CurrentTotalCost *float64
+	// The policy in use and its fill rate; nil without one or when the
+	// item failed (see currentColumns).
+	Current         *policies.Policy
+	CurrentFillRate *float64
 
 	States    int     // states of the chosen policy's chain
 	Residual  float64 // of its stationary solve, ||pi P - pi||_1
@@ -36,6 +48,23 @@ type Row struct {
 
 	Warnings []string
 	Err      error // why the item failed; nil when it did not
+
+	Carried []string // the item's carried columns (see Carry), last in the row
+	// Uncertainty holds the resampling cells of a run with --uncertainty
+	// (see UncertaintyHeader); nil otherwise or when the analysis failed.
+	Uncertainty *UncertaintyCells
+}
+
+// SetTiming records the lead time, the lead-time model and the review
+// period of sys in the row (columns lead_time, lead_time_model and
+// review_period).
+func (r *Row) SetTiming(sys inventory.System) {
+	r.LeadTime = strconv.Itoa(sys.LeadTime)
+	if sys.LeadTimeLaw != nil {
+		r.LeadTime = sys.LeadTimeLaw.String()
+	}
+	r.LeadTimeModel = string(sys.Model())
+	r.ReviewPeriod = sys.Review()
 }
 
 // Saving is the current policy's total cost minus the chosen one's, and
@@ -47,15 +76,24 @@ func (r *Row) Saving() (float64, bool) {
 	return *r.CurrentTotalCost - r.Figures.TotalCost, true
 }
 
+// TimingColumns are the columns of the timing an item was planned under,
+// in this order right after the policy's levels: lead_time (a whole
+// number of periods, or the law in the demand grammar, quoted as CSV
+// quotes a cell with commas), lead_time_model (sequential or independent)
+// and review_period (periods between reviews, 1 for every period).
+var TimingColumns = []string{"lead_time", "lead_time_model", "review_period"}
+
 // Header returns the column names of the results file.
 func Header() []string {
 	h := []string{"sku", "demand", "demand_mean", "demand_variance", "pattern",
 		"policy", "reorder_point", "order_up_to", "order_multiple"}
+	h = append(h, TimingColumns...)
 	for _, f := range (inventory.Figures{}).Fields() {
 		h = append(h, f.Name)
 	}
-	return append(h, "current_total_cost", "saving", "warnings", "error",
+	h = append(h, "current_total_cost", "saving", "warnings", "error",
 		"states", "residual", "balance", "neglected", "policies_evaluated", "item")
+	return append(h, currentColumns...)
 }
 
 // Writer writes the results file as CSV.
@@ -63,6 +101,15 @@ type Writer struct {
 	out io.Writer
 	w   *csv.Writer
 	rec []string
+
+	carry   []string   // carried item columns, after every results column
+	format  Format     // how cells are written (see NewFormatWriter)
+	kinds   []CellKind // of the header's columns, when format is not plain
+	started bool       // the byte-order mark, if any, is written
+	// Uncertainty, when not nil, appends the columns of
+	// UncertaintyHeader(*Uncertainty) after the standard ones (true: with
+	// the robust policy's); nil keeps the plain file.
+	Uncertainty *bool
 }
 
 // NewWriter returns a Writer on w; call WriteMeta (optional) and
@@ -78,16 +125,35 @@ func (w *Writer) WriteMeta(m Meta) error {
 	if err := w.w.Error(); err != nil {
 		return err
 	}
+	if err := w.start(); err != nil {
+		return err
+	}
+	m.Cells = w.format
 	_, err := io.WriteString(w.out, m.String()+"\n")
 	return err
 }
 
 // WriteHeader writes the header line.
-func (w *Writer) WriteHeader() error { return w.w.Write(Header()) }
+func (w *Writer) WriteHeader() error {
+	if err := w.start(); err != nil {
+		return err
+	}
+	return w.w.Write(w.header())
+}
 
 // Write writes one row.
 func (w *Writer) Write(r *Row) error {
 	w.rec = r.appendRecord(w.rec[:0])
+	if w.Uncertainty != nil {
+		w.rec = r.Uncertainty.appendCells(w.rec, *w.Uncertainty)
+	}
+	w.rec = appendCarried(w.rec, r.Carried, len(w.carry))
+	if !w.format.Plain() {
+		if w.kinds == nil {
+			w.header()
+		}
+		w.format.reformat(w.rec, w.kinds)
+	}
 	return w.w.Write(w.rec)
 }
 
@@ -110,6 +176,10 @@ func (r *Row) appendRecord(rec []string) []string {
 	}
 	rec = append(rec, Guard(r.Pattern))
 	ok := r.Err == nil && r.Policy != nil && r.Figures != nil
+	review := ""
+	if r.ReviewPeriod > 0 {
+		review = strconv.Itoa(r.ReviewPeriod)
+	}
 	if ok {
 		p := r.Policy
 		s, S, Q := "", "", ""
@@ -121,12 +191,12 @@ func (r *Row) appendRecord(rec []string) []string {
 		case policies.SNQ:
 			s, Q = strconv.Itoa(p.ReorderPoint), strconv.Itoa(p.OrderMultiple)
 		}
-		rec = append(rec, string(p.Kind), s, S, Q)
+		rec = append(rec, string(p.Kind), s, S, Q, Guard(r.LeadTime), Guard(r.LeadTimeModel), review)
 		for _, f := range r.Figures.Fields() {
 			rec = append(rec, formatFloat(f.Value))
 		}
 	} else {
-		rec = append(rec, "", "", "", "")
+		rec = append(rec, "", "", "", "", Guard(r.LeadTime), Guard(r.LeadTimeModel), review)
 		for range (inventory.Figures{}).Fields() {
 			rec = append(rec, "")
 		}
@@ -149,7 +219,8 @@ func (r *Row) appendRecord(rec []string) []string {
 	} else {
 		rec = append(rec, "", "", "", "", "")
 	}
-	return append(rec, strconv.Itoa(r.Item))
+	rec = append(rec, strconv.Itoa(r.Item))
+	return r.appendCurrent(rec)
 }
 
 // oneLine folds a message onto one line, so that every row of the results

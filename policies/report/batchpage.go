@@ -5,6 +5,7 @@ import (
 	"io"
 	"strconv"
 
+	"ergostock/inventory"
 	"ergostock/inventory/history"
 	"ergostock/policies"
 )
@@ -12,6 +13,7 @@ import (
 type itemRow struct {
 	SKU, Pattern, Policy, Levels      string
 	Mean, Fill, Cost, Current, Saving cell
+	CurrentFill                       cell // fill rate of the policy in use, when the results give it
 	Warnings                          int
 	Failed                            bool
 }
@@ -38,6 +40,11 @@ type batchView struct {
 	Warnings       []skuMessage
 	LeftOut        []string
 	Notes          []string
+	Regret         []regretRow // items ranked by regret (--uncertainty runs)
+	RegretNote     string
+	// Timing holds the cautions of random lead times and review periods
+	// (see skuView); empty: the line of a fixed lead time.
+	Timing []string
 }
 
 var batchTemplate = mustTemplate("batch", `{{template "head" .}}
@@ -54,12 +61,19 @@ var batchTemplate = mustTemplate("batch", `{{template "head" .}}
 {{if .LeftOut}}<p>Left out of the exchange curve:</p>
 <ul>{{range .LeftOut}}<li>{{.}}</li>{{end}}</ul>{{end}}
 {{if .Notes}}<ul>{{range .Notes}}<li>{{.}}</li>{{end}}</ul>{{end}}
+{{if .Regret}}<h2 id="regret">Where more history pays: items ranked by regret</h2>
+<p>{{.RegretNote}}</p>
+<table class="items">
+<thead><tr><th>SKU</th><th>pattern</th><th>levels</th><th class="num">regret, mean</th><th class="num">regret, 95%</th><th class="num">fill rate, point model</th><th class="num">fill rate to expect</th><th class="num">fill rate, 5%</th><th>reorder point band</th></tr></thead>
+<tbody>
+{{range .Regret}}<tr><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="lv">{{.Levels}}</td><td class="num">{{.Mean}}</td><td class="num">{{.P95}}</td><td class="num">{{.Fill}}</td><td class="num">{{.Expected}}</td><td class="num">{{.FillP05}}</td><td class="lv">{{.Band}}</td></tr>
+{{end}}</tbody></table>{{end}}
 <h2 id="items" class="pagebreak">Items</h2>
 <p>One row per item, in the order of the results file{{if .Sortable}}; click a column head to sort (optional script){{end}}. Costs are per period; the saving is the current policy's total cost minus the recommended one's.</p>
 <table class="items sortable">
-<thead><tr><th>SKU</th><th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
+<thead><tr><th>SKU</th><th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">current fill rate</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
 <tbody>
-{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
+{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.CurrentFill.Key}}">{{.CurrentFill.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
 {{end}}</tbody></table>
 <h2 id="errors">Errors</h2>
 {{if .Errors}}<p>These items could not be planned; their rows in the results file carry no figures.</p>
@@ -136,7 +150,7 @@ func (pg *BatchPage) view() batchView {
 		v.SubTitle += ". Costs are per review period."
 	}
 	var done, failed, withCur int
-	var cost, curCost, saving, demand, served float64
+	var cost, curCost, saving, demand, served, curDemand, curServed float64
 	for _, r := range in.Rows {
 		sku := r.SKU
 		if sku == "" {
@@ -166,6 +180,11 @@ func (pg *BatchPage) view() batchView {
 				curCost += *r.CurrentCost
 				row.Current = cell{money(*r.CurrentCost), fkey(*r.CurrentCost)}
 			}
+			if r.CurrentFillRate != nil {
+				row.CurrentFill = cell{pct(*r.CurrentFillRate), fkey(*r.CurrentFillRate)}
+				curDemand += r.DemandMean
+				curServed += r.DemandMean * *r.CurrentFillRate
+			}
 			if r.Saving != nil {
 				saving += *r.Saving
 				row.Saving = cell{money(*r.Saving), fkey(*r.Saving)}
@@ -193,6 +212,10 @@ func (pg *BatchPage) view() batchView {
 	if demand > 0 {
 		v.Totals = append(v.Totals, kv{"aggregate fill rate of the recommendations (demand-weighted)", pct(served / demand)})
 	}
+	if curDemand > 0 {
+		v.Totals = append(v.Totals, kv{"aggregate fill rate of the current policies, where given (demand-weighted)", pct(curServed / curDemand)})
+	}
+	v.Timing = batchTimingCautions(in.Rows)
 	if ex := pg.Exchange; ex != nil {
 		v.LeftOut = ex.LeftOut
 		if len(v.LeftOut) > 25 {
@@ -202,7 +225,43 @@ func (pg *BatchPage) view() batchView {
 	} else {
 		v.Notes = append(v.Notes, "The exchange curve needs the items file (--items), to re-optimise every item under common fill-rate targets.")
 	}
+	v.Regret, v.RegretNote = regretRows(in.Rows)
 	return v
+}
+
+// batchTimingCautions states the lead-time assumptions of a batch whose
+// rows carry a lead-time law or a review period above 1 (the columns
+// lead_time, lead_time_model, review_period); nil when every row has a
+// fixed lead time reviewed every period, or the file predates the columns.
+func batchTimingCautions(rows []ResultRow) []string {
+	var laws, indep, reviews int
+	for _, r := range rows {
+		if r.LeadTime != "" {
+			if _, law, err := inventory.ParseLeadTime(r.LeadTime); err == nil && law != nil {
+				laws++
+				if r.LeadTimeModel == string(inventory.Independent) {
+					indep++
+				}
+			}
+		}
+		if r.ReviewPeriod > 1 {
+			reviews++
+		}
+	}
+	if laws == 0 && reviews == 0 {
+		return nil
+	}
+	c := []string{"Lead times are as in each row's lead_time column: a whole number of periods, or a random lead time with the law given there, independent of demand; suppliers always deliver in full."}
+	if laws > indep {
+		c = append(c, fmt.Sprintf("Random lead times with sequential deliveries (Kaplan 1970) for %s: orders arrive in the order placed.", plural(laws-indep, "item")))
+	}
+	if indep > 0 {
+		c = append(c, fmt.Sprintf("Independent lead times for %s: each order draws its own, and a later order may arrive first.", plural(indep, "item")))
+	}
+	if reviews > 0 {
+		c = append(c, fmt.Sprintf("Review only every few periods (review_period) for %s: orders are placed only at reviews, and costs and figures stay per period.", plural(reviews, "item")))
+	}
+	return c
 }
 
 func levels(p policies.Policy) string {

@@ -319,6 +319,36 @@ func seriesChart(labels []string, qty []float64, unit, title string) (template.H
 	return plotSVG(p, title)
 }
 
+// leadChart draws a lead-time law as bars, w[l] = P(L = l), over the
+// lead times that carry probability (small: at most a few hundred bars).
+func leadChart(w []float64, title string) (template.HTML, error) {
+	lo, hi := -1, -1
+	for l, p := range w {
+		if p > 0 {
+			if lo < 0 {
+				lo = l
+			}
+			hi = l
+		}
+	}
+	if lo < 0 {
+		return "", fmt.Errorf("chart %q: a law without mass", title)
+	}
+	p := newPlot(title, "lead time (periods)", "probability")
+	p.X.Tick.Marker = ticks{Integer: true}
+	r := &rects{}
+	for l := lo; l <= hi; l++ {
+		if w[l] > 0 {
+			r.Rects = append(r.Rects, rect{X0: float64(l) - 0.4, X1: float64(l) + 0.4, Y0: 0, Y1: w[l], Fill: okGreen})
+		}
+	}
+	p.Add(r)
+	p.X.Min, p.X.Max = float64(lo)-0.6, float64(hi)+0.6
+	p.Y.Min = 0
+	p.Y.Max *= 1.1
+	return plotSVG(p, title)
+}
+
 // histChart draws the observed frequency of each demand size per period
 // against the fitted probability mass function, binned when wide. The
 // work is O(periods + bins) whatever the support: the range ends at the

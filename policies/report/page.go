@@ -131,7 +131,8 @@ const layout = `{{define "head"}}<!DOCTYPE html>
 <p>The figures on this page come from a model, not from observation. They hold to the extent its assumptions hold:</p>
 <ul>
 <li>Demand in each review period is independent of other periods and has the same distribution in every period (stationary): no trend, no season, no promotions.</li>
-<li>The lead time is fixed, a whole number of review periods; suppliers always deliver in full.</li>
+{{if .Timing}}{{range .Timing}}<li>{{.}}</li>
+{{end}}{{else}}<li>The lead time is fixed, a whole number of review periods; suppliers always deliver in full.</li>{{end}}
 <li>One item at one location; no substitution between items, no transfers between stores.</li>
 <li>Costs are linear: a holding cost per unit and period, a shortage cost per unit, a fixed cost per order and a unit price, with no quantity discounts or capacity limits.</li>
 <li>Unmet demand is either backordered or lost, as stated, for every customer.</li>

@@ -270,6 +270,15 @@ func TestSKUPage(t *testing.T) {
 			policies.SNQ, []string{"levels", "cost-map", "fill-rate"}, []string{"order multiple Q"}, false, nil},
 		{"lost base-stock", inventory.System{Demand: mustParse(t, "poisson:mean=3"), Holding: 1, Shortage: 20, Mode: inventory.Lost},
 			policies.BaseStock, []string{"levels", "cost-map", "fill-rate"}, []string{"stock on hand"}, false, &cur},
+		// Issue 12: a lead-time law under sequential deliveries with weekly
+		// review of daily demand; the law is drawn beside the history.
+		{"backorder s-S, lead-time law, weekly review", inventory.System{Demand: mustParse(t, "poisson:mean=4"), LeadTimeLaw: mustParse(t, "pmf:1=0.2,2=0.5,3=0.3"), ReviewPeriod: 7,
+			Holding: 0.5, Shortage: 9, OrderCost: 30, Mode: inventory.Backorder},
+			policies.SS, []string{"levels", "cost-map", "fill-rate", "history", "history-fit", "lead-time"},
+			[]string{"pmf:1=0.2,2=0.5,3=0.3 (mean 2.1 periods", "sequential: orders arrive in the order placed", "every 7 periods", "Kaplan (1970)", "All figures and costs are per period", "Long-run averages per period"}, true, &cur},
+		{"backorder base-stock, independent lead times", inventory.System{Demand: mustParse(t, "poisson:mean=4"), LeadTimeLaw: mustParse(t, "pmf:0=0.2,1=0.3,4=0.5"), LeadTimeModel: inventory.Independent,
+			Holding: 0.5, Shortage: 9, Mode: inventory.Backorder},
+			policies.BaseStock, []string{"levels", "fill-rate", "lead-time"}, []string{"independent: each order draws its own lead time", "The cost map is left out", "a later order may arrive first"}, false, nil},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			in := SKUInput{SKU: "BRAKE-PAD-07", System: c.sys, Kind: c.kind, Current: c.current, Version: "test"}

@@ -2,7 +2,7 @@ package report
 
 import (
 	"bufio"
-	"encoding/csv"
+	"bytes"
 	"errors"
 	"fmt"
 	"io"
@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"ergostock/inventory"
+	"ergostock/inventory/tabular"
 	"ergostock/policies"
 	"ergostock/policies/batch"
 )
@@ -27,8 +28,21 @@ type ResultRow struct {
 	Figures        *inventory.Figures // nil when the item failed
 	CurrentCost    *float64           // total cost of the policy in use, if given
 	Saving         *float64           // current minus recommended total cost
-	Warnings       []string
-	Err            string
+	// The policy in use and its fill rate, if given (files written before
+	// these columns existed have neither).
+	Current         *policies.Policy
+	CurrentFillRate *float64
+	Warnings        []string
+	Err             string
+	// Uncertainty holds the resampling columns of a run with
+	// --uncertainty; nil without them or for an item without figures.
+	Uncertainty *ResultUncertainty
+	// The timing the item was planned under (columns lead_time,
+	// lead_time_model and review_period, see batch.TimingColumns); empty
+	// and 0 in files written before they were added.
+	LeadTime      string
+	LeadTimeModel string
+	ReviewPeriod  int
 }
 
 // resultColumns are the columns the report needs from a results file.
@@ -68,19 +82,28 @@ func ReadResults(r io.Reader, name string) ([]ResultRow, error) {
 
 // ReadResultsFile reads the results file of `ergostock batch` from r; name
 // is the file name used in errors. A first line starting with "#" is the
-// header record (batch.Meta). Columns are found by their header names
-// (extra columns are ignored). Text cells are read back through
-// batch.Unguard. A missing column, an unreadable number or policy, or an
-// empty file is an error naming the file, the line and the column, in the
-// style of encoding/csv's ParseError. Every file batch writes is read,
-// including rows of items without a SKU (they failed).
+// header record (batch.Meta). The table is read by inventory/tabular, so
+// every dialect batch writes is read: ',' ';' or tab delimited, decimal
+// point or comma (the header record's decimal= key; without a header
+// record a comma-delimited file has decimal points and the mark of
+// another is found from its numbers), a UTF-8 byte-order mark, CRLF, and
+// workbooks (.xlsx, see ReadResultsWorkbook). Columns are found by their
+// header names (extra columns, such as carried item columns, are ignored).
+// Text cells are read back through batch.Unguard. A missing column, an
+// unreadable number or policy, or an empty file is an error naming the
+// file, the line and the column, in the style of encoding/csv's
+// ParseError. Every file batch writes is read, including rows of items
+// without a SKU (they failed).
 func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 	br := bufio.NewReader(r)
+	if head, _ := br.Peek(4); tabular.IsWorkbook(name, head) {
+		return ReadResultsWorkbook(br, name)
+	}
 	if b, err := br.Peek(3); err == nil && string(b) == "\ufeff" {
 		br.Discard(3)
 	}
 	res := &Results{}
-	offset := 0 // lines before the CSV header
+	var body io.Reader = br
 	if b, err := br.Peek(1); err == nil && b[0] == '#' {
 		line, err := br.ReadString('\n')
 		if err != nil && err != io.EOF {
@@ -90,20 +113,42 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 		if err != nil {
 			return nil, err
 		}
-		res.Meta, offset = m, 1
+		res.Meta = m
+		// A blank line stands in for the header record, which the table
+		// reader skips, so that its line numbers are the file's.
+		body = io.MultiReader(strings.NewReader("\n"), br)
 	}
-	cr := csv.NewReader(br)
-	cr.FieldsPerRecord = -1
-	header, err := cr.Read()
-	if err == io.EOF {
-		return nil, fmt.Errorf("%s: empty file: %w (want a header with columns %s, ...)", name, ErrNotResults, strings.Join(resultColumns[:6], ", "))
-	}
+	tr, err := tabular.NewReader(body, name, tabular.Options{})
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
+		if strings.Contains(err.Error(), "no header line") {
+			return nil, fmt.Errorf("%s: empty file: %w (want a header with columns %s, ...)", name, ErrNotResults, strings.Join(resultColumns[:6], ", "))
+		}
+		return nil, err
 	}
+	return readResultsTable(tr, res)
+}
+
+// decimalOf returns the decimal mark of a results table: the header
+// record's (a file batch wrote says decimal=comma when it has commas),
+// else '.' in a comma-delimited file, else found from the numbers.
+func decimalOf(tr *tabular.Reader, m *batch.Meta) byte {
+	switch {
+	case m != nil && m.Cells.Decimal == ',':
+		return ','
+	case m != nil, tr.Dialect.Format == "xlsx", tr.Dialect.Delimiter == ',':
+		return '.'
+	}
+	return 0
+}
+
+// readResultsTable reads the rows of a results table whose header record,
+// if any, is in res.Meta.
+func readResultsTable(tr *tabular.Reader, res *Results) (*Results, error) {
+	name := tr.Name
+	nums := tabular.Numbers{Decimal: decimalOf(tr, res.Meta), File: name}
 	col := map[string]int{}
-	for i, h := range header {
-		h = strings.ToLower(strings.TrimSpace(strings.TrimPrefix(h, "\ufeff")))
+	for i, h := range tr.Header {
+		h = tabular.Normalize(h)
 		if _, dup := col[h]; !dup {
 			col[h] = i
 		}
@@ -123,26 +168,19 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 		if len(missing) > 1 {
 			noun = "columns"
 		}
-		return nil, fmt.Errorf("%s:%d: missing %s %s: %w (want its header: sku, demand, ..., error)", name, 1+offset, noun, list, ErrNotResults)
+		return nil, fmt.Errorf("%s:%d: missing %s %s: %w (want its header: sku, demand, ..., error)", name, tr.HeaderLine, noun, list, ErrNotResults)
 	}
 	var rows []ResultRow
 	for {
-		rec, err := cr.Read()
+		rec, line, err := tr.Read()
 		if err == io.EOF {
 			break
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				pe.StartLine += offset
-				pe.Line += offset
-			}
-			return nil, fmt.Errorf("%s: %w", name, err)
+			return nil, err
 		}
-		line, _ := cr.FieldPos(0)
-		line += offset
 		cell := func(c string) string {
-			if i := col[c]; i < len(rec) {
+			if i, ok := col[c]; ok && i < len(rec) {
 				return strings.TrimSpace(rec[i])
 			}
 			return ""
@@ -156,7 +194,7 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 			if s == "" {
 				return 0, false, nil
 			}
-			v, err := strconv.ParseFloat(s, 64)
+			v, err := nums.Parse(s, line)
 			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 				return 0, false, bad(c, "a finite number or an empty cell")
 			}
@@ -221,6 +259,32 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 			f := inventory.FromFields(vals)
 			row.Figures = &f
 		}
+		// Optional: files written before these columns lack them.
+		opt := func(c string) string {
+			if _, has := col[c]; has {
+				return text(c)
+			}
+			return ""
+		}
+		row.LeadTime, row.LeadTimeModel = opt("lead_time"), opt("lead_time_model")
+		if row.LeadTime != "" {
+			if _, _, err := inventory.ParseLeadTime(row.LeadTime); err != nil {
+				return nil, bad("lead_time", "a whole number of periods or a lead-time law")
+			}
+		}
+		if row.LeadTimeModel != "" {
+			if _, err := inventory.ParseLeadTimeModel(row.LeadTimeModel); err != nil {
+				return nil, bad("lead_time_model", "sequential or independent")
+			}
+		}
+		if _, has := col["review_period"]; has {
+			if row.ReviewPeriod, err = integer("review_period"); err != nil {
+				return nil, err
+			}
+		}
+		if row.ReviewPeriod < 0 {
+			return nil, bad("review_period", "a whole number of periods >= 1 or an empty cell")
+		}
 		if v, ok, err := number("current_total_cost"); err != nil {
 			return nil, err
 		} else if ok {
@@ -231,6 +295,35 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 		} else if ok {
 			row.Saving = &v
 		}
+		// The current policy's columns, in files since they were added.
+		if kind := text("current_policy"); kind != "" {
+			p := policies.Policy{Kind: policies.Kind(kind)}
+			if p.ReorderPoint, err = integer("current_reorder_point"); err != nil {
+				return nil, err
+			}
+			if p.OrderUpTo, err = integer("current_order_up_to"); err != nil {
+				return nil, err
+			}
+			if p.OrderMultiple, err = integer("current_order_multiple"); err != nil {
+				return nil, err
+			}
+			switch p.Kind {
+			case policies.BaseStock, policies.SS, policies.SNQ:
+			default:
+				return nil, bad("current_policy", "base-stock, s-S or s-nQ")
+			}
+			row.Current = &p
+		}
+		if v, ok, err := number("current_fill_rate"); err != nil {
+			return nil, err
+		} else if ok {
+			row.CurrentFillRate = &v
+		}
+		if u, err := readUncertainty(col, number); err != nil {
+			return nil, err
+		} else {
+			row.Uncertainty = u
+		}
 		rows = append(rows, row)
 	}
 	if len(rows) == 0 {
@@ -238,4 +331,37 @@ func ReadResultsFile(r io.Reader, name string) (*Results, error) {
 	}
 	res.Rows = rows
 	return res, nil
+}
+
+// maxResultsWorkbook bounds a results workbook read into memory.
+const maxResultsWorkbook = 512 << 20
+
+// ReadResultsWorkbook reads a results workbook written by `ergostock batch
+// --out FILE.xlsx`: the rows from its sheet "results" (numbers stored as
+// numbers, read back exactly), the header record from its sheet "run"
+// (its first cell). Both sheets go through inventory/tabular's workbook
+// reader; errors name the file, the sheet and the row.
+func ReadResultsWorkbook(r io.Reader, name string) (*Results, error) {
+	data, err := io.ReadAll(io.LimitReader(r, maxResultsWorkbook+1))
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	if len(data) > maxResultsWorkbook {
+		return nil, fmt.Errorf("%s: a workbook larger than %d MiB: write the results as CSV instead", name, maxResultsWorkbook>>20)
+	}
+	res := &Results{}
+	if run, err := tabular.NewWorkbookReader(bytes.NewReader(data), name, tabular.Options{Sheet: batch.RunSheet}); err == nil {
+		if len(run.Header) > 0 && strings.HasPrefix(run.Header[0], batch.MetaPrefix) {
+			m, err := batch.ParseMeta(run.Header[0], run.Name, run.HeaderLine)
+			if err != nil {
+				return nil, err
+			}
+			res.Meta = m
+		}
+	}
+	tr, err := tabular.NewWorkbookReader(bytes.NewReader(data), name, tabular.Options{Sheet: batch.ResultsSheet})
+	if err != nil {
+		return nil, fmt.Errorf("%w (%w)", err, ErrNotResults)
+	}
+	return readResultsTable(tr, res)
 }

@@ -2,6 +2,9 @@ package report
 
 import (
 	"encoding/csv"
+	"errors"
+	"slices"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -46,7 +49,7 @@ func TestReadResultsFileV2(t *testing.T) {
 		{name: "bad number, line counted", data: m.String() + "\n" + header + "\n" + row(map[string]string{"sku": "A", "demand_mean": "zz"}) + "\n",
 			want: `r.csv:3: demand_mean "zz": want a finite number or an empty cell`},
 		{name: "CSV error, line counted", data: m.String() + "\n" + header + "\nA,\"open\n",
-			want: "r.csv: parse error on line 3"},
+			want: "r.csv:3: extraneous"},
 		{name: "newer format", data: "# ergostock results v9; period=day; items=x\n" + header + "\n",
 			want: "r.csv:1: results format v9: this ergostock reads up to v2; use a newer version"},
 		{name: "missing column, line counted", data: m.String() + "\nsku,demand\n",
@@ -78,5 +81,98 @@ func TestReadResultsFileV2(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// The timing columns (batch.TimingColumns) round-trip through the writer
+// and the reader, a law with commas included; a file written before they
+// existed is still read (empty timing), and a bad cell names its line and
+// column.
+func TestReadResultsTiming(t *testing.T) {
+	var b strings.Builder
+	w := batch.NewWriter(&b)
+	if err := w.WriteHeader(); err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range []batch.Row{
+		{SKU: "A", LeadTime: "pmf:1=0.2,2=0.5,3=0.3", LeadTimeModel: "independent", ReviewPeriod: 7, Err: errFailed},
+		{SKU: "B", LeadTime: "3", LeadTimeModel: "sequential", ReviewPeriod: 1, Err: errFailed},
+		{SKU: "C", Err: errFailed},
+	} {
+		if err := w.Write(&r); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := w.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	rows, err := ReadResults(strings.NewReader(b.String()), "r.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := [][3]string{{"pmf:1=0.2,2=0.5,3=0.3", "independent", "7"}, {"3", "sequential", "1"}, {"", "", "0"}}
+	for i, r := range rows {
+		if got := [3]string{r.LeadTime, r.LeadTimeModel, strconv.Itoa(r.ReviewPeriod)}; got != want[i] {
+			t.Errorf("row %d: timing %q, want %q", i, got, want[i])
+		}
+	}
+	// An older file: the header without the timing columns.
+	var old []string
+	for _, h := range batch.Header() {
+		if !slices.Contains(batch.TimingColumns, h) {
+			old = append(old, h)
+		}
+	}
+	cells := make([]string, len(old))
+	cells[0], cells[slices.Index(old, "error")] = "Z", "x"
+	rows, err = ReadResults(strings.NewReader(strings.Join(old, ",")+"\n"+strings.Join(cells, ",")+"\n"), "old.csv")
+	if err != nil || len(rows) != 1 || rows[0].LeadTime != "" || rows[0].ReviewPeriod != 0 {
+		t.Fatalf("older file: %+v, %v", rows, err)
+	}
+	// Bad cells.
+	h := batch.Header()
+	for _, c := range []struct{ col, val, want string }{
+		{"lead_time", "soon", `r.csv:2: lead_time "soon": want a whole number of periods or a lead-time law`},
+		{"lead_time_model", "crossing", `r.csv:2: lead_time_model "crossing": want sequential or independent`},
+		{"review_period", "1.5", `r.csv:2: review_period "1.5": want a whole number or an empty cell`},
+		{"review_period", "-2", `r.csv:2: review_period "-2": want a whole number of periods >= 1 or an empty cell`},
+	} {
+		cells := make([]string, len(h))
+		cells[0], cells[slices.Index(h, "error")], cells[slices.Index(h, c.col)] = "A", "x", c.val
+		_, err := ReadResults(strings.NewReader(strings.Join(h, ",")+"\n"+strings.Join(cells, ",")+"\n"), "r.csv")
+		if err == nil || err.Error() != c.want {
+			t.Errorf("%s %q: err %v, want %s", c.col, c.val, err, c.want)
+		}
+	}
+}
+
+var errFailed = errors.New("failed")
+
+// The batch page states the timing assumptions only when some row has a
+// lead-time law or a review period above 1.
+func TestBatchTimingCautions(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		rows []ResultRow
+		want []string // substrings, one per line; nil: no lines
+	}{
+		{"older file", []ResultRow{{SKU: "A"}}, nil},
+		{"fixed, every period", []ResultRow{{SKU: "A", LeadTime: "3", LeadTimeModel: "sequential", ReviewPeriod: 1}}, nil},
+		{"laws and weekly review", []ResultRow{
+			{SKU: "A", LeadTime: "pmf:1=0.2,2=0.8", LeadTimeModel: "sequential", ReviewPeriod: 7},
+			{SKU: "B", LeadTime: "pmf:0=0.5,3=0.5", LeadTimeModel: "independent", ReviewPeriod: 1},
+			{SKU: "C", LeadTime: "2", LeadTimeModel: "sequential", ReviewPeriod: 7},
+		}, []string{"lead_time column", "sequential deliveries (Kaplan 1970) for 1 item:", "Independent lead times for 1 item:", "for 2 items: orders are placed only at reviews"}},
+	} {
+		got := batchTimingCautions(c.rows)
+		if len(got) != len(c.want) {
+			t.Errorf("%s: %q, want %d lines", c.name, got, len(c.want))
+			continue
+		}
+		for i, w := range c.want {
+			if !strings.Contains(got[i], w) {
+				t.Errorf("%s: line %d %q, want %q", c.name, i, got[i], w)
+			}
+		}
 	}
 }

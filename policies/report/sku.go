@@ -11,6 +11,7 @@ import (
 
 	"ergostock/inventory"
 	"ergostock/policies"
+	"ergostock/policies/uncertainty"
 )
 
 // SKUInput is what the page for one SKU is built from.
@@ -31,6 +32,11 @@ type SKUInput struct {
 	// table; it is called for the recommended and the current policy.
 	Simulate func(policies.Policy) (*Simulated, error)
 	Version  string // of the program, for the page footer
+	// Uncertainty, when set, is the resampling analysis of the SKU
+	// (policies/uncertainty.Analyze, with its resamples kept): the page
+	// adds the level distribution's spread over the resampled models and
+	// the fill rate of the recommendation as a distribution.
+	Uncertainty *uncertainty.Result
 }
 
 // History is the demand history of one SKU with its fitted model.
@@ -303,8 +309,25 @@ const (
 // the inputs behind the size.
 func (pg *SKUPage) gridError(what string, size, limit string) error {
 	sys := pg.In.System
-	return fmt.Errorf("--demand %s with --lead-time %d: the cost map around %v would take %s (%s), over the one-SKU page's limit of %s",
-		sys.Demand, sys.LeadTime, pg.Optimum.Policy, size, what, limit)
+	lead := fmt.Sprint(sys.LeadTime)
+	if sys.LeadTimeLaw != nil {
+		lead = sys.LeadTimeLaw.String()
+	}
+	return fmt.Errorf("--demand %s with --lead-time %s: the cost map around %v would take %s (%s), over the one-SKU page's limit of %s",
+		sys.Demand, lead, pg.Optimum.Policy, size, what, limit)
+}
+
+// longestLead is the longest lead time of sys: the fixed lead time or the
+// last point of its law.
+func longestLead(sys inventory.System) int {
+	if sys.LeadTimeLaw == nil {
+		return sys.LeadTime
+	}
+	w, _, err := sys.LeadTimeWeights()
+	if err != nil {
+		return sys.LeadTime
+	}
+	return len(w) - 1
 }
 
 // gridWork estimates the weighted operations and bytes of the renewal
@@ -341,6 +364,17 @@ func (pg *SKUPage) gatherGrid() error {
 	sys := pg.In.System
 	opt := pg.Optimum.Policy
 	sd := math.Sqrt(sys.Demand.Variance() * float64(sys.LeadTime+1))
+	if !sys.FixedTiming() {
+		// The demand over the lead time, the period and the review
+		// phase, mixed over the lead-time law.
+		if x, err := inventory.MixedDemand(sys, 1); err == nil {
+			sd = math.Sqrt(x.Variance())
+		}
+		if sys.LeadTimeLaw != nil && sys.Model() == inventory.Independent {
+			pg.Notes = append(pg.Notes, "The cost map is left out: with independent lead times only base-stock policies are evaluated exactly, and the map's cells are s-S or s-nQ policies (the simulation, when asked for, checks the recommended policy).")
+			return nil
+		}
+	}
 	snq := opt.Kind == policies.SNQ
 	ox, oy := opt.ReorderPoint, opt.OrderUpTo
 	if opt.Kind == policies.BaseStock {
@@ -388,12 +422,12 @@ func (pg *SKUPage) gatherGrid() error {
 	n := gridSize
 	// A lost-sales chain has about C(S+L+1, L+1) states: keep the work of
 	// the grid near a few million states.
-	if sys.Mode == inventory.Lost && sys.LeadTime > 0 {
+	if L := longestLead(sys); sys.Mode == inventory.Lost && L > 0 {
 		top := yhi
 		if snq {
 			top = xhi + yhi
 		}
-		st := lostStates(top, sys.LeadTime)
+		st := lostStates(top, L)
 		for n > 5 && float64(n*n)*st > 1e6 {
 			n -= 2
 		}
@@ -404,7 +438,15 @@ func (pg *SKUPage) gatherGrid() error {
 	}
 	xs := axisLevels(ox, xlo, xhi, xfloor, n)
 	ys := axisLevels(oy, ylo, yhi, yfloor, n)
-	if sys.Mode == inventory.Backorder {
+	if !sys.FixedTiming() && sys.Mode == inventory.Backorder {
+		// The renewal formulas assume a fixed lead time and review every
+		// period: each cell is evaluated on its chain instead, on a
+		// coarser grid.
+		n = min(n, 13)
+		xs = axisLevels(ox, xlo, xhi, xfloor, n)
+		ys = axisLevels(oy, ylo, yhi, yfloor, n)
+	}
+	if sys.Mode == inventory.Backorder && sys.FixedTiming() {
 		ops, bytes, b, span := gridWork(sys, xs, ys, snq)
 		if cur != nil && (bytes > gridBytesLimit || ops > gridOpsLimit) {
 			// A current policy far from the optimum stretches the axes:
@@ -435,7 +477,7 @@ func (pg *SKUPage) gatherGrid() error {
 			}
 		}
 	}
-	if sys.Mode == inventory.Backorder {
+	if sys.Mode == inventory.Backorder && sys.FixedTiming() {
 		// The renewal formulas give every cell in O(S - s) or O(Q).
 		r := newRenewalCost(sys)
 		r.mass(max(1, ys[len(ys)-1]-xs[0]))
@@ -516,7 +558,7 @@ func (pg *SKUPage) gatherFill() {
 			floor = -1
 		}
 		xs = axisLevels(s, s-12, s+12, floor, gridSize)
-		if sys.Mode == inventory.Lost && sys.LeadTime > 0 {
+		if sys.Mode == inventory.Lost && longestLead(sys) > 0 {
 			xs = axisLevels(s, s-6, s+6, floor, 13)
 		}
 	}

@@ -42,12 +42,16 @@ type skuView struct {
 	SavingGood     bool
 	HasCurrent     bool
 	Figures        []figureRow
+	FiguresNote    string
 	Charts         []Chart
 	Sims           []simTable
 	Diagnostics    []kv
 	History        []kv
 	HistWarnings   []string
 	Notes          []string
+	// Timing replaces the caution about a fixed lead time when the item
+	// has a lead-time law or a review period (see timingCautions).
+	Timing []string
 }
 
 var skuTemplate = mustTemplate("sku", `{{template "head" .}}
@@ -62,7 +66,7 @@ var skuTemplate = mustTemplate("sku", `{{template "head" .}}
 {{range .System}}<tr><th>{{.Key}}</th><td>{{.Value}}</td></tr>
 {{end}}</tbody></table>
 <h2 id="figures">Key figures</h2>
-<p>Long-run averages per review period, exact from the stationary distribution of the policy's Markov chain.</p>
+<p>{{.FiguresNote}}</p>
 <table class="figures">
 <thead><tr><th>figure</th><th>unit</th><th class="num">recommended</th>{{if .HasCurrent}}<th class="num">current</th><th class="num">recommended − current</th>{{end}}</tr></thead>
 <tbody>
@@ -197,6 +201,32 @@ func (pg *SKUPage) render() {
 			add(c, err)
 		}
 	}
+	pg.leadTimeChart(add)
+	pg.renderUncertainty()
+}
+
+// leadTimeChart adds the chart of the lead-time law, drawn beside the
+// demand history (after it when there is one).
+func (pg *SKUPage) leadTimeChart(add func(Chart, error)) {
+	sys := pg.In.System
+	if sys.LeadTimeLaw == nil {
+		return
+	}
+	w, negl, err := sys.LeadTimeWeights()
+	c := Chart{ID: "lead-time", Title: "Lead-time law"}
+	if err == nil {
+		c.SVG, err = leadChart(w, c.Title)
+	}
+	c.Caption = fmt.Sprintf("Probability of each lead time in periods, %s (mean %s). ", sys.LeadTimeLaw, num(sys.LeadTimeLaw.Mean()))
+	if sys.Model() == inventory.Independent {
+		c.Caption += "Each order draws its own lead time from this law, so orders may overtake each other."
+	} else {
+		c.Caption += "Orders arrive in the order placed; each one's lead time has this law (Kaplan 1970)."
+	}
+	if negl > 0 {
+		c.Caption += fmt.Sprintf(" Tails of total probability %s are joined to the end points.", sci(negl))
+	}
+	add(c, err)
 }
 
 // WriteHTML writes the page.
@@ -213,13 +243,18 @@ func (pg *SKUPage) view() skuView {
 		v.Title += ": " + pg.In.SKU
 	}
 	v.SubTitle = fmt.Sprintf("Periodic review, one item at one location; unmet demand is %s. All figures are per review period.", map[inventory.Mode]string{inventory.Backorder: "backordered", inventory.Lost: "lost"}[sys.Mode])
+	if r := sys.Review(); r > 1 {
+		v.SubTitle = fmt.Sprintf("Periodic review every %d periods, one item at one location; unmet demand is %s. All figures and costs are per period (an order every review is an order frequency of 1/%d).", r, map[inventory.Mode]string{inventory.Backorder: "backordered", inventory.Lost: "lost"}[sys.Mode], r)
+	}
 	src := pg.In.DemandSource
 	if src == "" {
 		src = "given"
 	}
 	v.System = []kv{
 		{"demand per period", fmt.Sprintf("%s (mean %s, variance %s; %s)", sys.Demand.String(), num(sys.Demand.Mean()), num(sys.Demand.Variance()), src)},
-		{"lead time", plural(sys.LeadTime, "period")},
+		{"lead time", leadTimeText(sys)},
+		{"lead-time model", leadModelText(sys)},
+		{"review period", reviewText(sys)},
 		{"holding cost h", num(sys.Holding) + " per unit on hand per period"},
 		{"shortage cost b", num(sys.Shortage) + map[inventory.Mode]string{inventory.Backorder: " per unit backordered per period", inventory.Lost: " per unit of demand lost"}[sys.Mode]},
 		{"fixed order cost K", num(sys.OrderCost) + " per order"},
@@ -250,6 +285,11 @@ func (pg *SKUPage) view() skuView {
 		default:
 			v.Saving = fmt.Sprintf("The current policy costs %s per period less than the recommendation; it likely fails the fill-rate floor or lies outside the family searched.", money(-d))
 		}
+	}
+	v.Timing = timingCautions(sys)
+	v.FiguresNote = "Long-run averages per review period, exact from the stationary distribution of the policy's Markov chain."
+	if !sys.FixedTiming() {
+		v.FiguresNote = "Long-run averages per period, exact from the stationary distribution of the inventory position at reviews, mixed over the lead-time law and the periods of the review cycle."
 	}
 	cur := inventory.Figures{}
 	if pg.Current != nil {
@@ -361,6 +401,57 @@ func signed(name string, d float64) string {
 		return sign + num(d) + " (" + sign + strconv.FormatFloat(100*d, 'f', 2, 64) + " pp)"
 	}
 	return sign + figureValue(name, d)
+}
+
+// leadTimeText describes the lead time: "3 periods", or the law with its
+// mean and standard deviation.
+func leadTimeText(sys inventory.System) string {
+	if d := sys.LeadTimeLaw; d != nil {
+		return fmt.Sprintf("%s (mean %s periods, standard deviation %s)", d.String(), num(d.Mean()), num(math.Sqrt(d.Variance())))
+	}
+	return plural(sys.LeadTime, "period")
+}
+
+// timingCautions states the assumptions of a lead-time law and a review
+// period in plain words; nil for a fixed lead time reviewed every period.
+func timingCautions(sys inventory.System) []string {
+	if sys.FixedTiming() {
+		return nil
+	}
+	var c []string
+	switch {
+	case sys.LeadTimeLaw == nil:
+		c = append(c, "The lead time is fixed, a whole number of periods; suppliers always deliver in full.")
+	case sys.Model() == inventory.Independent:
+		c = append(c, "Lead times are random with the law shown, drawn for each order independently of other orders and of demand, so a later order may arrive first; suppliers always deliver in full.",
+			"With independent lead times only base-stock policies in backorder mode are evaluated exactly; other figures for this item come from simulation and are estimates.")
+	default:
+		c = append(c, "Lead times are random with the law shown, independent of demand, and orders arrive in the order they were placed (one supplier, one route). This is the model of Kaplan (1970); it fits only laws whose chance of arriving in the next period, for an order still out, does not fall as the order ages.",
+			"Suppliers always deliver in full.")
+	}
+	if r := sys.Review(); r > 1 {
+		c = append(c, fmt.Sprintf("The stock is reviewed, and an order placed, only every %d periods, at fixed times; between reviews nothing is ordered whatever happens. Costs and figures are per period.", r))
+	}
+	return c
+}
+
+// leadModelText says how the lead times of successive orders relate.
+func leadModelText(sys inventory.System) string {
+	if sys.LeadTimeLaw == nil {
+		return "fixed lead time: every order takes the same time"
+	}
+	if sys.Model() == inventory.Independent {
+		return "independent: each order draws its own lead time, so a later order may arrive first"
+	}
+	return "sequential: orders arrive in the order placed (Kaplan 1970: each period a random cut-off decides that every order older than it arrives)"
+}
+
+// reviewText describes the review period.
+func reviewText(sys inventory.System) string {
+	if r := sys.Review(); r > 1 {
+		return fmt.Sprintf("every %d periods: the position is reviewed and an order placed only then; costs accrue every period", r)
+	}
+	return "every period"
 }
 
 // plural prints "1 period" or "3 periods".

@@ -1,6 +1,7 @@
 package sim
 
 import (
+	"fmt"
 	"math/rand/v2"
 	"testing"
 
@@ -113,4 +114,41 @@ func BenchmarkRun(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(b.N*opt.Periods*opt.Replications)/b.Elapsed().Seconds(), "periods/s")
+}
+
+// BenchmarkTimedPeriods measures the loop of random lead times and review
+// periods (stepTimed) on one core: s-S(8,20) under Poisson 4, the law
+// pmf:1=0.2,2=0.5,3=0.3, both models, R = 1 and 7, backorder mode.
+func BenchmarkTimedPeriods(b *testing.B) {
+	d, err := inventory.Parse("poisson:mean=4")
+	if err != nil {
+		b.Fatal(err)
+	}
+	_, law, err := inventory.ParseLeadTime("pmf:1=0.2,2=0.5,3=0.3")
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, model := range []inventory.LeadTimeModel{inventory.Sequential, inventory.Independent} {
+		for _, R := range []int{1, 7} {
+			b.Run(fmt.Sprintf("%s/R=%d", model, R), func(b *testing.B) {
+				sys := inventory.System{Demand: d, LeadTimeLaw: law, LeadTimeModel: model, ReviewPeriod: R, Holding: 1, Shortage: 9, OrderCost: 20, Mode: inventory.Backorder}
+				tm, err := newTiming(sys)
+				if err != nil {
+					b.Fatal(err)
+				}
+				p := policies.Policy{Kind: policies.SS, ReorderPoint: 8, OrderUpTo: 20}
+				smp := newSampler(d)
+				st := timedState{net: 20, ring: make([]int64, tm.lmax+1)}
+				rng := rand.NewPCG(1, 2)
+				var t tally
+				b.ReportAllocs()
+				b.ResetTimer()
+				stepTimed(&st, &t, p, smp, tm, false, rng, b.N, 1<<52)
+				b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "periods/s")
+				if t.periods != int64(b.N) {
+					b.Fatal("lost periods")
+				}
+			})
+		}
+	}
 }

@@ -265,7 +265,7 @@ func TestLimits(t *testing.T) {
 func TestRangeStop(t *testing.T) {
 	pois, _ := inventory.Parse("poisson:mean=9")
 	sys := inventory.System{Demand: pois, Holding: 1, Shortage: 9, Mode: inventory.Backorder}
-	_, err := replicate(sys, policies.Policy{Kind: policies.BaseStock, OrderUpTo: 20}, newSampler(pois), Options{Periods: 1000, Replications: 2}, 0, 5)
+	_, err := replicate(sys, policies.Policy{Kind: policies.BaseStock, OrderUpTo: 20}, newSampler(pois), nil, Options{Periods: 1000, Replications: 2}, 0, 5)
 	if err == nil || err.Demand <= 5 || err.Limit != 5 {
 		t.Errorf("error %v, want a RangeError over 5", err)
 	}

@@ -17,12 +17,39 @@
 //     policy orders q = Order(IP); a fixed cost K is incurred when q > 0 and
 //     a purchase cost c per unit ordered.
 //  2. Receive: the order placed at the review of period t-L arrives (with
-//     L = 0 the order just placed).
+//     L = 0 the order just placed); random lead times below.
 //  3. Demand D_t is drawn and served from on-hand stock. In backorder mode
 //     the arrival first clears outstanding backorders and the unserved
 //     demand is backordered; in lost mode the unserved demand is lost.
 //  4. Charges: h per unit on hand at the end of the period; b per unit
 //     backordered at the end of the period, or b per unit lost in it.
+//
+// # Random lead times and the review period
+//
+// When the System has a lead-time law (System.LeadTimeLaw) or a review
+// period R > 1, the events are played literally from the law, again
+// sharing nothing with the exact engine but the law itself:
+//
+//   - Review only in periods 0, R, 2R, ... of the replication (counted
+//     from its first period, warm-up included); costs and every figure
+//     stay per period, so the order frequency is orders over periods.
+//   - Sequential deliveries (the default model): each period draws a
+//     cut-off T from the law P(T <= l) = P(L = l)/P(L >= l) of
+//     inventory.KaplanCutoff, and every outstanding order placed at least
+//     T periods ago arrives (Kaplan, "A dynamic inventory model with
+//     stochastic lead times", Management Science 16(7), 1970). Orders
+//     therefore arrive in the order placed, and an order's lead time has
+//     the given law.
+//   - Independent lead times (inventory.Independent): each order draws
+//     its own lead time from the law when it is placed; a later order may
+//     arrive first.
+//
+// The lead-time law is tabulated as the System cuts it (its tails below
+// inventory.LeadTimeNeglect joined to the end points) and drawn by the
+// alias method; the orders outstanding sit in a ring of lmax+1 slots, lmax
+// the largest lead time, so every period costs O(1) (amortised O(1) for
+// the sequential receipts). A fixed lead time with R = 1 keeps the
+// original loop, so its figures are unchanged for a given seed.
 //
 // Each replication starts with the inventory position at the policy's top
 // level (all of it on hand, nothing on order) and discards a warm-up of

@@ -190,7 +190,21 @@ func check(sys inventory.System, p policies.Policy, opt Options) (limits, error)
 		return lim, &LimitError{Field: "periods", Value: str(opt.Periods), Want: fmt.Sprintf("periods x replications at most the period budget of %d", budget),
 			Size: fmt.Sprintf("%d x %d = %.3g periods in all; raise the budget to run longer", opt.Periods, opt.Replications, n)}
 	}
-	pipe := float64(lim.workers) * (float64(sys.LeadTime) + 1) * 8
+	// Under random lead times or a review period the ring has lmax+1
+	// slots, lmax the largest lead time of the law as the System cuts it,
+	// and the law's alias table lmax+1 cells; the sums below bound the
+	// pipeline by lmax + R - 1 periods of orders.
+	leadSlots := float64(sys.LeadTime)
+	var lawCells float64
+	if sys.LeadTimeLaw != nil { // (a fixed lead time needs no table: no draw)
+		w, _, err := sys.LeadTimeWeights()
+		if err != nil {
+			return lim, err
+		}
+		leadSlots = float64(len(w) - 1)
+		lawCells = float64(len(w))
+	}
+	pipe := float64(lim.workers)*(leadSlots+1)*8 + lawCells*cellBytes
 	if pipe > float64(maxBytes) {
 		return lim, &LimitError{Field: "lead_time", Value: str(sys.LeadTime), Want: fmt.Sprintf("a lead time whose pipelines fit in %s", byteSize(float64(maxBytes))),
 			Size: fmt.Sprintf("%d workers x %d slots x 8 bytes = %s", lim.workers, sys.LeadTime+1, byteSize(pipe))}
@@ -236,7 +250,7 @@ func check(sys inventory.System, p policies.Policy, opt Options) (limits, error)
 	}
 	span := top - lo + 1
 	fixed := math.Abs(lo) + math.Abs(top) + 2
-	L := float64(sys.LeadTime)
+	L := leadSlots + float64(sys.Review()-1)
 	perPeriod := func(dmax float64) float64 { return fixed + (L+2)*(span+dmax) }
 	if n := float64(opt.Periods) * perPeriod(float64(need)); n > sumLimit {
 		most := math.Floor(sumLimit / perPeriod(float64(need)))
@@ -301,6 +315,12 @@ func Run(sys inventory.System, p policies.Policy, opt Options) (*Result, error) 
 	}
 
 	smp := newSampler(sys.Demand)
+	var tm *timing
+	if !sys.FixedTiming() {
+		if tm, err = newTiming(sys); err != nil {
+			return nil, err
+		}
+	}
 	per := make([]inventory.Figures, opt.Replications)
 	bad := make([]*RangeError, opt.Replications)
 	next := make(chan int)
@@ -310,7 +330,7 @@ func Run(sys inventory.System, p policies.Policy, opt Options) (*Result, error) 
 		go func() {
 			defer wg.Done()
 			for r := range next {
-				per[r], bad[r] = replicate(sys, p, smp, opt, r, lim.dmax)
+				per[r], bad[r] = replicate(sys, p, smp, tm, opt, r, lim.dmax)
 			}
 		}()
 	}
@@ -499,10 +519,23 @@ type state struct {
 
 // replicate runs replication r: warm-up, then the counted periods.
 // A draw above dmax stops it with a *RangeError.
-func replicate(sys inventory.System, p policies.Policy, smp *sampler, opt Options, r int, dmax int64) (inventory.Figures, *RangeError) {
+func replicate(sys inventory.System, p policies.Policy, smp *sampler, tm *timing, opt Options, r int, dmax int64) (inventory.Figures, *RangeError) {
 	a, b := streamSeeds(opt.Seed, r)
 	rng := rand.NewPCG(a, b)
 	_, top := p.Levels()
+	if tm != nil {
+		st := timedState{net: int64(top), ring: make([]int64, tm.lmax+1)}
+		lost := sys.Mode == inventory.Lost
+		var t tally
+		if d := stepTimed(&st, &t, p, smp, tm, lost, rng, opt.Warmup, dmax); d > dmax {
+			return inventory.Figures{}, &RangeError{Demand: d, Limit: dmax, Replication: r}
+		}
+		t = tally{}
+		if d := stepTimed(&st, &t, p, smp, tm, lost, rng, opt.Periods-opt.Warmup, dmax); d > dmax {
+			return inventory.Figures{}, &RangeError{Demand: d, Limit: dmax, Replication: r}
+		}
+		return t.figures(sys), nil
+	}
 	st := state{net: int64(top), pipe: make([]int64, sys.LeadTime+1), w: sys.LeadTime, r: 0}
 	var t tally
 	step := stepBackorder
