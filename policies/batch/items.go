@@ -99,7 +99,7 @@ var itemColumns = []string{
 //
 // Numbers follow one rule (parseNumber): a plain decimal with an optional
 // sign, fraction and exponent; underscores, hexadecimal, inf and nan are
-// refused. Whole-number columns (lead_time, current_*) take such a number
+// refused. Whole-number columns (lead_time, review_period, current_*) take such a number
 // when it is whole ("2", "2.0", "2e0") and below 2^53 in magnitude. unmet
 // and policy ignore letter case.
 func ReadItems(r io.Reader, name string, keep func(index int) bool) ([]Item, error) {
