@@ -159,13 +159,18 @@ type lostCycle struct {
 	kd    []int     // stored demands, increasing
 	fold  []float64 // fold[a]: mass of the demands below a that are not stored
 	floor float64
-	base  []int32     // quantity by age 0..lmax at the current phase
-	pre   []int64     // pre[a] = sum of base[age], age < a
-	cur   [][]float64 // law of on hand at the start of the phase, by m
-	nxt   [][]float64
-	u     [][]float64 // law of on hand after the arrival, by next m
-	used  []bool
-	uused []bool
+	// orders are the cycle's orders of positive size with their ages at
+	// the current phase (those older than lmax dropped: they have arrived
+	// in every group); whether one is still out depends on the group m.
+	orders []ageQty
+	tlist  []int       // the cut-offs T with P(T) > 0
+	act    []int       // the groups m of cur in use
+	uact   []int       // the groups of u in use
+	cur    [][]float64 // law of on hand at the start of the phase, by m
+	nxt    [][]float64
+	u      [][]float64 // law of on hand after the arrival, by next m
+	used   []bool
+	uused  []bool
 	// lo, hi bound the support of cur[m] (and of u[m] while it is built).
 	lo, hi, ulo, uhi []int
 }
@@ -189,12 +194,21 @@ func newLostCycle(c *lostTimed, dtab lossTable, opt Options) *lostCycle {
 		}
 	}
 	g := c.lmax + 2
-	lc.base = make([]int32, c.lmax+1)
-	lc.pre = make([]int64, c.lmax+2)
+	for T, pt := range c.pT {
+		if pt > 0 {
+			lc.tlist = append(lc.tlist, T)
+		}
+	}
 	lc.cur, lc.nxt, lc.u = make([][]float64, g), make([][]float64, g), make([][]float64, g)
 	lc.used, lc.uused = make([]bool, g), make([]bool, g)
 	lc.lo, lc.hi, lc.ulo, lc.uhi = make([]int, g), make([]int, g), make([]int, g), make([]int, g)
 	return lc
+}
+
+// ageQty is an order: its age in periods and its size.
+type ageQty struct {
+	age int
+	q   int32
 }
 
 // vec returns the zeroed vector m of vs, allocating it on first use.
@@ -207,57 +221,54 @@ func (lc *lostCycle) vec(vs [][]float64, m int) []float64 {
 
 // run carries state z through one cycle. It returns the order of the
 // review and adds the cycle's sums to cyc (on hand, lost, served,
-// stockout); at the end lc.cur[m] (m = 0..lmax+1, support lo[m]..hi[m])
+// stockout); at the end lc.cur[m] for m in lc.act (support lo[m]..hi[m])
 // holds the law of on hand at the next review with every order of age >=
-// m arrived, and lc.base the orders by age at that review. With levels
+// m arrived, and lc.orders the orders with their ages at that review (see
+// next). The caller clears those vectors and their used flags. With levels
 // non-nil it adds the law of on hand at the end of each period to it.
 func (lc *lostCycle) run(z []int32, p Policy, cyc []float64, levels []float64) int {
 	c, dtab := lc.c, lc.dtab
 	lmax, R := c.lmax, c.R
-	clear(lc.base)
 	var ip int
 	for _, v := range z {
 		ip += int(v)
 	}
-	for j := 1; j < c.k; j++ {
-		lc.base[j*R] = z[j]
-	}
 	q := p.Order(ip)
-	lc.base[0] = int32(q)
-	for m := range lc.cur {
-		lc.used[m] = false
+	lc.orders = lc.orders[:0]
+	if q > 0 {
+		lc.orders = append(lc.orders, ageQty{0, int32(q)})
+	}
+	for j := 1; j < c.k; j++ {
+		if z[j] > 0 {
+			lc.orders = append(lc.orders, ageQty{j * R, z[j]})
+		}
 	}
 	m0 := lmax + 1
 	v := lc.vec(lc.cur, m0)
 	v[z[0]] = 1
 	lc.used[m0], lc.lo[m0], lc.hi[m0] = true, int(z[0]), int(z[0])
-	for f := range R {
-		if f > 0 {
-			lc.base[0] = 0
-		}
-		for a := range lmax + 1 {
-			lc.pre[a+1] = lc.pre[a] + int64(lc.base[a])
-		}
+	lc.act = append(lc.act[:0], m0)
+	for range R {
 		// Arrivals: from group m with cut-off T, the orders of ages T..m-1.
 		uused := lc.uused
-		clear(uused)
-		for m := range lc.cur {
-			if !lc.used[m] {
-				continue
-			}
+		lc.uact = lc.uact[:0]
+		for _, m := range lc.act {
 			src := lc.cur[m]
-			for T, pt := range c.pT {
-				if pt == 0 {
-					continue
-				}
+			for _, T := range lc.tlist {
+				pt := c.pT[T]
 				arr := 0
 				if T < m {
-					arr = int(lc.pre[min(m, lmax+1)] - lc.pre[T])
+					for _, o := range lc.orders {
+						if o.age >= T && o.age < m {
+							arr += int(o.q)
+						}
+					}
 				}
 				nm := min(min(m, T)+1, lmax+1)
 				dst := lc.vec(lc.u, nm)
 				if !uused[nm] {
 					uused[nm] = true
+					lc.uact = append(lc.uact, nm)
 					lc.ulo[nm], lc.uhi[nm] = lc.lo[m]+arr, lc.hi[m]+arr
 				} else {
 					lc.ulo[nm], lc.uhi[nm] = min(lc.ulo[nm], lc.lo[m]+arr), max(lc.uhi[nm], lc.hi[m]+arr)
@@ -273,10 +284,9 @@ func (lc *lostCycle) run(z []int32, p Policy, cyc []float64, levels []float64) i
 		}
 		// Demand: figures from the law after the arrival, then on hand at
 		// the end of the period.
-		for m, ok := range uused {
-			if !ok {
-				continue
-			}
+		lc.act = lc.act[:0]
+		for _, m := range lc.uact {
+			uused[m] = false
 			u := lc.u[m]
 			dst := lc.vec(lc.nxt, m)
 			hi := 0
@@ -316,12 +326,39 @@ func (lc *lostCycle) run(z []int32, p Policy, cyc []float64, levels []float64) i
 			lc.nxt[m] = lc.cur[m]
 			lc.cur[m] = dst
 			lc.used[m], lc.lo[m], lc.hi[m] = true, 0, hi
+			lc.act = append(lc.act, m)
 		}
-		// Age every order by one period.
-		copy(lc.base[1:], lc.base[:lmax])
-		lc.base[0] = 0
+		// Age every order by one period; one older than lmax has arrived
+		// whatever the group.
+		n := 0
+		for _, o := range lc.orders {
+			if o.age++; o.age <= lmax {
+				lc.orders[n] = o
+				n++
+			}
+		}
+		lc.orders = lc.orders[:n]
 	}
 	return q
+}
+
+// next sets the components after the first of the review state that
+// follows group m at the end of a cycle (the orders still out, by age
+// R, 2R, ...) and returns what joins the on hand in the first: the order
+// of age lmax, which arrives in the next period for sure.
+func (lc *lostCycle) next(m int, next []int32) (extra int) {
+	clear(next[1:])
+	lmax, R, k := lc.c.lmax, lc.c.R, lc.c.k
+	for _, o := range lc.orders {
+		switch {
+		case o.age >= m: // arrived
+		case o.age == lmax:
+			extra += int(o.q)
+		case o.age%R == 0 && o.age/R < k:
+			next[o.age/R] = o.q
+		}
+	}
+	return extra
 }
 
 // lostTimedIndex maps review states to indices: the components after the
@@ -416,21 +453,9 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 		c.order = append(c.order, int32(q))
 		c.cyc = append(c.cyc, cyc[:]...)
 		stamp = stamp[:0]
-		for m := range lc.cur {
-			if !lc.used[m] {
-				continue
-			}
+		for _, m := range lc.act {
 			// The next review's state from the orders by age and m.
-			extra := int32(0)
-			if lmax >= 1 && lmax < m {
-				extra = lc.base[lmax]
-			}
-			for j := 1; j < k; j++ {
-				next[j] = 0
-				if a := j * R; a < m && a <= lmax {
-					next[j] = lc.base[a]
-				}
-			}
+			extra := lc.next(m, next)
 			off := ix.offset(next[1:])
 			v := lc.cur[m]
 			// New states are numbered in the order demand 0, 1, ... (on
@@ -442,7 +467,7 @@ func buildLostTimed(sys inventory.System, p Policy, top int, dtab lossTable, opt
 					continue
 				}
 				v[x] = 0
-				y := x + int(extra)
+				y := x + extra
 				s := ix.slots[off+y]
 				if s < 0 {
 					s = int32(len(c.tuples) / k)
@@ -623,11 +648,9 @@ func evaluateLostTimed(sys inventory.System, p Policy, opt Options, w *lostWork)
 			}
 			clear(tmp)
 			lc.run(c.tuples[i*c.k:(i+1)*c.k], p, cyc[:], tmp)
-			for m := range lc.cur {
-				if lc.used[m] {
-					clear(lc.cur[m][lc.lo[m] : lc.hi[m]+1])
-					lc.used[m] = false
-				}
+			for _, m := range lc.act {
+				clear(lc.cur[m][lc.lo[m] : lc.hi[m]+1])
+				lc.used[m] = false
 			}
 			for x, v := range tmp {
 				lv[x] += w * v / rf
