@@ -108,6 +108,7 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "out-decimal", Usage: "decimal mark of the results CSV: . or , (a decimal comma needs --out-delimiter ';' or tab)", Value: "."},
 			&cli.StringFlag{Name: "carry", Usage: "item columns to copy to the results, comma-separated (e.g. supplier,category); appended after the results columns"},
 			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
+			&cli.StringFlag{Name: "decisions", Usage: "decisions file of ergostock serve: each SKU's latest decision becomes its policy in use"},
 		}, append(receiptsFlags(), uncertaintyFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
@@ -261,6 +262,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 		return err
 	}
 	meta.Items, meta.ItemCount = digest, count
+	if err := applyDecisionsFile(c.String("decisions"), items, stderr); err != nil {
+		return err
+	}
 	var carried []string
 	if len(carry) > 0 {
 		if carried, err = batch.Carry(items, itemsPath, carry); err != nil {

@@ -50,6 +50,7 @@ func evaluateCommand() *cli.Command {
 			if err != nil {
 				return engineErr(c, err)
 			}
+			keepLevels(c.Context, e)
 			if c.Bool("json") {
 				return writeJSON(c.App.Writer, evaluationJSON(sys, e))
 			}

@@ -283,7 +283,7 @@ func policyFromFlags(c *cli.Context, mode inventory.Mode) (policies.Policy, erro
 
 // evalOptions reads the evaluation options shared by the commands.
 func evalOptions(c *cli.Context) policies.Options {
-	return policies.Options{MaxStates: c.Int("max-states")}
+	return policies.Options{MaxStates: c.Int("max-states"), Context: c.Context, Levels: levelsWanted(c.Context)}
 }
 
 // writeJSON prints v as indented JSON followed by a newline.

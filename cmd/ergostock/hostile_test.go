@@ -501,6 +501,34 @@ func hostileCases() []hostileCase {
 		}
 		return strings.Join(cells, ",") + "\n"
 	}
+	// serve and batch --decisions: every refusal comes before the server
+	// listens.
+	results := strings.Join(batch.Header(), ",") + "\n"
+	for i, h := range batch.Header() { // one failed row for GOOD
+		if i > 0 {
+			results += ","
+		}
+		switch h {
+		case "sku":
+			results += "GOOD"
+		case "error":
+			results += "failed on purpose"
+		}
+	}
+	results += "\n"
+	decHeader := strings.Join(batch.DecisionHeader(), ",") + "\n"
+	serveFiles := map[string]string{"items.csv": itemsHeader + goodItem, "r.csv": results}
+	withFiles := func(extra map[string]string) map[string]string {
+		m := map[string]string{}
+		for k, v := range serveFiles {
+			m[k] = v
+		}
+		for k, v := range extra {
+			m[k] = v
+		}
+		return m
+	}
+	serveArgs := []string{"--results", "{dir}/r.csv", "--items", "{dir}/items.csv", "--addr", "127.0.0.1:0"}
 	// Receipts for fit and batch (issue 12): refusals name the file and
 	// line or the flag; a file with some usable rows plans (exit 0 or 3).
 	const okReceipts = "sku,supplier,order_date,receipt_date\nA,S,2025-03-03,2025-03-12\nA,S,2025-03-10,2025-03-24\n"
@@ -574,6 +602,45 @@ func hostileCases() []hostileCase {
 	} {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"merge"}, c.args...), code: c.code, names: c.want})
 	}
+	for _, c := range []struct {
+		name  string
+		files map[string]string
+		args  []string
+		code  int
+		want  []string
+	}{
+		{"serve-addr-remote", serveFiles, []string{"--results", "{dir}/r.csv", "--items", "{dir}/items.csv", "--addr", "0.0.0.0:0"}, 2, []string{"--addr", "--allow-remote"}},
+		{"serve-addr-bad", serveFiles, []string{"--results", "{dir}/r.csv", "--items", "{dir}/items.csv", "--addr", "8080"}, 2, []string{"--addr 8080"}},
+		{"serve-timeout-0", serveFiles, append(append([]string(nil), serveArgs...), "--timeout", "0s"), 2, []string{"--timeout"}},
+		{"serve-results-missing", serveFiles, []string{"--results", "{dir}/none.csv", "--items", "{dir}/items.csv", "--addr", "127.0.0.1:0"}, 1, []string{"none.csv"}},
+		{"serve-results-foreign", withFiles(map[string]string{"r.csv": "a,b\n1,2\n"}), serveArgs, 1, []string{"r.csv"}},
+		{"serve-items-missing", serveFiles, []string{"--results", "{dir}/r.csv", "--items", "{dir}/none.csv", "--addr", "127.0.0.1:0"}, 1, []string{"none.csv"}},
+		{"serve-decisions-same", serveFiles, append(append([]string(nil), serveArgs...), "--decisions", "{dir}/items.csv"), 2, []string{"--decisions"}},
+		{"serve-decisions-foreign", withFiles(map[string]string{"d.csv": "when,what\n1,2\n"}), append(append([]string(nil), serveArgs...), "--decisions", "{dir}/d.csv"), 1, []string{"d.csv:1"}},
+		{"serve-decisions-version-gap", withFiles(map[string]string{"d.csv": decHeader + "GOOD,2,keep,base-stock,,20,,,\n"}), append(append([]string(nil), serveArgs...), "--decisions", "{dir}/d.csv"), 1, []string{"d.csv:2", "version"}},
+		{"serve-nothing", nil, []string{}, 2, []string{"--results"}},
+	} {
+		add(hostileCase{name: c.name, files: c.files, args: append([]string{"serve"}, c.args...), code: c.code, names: c.want})
+	}
+	for _, c := range []struct {
+		name, decisions string
+		want            []string
+	}{
+		{"batch-decisions-policy-bad", decHeader + "GOOD,1,override,s-S,30,20,,,\n", []string{"GOOD", "reorder point 30"}},
+		{"batch-decisions-kind-bad", decHeader + "GOOD,1,maybe,base-stock,,20,,,\n", []string{"d.csv:2", "decision"}},
+		{"batch-decisions-level-bad", decHeader + "GOOD,1,keep,base-stock,,2.5,,,\n", []string{"d.csv:2", "order_up_to"}},
+		{"batch-decisions-time-bad", decHeader + "GOOD,1,keep,base-stock,,20,,,yesterday\n", []string{"d.csv:2", "decided_at"}},
+	} {
+		code := 1
+		if c.name == "batch-decisions-policy-bad" {
+			code = 3 // the item fails, the run goes on
+		}
+		add(hostileCase{name: c.name, files: map[string]string{"items.csv": itemsHeader + goodItem, "d.csv": c.decisions},
+			args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--decisions", "{dir}/d.csv"}, code: code, names: c.want})
+	}
+	add(hostileCase{name: "batch-decisions-missing", files: map[string]string{"items.csv": itemsHeader + goodItem},
+		args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--decisions", "{dir}/none.csv"}, code: 1, names: []string{"--decisions", "none.csv"}})
+
 	for _, c := range []struct {
 		name  string
 		files map[string]string
@@ -659,6 +726,8 @@ func hostileCases() []hostileCase {
 	add(hostileCase{name: "batch-uncertainty-resamples-1", args: with(ubatch, "--resamples", "1"), files: uitems, code: 2, names: []string{"--resamples"}})
 	add(hostileCase{name: "batch-robust-confidence-alone", args: []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--floor-confidence", "0.8"}, files: uitems, code: 2, names: []string{"--floor-confidence"}})
 	add(hostileCase{name: "report-uncertainty-no-history", args: []string{"report", "--demand", "poisson:mean=3", "--holding-cost", "1", "--shortage-cost", "9", "--out", "{dir}/p.html", "--uncertainty"}, code: 2, names: []string{"--uncertainty", "--history"}})
+
+	cs = append(cs, networkHostileCases()...)
 	return cs
 }
 

@@ -7,6 +7,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -51,6 +52,8 @@ func newApp(stdin io.Reader, stdout, stderr io.Writer) *cli.App {
 			batchCommand(),
 			reportCommand(),
 			mergeCommand(),
+			serveCommand(),
+			networkCommand(),
 		},
 		OnUsageError: func(c *cli.Context, err error, isSubcommand bool) error {
 			return usageErr("%s (see --help)", flagMessage(nil, err))
@@ -93,6 +96,12 @@ func oneLineUsage(cmd *cli.Command) {
 
 // run executes the command line and returns the exit status.
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	return runContext(context.Background(), args, stdin, stdout, stderr)
+}
+
+// runContext is run with a context that the commands pass on to the
+// engine (serve runs evaluate and optimize through it, with a deadline).
+func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	app := newApp(stdin, stdout, stderr)
 	if len(args) > 1 && !strings.HasPrefix(args[1], "-") && args[1] != "help" && app.Command(args[1]) == nil {
 		fmt.Fprintf(stderr, "ergostock: unknown command %q: want one of %s (see --help)\n", args[1], commandNames(app))
@@ -107,7 +116,7 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			}
 		}
 	}
-	err := app.Run(args)
+	err := app.RunContext(ctx, args)
 	if err == nil {
 		return 0
 	}

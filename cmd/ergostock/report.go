@@ -56,6 +56,11 @@ add the items ranked by regret. The --items, --history and
 line batch writes first); a mismatch is refused, naming both. Without
 --period the record's period is used.
 
+A network: --network FILE (the locations file of ergostock network) gives
+the tree of the centre and its stores with the cheapest levels and their
+fill rates, beside the same network planned one location at a time
+(ergostock network report has the network command's other flags).
+
 Exit status: 0 when the page was written; 1 when an input cannot be used
 (nothing is written); 2 for a usage error.`
 
@@ -87,6 +92,7 @@ func reportCommand() *cli.Command {
 		&cli.StringFlag{Name: "items", Usage: "items file of the batch, for the exchange curve (batch page)"},
 		&cli.StringFlag{Name: "targets", Usage: "common fill-rate targets of the exchange curve, comma-separated", Value: "0.9,0.95,0.98,0.99,0.995,0.999"},
 		&cli.IntFlag{Name: "workers", Usage: "searches run at once for the exchange curve (default: all cores)", Value: runtime.GOMAXPROCS(0), DefaultText: "all cores"},
+		&cli.StringFlag{Name: "network", Usage: "network file (see ergostock network --help): the page of a centre and its stores, planned as a network against each location alone"},
 		&cli.StringFlag{Name: "out", Usage: "HTML file to write", Required: true},
 	)
 	// One-SKU page with --history --sku: the resampling charts; --seed is
@@ -112,7 +118,9 @@ func reportAction(c *cli.Context) error {
 	}
 	var page interface{ WriteHTML(io.Writer) error }
 	var err error
-	if c.IsSet("results") {
+	if c.IsSet("network") {
+		page, err = reportNetworkPage(c)
+	} else if c.IsSet("results") {
 		page, err = reportBatch(c)
 	} else {
 		page, err = reportSKU(c)

@@ -1,0 +1,34 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+
+	"ergostock/policies/batch"
+)
+
+// applyDecisionsFile makes the latest decision of each SKU in the
+// decisions file at path (none when path is "") the policy in use of its
+// items, before the batch plans them (see batch.ApplyDecisions).
+func applyDecisionsFile(path string, items []batch.Item, stderr io.Writer) error {
+	if path == "" {
+		return nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return fmt.Errorf("--decisions: %w", err)
+	}
+	defer f.Close()
+	ds, err := batch.ReadDecisions(f, path)
+	if err != nil {
+		return err
+	}
+	n, unmatched := batch.ApplyDecisions(items, ds, path)
+	msg := fmt.Sprintf("ergostock: %s: %d items take their latest decision as the policy in use", path, n)
+	if len(unmatched) > 0 {
+		msg += fmt.Sprintf("; %d SKUs of the decisions are not in the items file (first %q)", len(unmatched), unmatched[0])
+	}
+	fmt.Fprintln(stderr, msg)
+	return nil
+}

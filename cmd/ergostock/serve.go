@@ -1,0 +1,256 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"net"
+	"net/http"
+	"os"
+	"os/signal"
+	"strings"
+	"syscall"
+	"time"
+
+	"github.com/urfave/cli/v2"
+
+	"ergostock/inventory/history"
+	"ergostock/policies"
+	"ergostock/policies/batch"
+	"ergostock/policies/report"
+
+	"ergostock/cmd/ergostock/whatif"
+)
+
+const serveDescription = `Serves a page on this machine for reviewing the items of a batch run: the
+items as a list to sort and filter (by saving, fill-rate gap, pattern and,
+when the results have a regret column, regret); for one item its history,
+fitted demand law, current and recommended levels; inputs for the levels,
+lead time, costs and fill-rate floor, each change evaluated exactly on the
+server; a button for the cheapest levels under the inputs on screen; and a
+record of the decision (accept the recommendation, keep the levels in use,
+or override them with a note).
+
+Decisions go to a CSV log beside the results (--decisions, default the
+results file name with "-decisions" before its extension), rewritten
+atomically under a lock at each decision; an older decision is never lost,
+and a decision based on a version that is no longer the latest (a second
+tab) is refused. ergostock batch --decisions FILE takes the latest decision
+of each SKU as its policy in use.
+
+The server listens on a loopback address only (127.0.0.1:8080 by default),
+with no accounts: anyone on this machine can use it. --allow-remote lets it
+listen elsewhere; do that only on a network you trust. The figures are the
+model's: they assume demand independent from period to period with the
+fitted law and the costs given. For critical items (medicines, safety
+spares) follow local practice and regulation.
+
+The JSON API (for scripts too): POST /api/evaluate and /api/optimize take
+an object with the flags of evaluate and optimize, "-" written as "_"
+({"demand": "poisson:mean=4", "holding_cost": 1, "shortage_cost": 9,
+"order_up_to": 7}), and answer what evaluate --json and optimize --json
+print; a refused input gets status 400 or 422 and {"error": "..."} with the
+command line's message. SIGINT or SIGTERM stops the server cleanly.`
+
+func serveCommand() *cli.Command {
+	return &cli.Command{
+		Name:        "serve",
+		Usage:       "a local what-if page over a batch run: try levels with exact figures, record decisions",
+		UsageText:   "ergostock serve --results FILE --items FILE --history FILE [--addr 127.0.0.1:8080] [--decisions FILE] [--allow-remote] [--timeout D]",
+		Description: serveDescription,
+		Flags: []cli.Flag{
+			&cli.StringFlag{Name: "results", Usage: "results file of ergostock batch", Required: true},
+			&cli.StringFlag{Name: "items", Usage: "the items file the batch planned", Required: true},
+			&cli.StringFlag{Name: "history", Usage: "the demand history the batch fitted (optional when every item has a demand column)"},
+			&cli.StringFlag{Name: "addr", Usage: "address to listen on (host:port; port 0 picks a free one)", Value: "127.0.0.1:8080"},
+			&cli.StringFlag{Name: "decisions", Usage: "decisions file (CSV log) to keep; default: the results name with -decisions"},
+			&cli.BoolFlag{Name: "allow-remote", Usage: "allow an address other than loopback (no accounts: anyone who reaches it can use it)"},
+			&cli.DurationFlag{Name: "timeout", Usage: "budget of one evaluation or search", Value: whatif.DefaultTimeout},
+		},
+		Action: runServe,
+	}
+}
+
+// defaultDecisions is the results path with "-decisions" before its
+// extension: out/results.csv -> out/results-decisions.csv.
+func defaultDecisions(results string) string {
+	ext := ""
+	base := results
+	if i := strings.LastIndexByte(results, '.'); i > strings.LastIndexAny(results, `/\`) && i > 0 {
+		base, ext = results[:i], results[i:]
+	}
+	return base + "-decisions" + ext
+}
+
+// serveConfig reads the files of serve and builds the server's
+// configuration.
+func serveConfig(ctx context.Context, resultsPath, itemsPath, histPath, decisionsPath string) (whatif.Config, error) {
+	var cfg whatif.Config
+	raw, err := os.ReadFile(resultsPath)
+	if err != nil {
+		return cfg, fmt.Errorf("--results: %w", err)
+	}
+	res, err := report.ReadResultsFile(bytes.NewReader(raw), resultsPath)
+	if err != nil {
+		return cfg, err
+	}
+	regret, _, err := whatif.ReadRegret(bytes.NewReader(raw), resultsPath)
+	if err != nil {
+		return cfg, err
+	}
+	items, _, err := readItemsFile(ctx, itemsPath, batch.Shard{})
+	if err != nil {
+		return cfg, err
+	}
+	period := "week"
+	if res.Meta != nil && res.Meta.Period != "" {
+		period = res.Meta.Period
+	}
+	var h *history.History
+	if histPath != "" {
+		p, err := history.ParsePeriod(period)
+		if err != nil {
+			return cfg, fmt.Errorf("--results %s: %w", resultsPath, err)
+		}
+		if h, _, err = readHistoryFile(ctx, histPath, p); err != nil {
+			return cfg, err
+		}
+	}
+	if decisionsPath == "" {
+		decisionsPath = defaultDecisions(resultsPath)
+	}
+	for _, in := range []struct{ flag, path string }{{"results", resultsPath}, {"items", itemsPath}, {"history", histPath}} {
+		if in.path != "" && sameFile(in.path, decisionsPath) {
+			return cfg, usageErr("--decisions %s: it is the --%s file; choose another decisions file", decisionsPath, in.flag)
+		}
+	}
+	cfg = whatif.Config{
+		Engine:    cliEngine{},
+		Catalogue: whatif.NewCatalogue(res.Rows, regret, items, h, period),
+		Decisions: decisionsPath,
+	}
+	return cfg, nil
+}
+
+func runServe(c *cli.Context) error {
+	stderr := c.App.ErrWriter
+	timeout := c.Duration("timeout")
+	if timeout <= 0 {
+		return usageErr("--timeout %v: want a duration > 0, e.g. 20s", timeout)
+	}
+	addr := c.String("addr")
+	host, _, err := net.SplitHostPort(addr)
+	if err != nil {
+		return usageErr("--addr %s: want host:port, e.g. 127.0.0.1:8080", addr)
+	}
+	if !loopbackHost(host) && !c.Bool("allow-remote") {
+		return usageErr("--addr %s: not a loopback address; the page has no accounts, so give --allow-remote to listen there", addr)
+	}
+	ctx, stop := signal.NotifyContext(c.Context, os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	cfg, err := serveConfig(ctx, c.String("results"), c.String("items"), c.String("history"), c.String("decisions"))
+	if err != nil {
+		return err
+	}
+	cfg.Timeout, cfg.Log, cfg.AllowRemote = timeout, stderr, c.Bool("allow-remote")
+	srv, err := whatif.New(cfg)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stderr, "ergostock serve: evaluating the levels in use of %d items...\n", cfg.Catalogue.Len())
+	srv.EvaluateCurrent(ctx, 0)
+	ln, err := net.Listen("tcp", addr)
+	if err != nil {
+		return fmt.Errorf("--addr %s: %w", addr, err)
+	}
+	hs := &http.Server{Handler: srv, ReadHeaderTimeout: 10 * time.Second, ReadTimeout: 30 * time.Second,
+		WriteTimeout: timeout + 30*time.Second, IdleTimeout: 2 * time.Minute}
+	fmt.Fprintf(stderr, "ergostock serve: http://%s/ (decisions in %s; Ctrl-C stops)\n", ln.Addr(), cfg.Decisions)
+	done := make(chan error, 1)
+	go func() { done <- hs.Serve(ln) }()
+	select {
+	case err := <-done:
+		return fmt.Errorf("serve: %w", err)
+	case <-ctx.Done():
+	}
+	// Let requests in flight finish: a decision being written is
+	// committed (or left out whole) before the process exits.
+	sctx, cancel := context.WithTimeout(context.Background(), timeout+5*time.Second)
+	defer cancel()
+	if err := hs.Shutdown(sctx); err != nil {
+		return fmt.Errorf("serve: shutting down: %w", err)
+	}
+	if err := <-done; err != nil && !errors.Is(err, http.ErrServerClosed) {
+		return fmt.Errorf("serve: %w", err)
+	}
+	fmt.Fprintf(stderr, "ergostock serve: stopped; decisions in %s\n", cfg.Decisions)
+	return nil
+}
+
+// loopbackHost reports whether host is localhost or a loopback address.
+func loopbackHost(host string) bool {
+	if strings.EqualFold(host, "localhost") {
+		return true
+	}
+	ip := net.ParseIP(host)
+	return ip != nil && ip.IsLoopback()
+}
+
+// cliEngine answers the server's requests by running the evaluate and
+// optimize commands themselves, so the API's answers and messages are the
+// command line's.
+type cliEngine struct{}
+
+func (cliEngine) Run(ctx context.Context, command string, args []string, levels bool) (*whatif.Answer, error) {
+	if command != "evaluate" && command != "optimize" {
+		return nil, fmt.Errorf("engine: unknown command %q", command)
+	}
+	var sink *levelsSink
+	if levels {
+		sink = &levelsSink{}
+		ctx = context.WithValue(ctx, levelsKey{}, sink)
+	}
+	argv := append([]string{"ergostock", command}, args...)
+	argv = append(argv, "--json")
+	var out, errb bytes.Buffer
+	code := runContext(ctx, argv, strings.NewReader(""), &out, &errb)
+	if code != 0 {
+		msg := strings.TrimPrefix(strings.TrimSpace(errb.String()), "ergostock: ")
+		if i := strings.IndexByte(msg, '\n'); i >= 0 {
+			msg = msg[:i]
+		}
+		return nil, &whatif.Refusal{Status: code, Message: msg}
+	}
+	a := &whatif.Answer{JSON: out.Bytes()}
+	if sink != nil {
+		a.Levels = sink.levels
+	}
+	return a, nil
+}
+
+// levelsKey is the context key of a levelsSink: the server asks evaluate
+// for the stationary stock-level law through it (Options.Levels), without
+// a flag of its own or a change to evaluate's output.
+type levelsKey struct{}
+
+type levelsSink struct{ levels *policies.LevelDistribution }
+
+// levelsWanted reports whether ctx asks evaluate for the level law.
+func levelsWanted(ctx context.Context) bool {
+	if ctx == nil {
+		return false
+	}
+	_, ok := ctx.Value(levelsKey{}).(*levelsSink)
+	return ok
+}
+
+// keepLevels hands the level law of e to the sink in ctx, if any.
+func keepLevels(ctx context.Context, e *policies.Evaluation) {
+	if ctx == nil {
+		return
+	}
+	if s, ok := ctx.Value(levelsKey{}).(*levelsSink); ok {
+		s.levels = e.Levels
+	}
+}

@@ -1,0 +1,254 @@
+package batch
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+	"time"
+
+	"ergostock/inventory"
+	"ergostock/policies"
+)
+
+// A decisions file records what a planner decided about items, one
+// decision a line, oldest first: the what-if page of `ergostock serve`
+// appends to it and `ergostock batch --decisions` takes the latest decision
+// of each SKU as the item's current policy. It is a log: a later decision
+// for a SKU supersedes an earlier one, which stays in the file.
+//
+// Columns (header required, in this order):
+//
+//	sku, version, decision, policy, reorder_point, order_up_to,
+//	order_multiple, note, decided_at
+//
+// version counts the decisions of the SKU (1 for its first); decision is
+// accept (the recommended levels), keep (the levels in use) or override
+// (levels the planner chose); policy and the level columns give the
+// levels the decision settles on, as in the results file; note is free
+// text; decided_at is an RFC 3339 time in UTC.
+
+// DecisionKind says what a planner did with a recommendation.
+type DecisionKind string
+
+// The decisions.
+const (
+	Accept   DecisionKind = "accept"   // take the recommended levels
+	Keep     DecisionKind = "keep"     // keep the levels in use
+	Override DecisionKind = "override" // levels of the planner's choosing
+)
+
+// ParseDecisionKind reads a decision name, ignoring letter case.
+func ParseDecisionKind(s string) (DecisionKind, bool) {
+	for _, k := range []DecisionKind{Accept, Keep, Override} {
+		if strings.EqualFold(strings.TrimSpace(s), string(k)) {
+			return k, true
+		}
+	}
+	return "", false
+}
+
+// Decision is one line of a decisions file.
+type Decision struct {
+	Line    int // in the file; 0 for a decision not read from one
+	SKU     string
+	Version int
+	Kind    DecisionKind
+	Policy  policies.Policy // the levels the decision settles on
+	Note    string
+	At      time.Time
+}
+
+// DecisionHeader returns the column names of a decisions file.
+func DecisionHeader() []string {
+	return []string{"sku", "version", "decision", "policy", "reorder_point", "order_up_to",
+		"order_multiple", "note", "decided_at"}
+}
+
+// WriteDecisions writes the header and the decisions ds as CSV.
+func WriteDecisions(w io.Writer, ds []Decision) error {
+	cw := csv.NewWriter(w)
+	if err := cw.Write(DecisionHeader()); err != nil {
+		return err
+	}
+	for _, d := range ds {
+		s, S, q := levelCells(&d.Policy)
+		rec := []string{Guard(d.SKU), strconv.Itoa(d.Version), string(d.Kind), string(d.Policy.Kind),
+			s, S, q, Guard(d.Note), d.At.UTC().Format(time.RFC3339)}
+		if err := cw.Write(rec); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// ReadDecisions reads a decisions file from r; name is the file name used
+// in errors. An empty input has no decisions. Errors are one line naming
+// the file, the line and the column (*LineError). The versions of a SKU
+// must count up from 1 in file order.
+func ReadDecisions(r io.Reader, name string) ([]Decision, error) {
+	cr := csv.NewReader(r)
+	cr.FieldsPerRecord = -1
+	header, err := cr.Read()
+	if err == io.EOF {
+		return nil, nil
+	}
+	if err != nil {
+		return nil, csvErr(name, 1, err)
+	}
+	want := DecisionHeader()
+	if len(header) > 0 {
+		header[0] = strings.TrimPrefix(header[0], "\ufeff")
+	}
+	if len(header) != len(want) {
+		return nil, &LineError{File: name, Line: 1, Err: fmt.Errorf("header has %d columns: want %s", len(header), strings.Join(want, ","))}
+	}
+	for i, h := range header {
+		if strings.ToLower(strings.TrimSpace(h)) != want[i] {
+			return nil, &LineError{File: name, Line: 1, Err: fmt.Errorf("column %d is %q: want %q (header %s)", i+1, h, want[i], strings.Join(want, ","))}
+		}
+	}
+	var ds []Decision
+	last := map[string]int{}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			return ds, nil
+		}
+		line, _ := cr.FieldPos(0)
+		if err != nil {
+			return nil, csvErr(name, line, err)
+		}
+		d, err := parseDecision(rec, len(want))
+		if err != nil {
+			return nil, &LineError{File: name, Line: line, Err: err}
+		}
+		if d.Version != last[d.SKU]+1 {
+			return nil, &LineError{File: name, Line: line, Err: &inventory.FieldError{Field: "version", Value: rec[1],
+				Want: fmt.Sprintf("%d, the next version of sku %q", last[d.SKU]+1, d.SKU)}}
+		}
+		last[d.SKU] = d.Version
+		d.Line = line
+		ds = append(ds, d)
+	}
+}
+
+func parseDecision(rec []string, n int) (Decision, error) {
+	var d Decision
+	if len(rec) != n {
+		return d, fmt.Errorf("%d fields: want %d", len(rec), n)
+	}
+	d.SKU = Unguard(strings.TrimSpace(rec[0]))
+	if d.SKU == "" {
+		return d, &inventory.FieldError{Field: "sku", Value: rec[0], Want: "a SKU"}
+	}
+	v, err := strconv.Atoi(strings.TrimSpace(rec[1]))
+	if err != nil || v < 1 {
+		return d, &inventory.FieldError{Field: "version", Value: rec[1], Want: "a whole number >= 1"}
+	}
+	d.Version = v
+	k, ok := ParseDecisionKind(rec[2])
+	if !ok {
+		return d, &inventory.FieldError{Field: "decision", Value: rec[2], Want: "accept, keep or override"}
+	}
+	d.Kind = k
+	kind, ok := parseKind(strings.TrimSpace(rec[3]))
+	if !ok {
+		return d, &inventory.FieldError{Field: "policy", Value: rec[3], Want: "base-stock, s-S or s-nQ"}
+	}
+	p := policies.Policy{Kind: kind}
+	for i, c := range []struct {
+		col  string
+		dst  *int
+		need bool
+	}{
+		{"reorder_point", &p.ReorderPoint, kind != policies.BaseStock},
+		{"order_up_to", &p.OrderUpTo, kind != policies.SNQ},
+		{"order_multiple", &p.OrderMultiple, kind == policies.SNQ},
+	} {
+		cell := strings.TrimSpace(rec[4+i])
+		if cell == "" {
+			if c.need {
+				return d, &inventory.FieldError{Field: c.col, Value: cell, Want: "a whole number for a " + string(kind) + " policy"}
+			}
+			continue
+		}
+		if !c.need {
+			return d, &inventory.FieldError{Field: c.col, Value: cell, Want: "an empty cell for a " + string(kind) + " policy"}
+		}
+		n, big, ok := parseWhole(cell)
+		if !ok {
+			want := "a whole number"
+			if big {
+				want = fmt.Sprintf("a whole number below %d (2^53) in magnitude", maxWhole)
+			}
+			return d, &inventory.FieldError{Field: c.col, Value: cell, Want: want}
+		}
+		*c.dst = n
+	}
+	d.Policy = p
+	d.Note = Unguard(rec[7])
+	if t := strings.TrimSpace(rec[8]); t != "" {
+		at, err := time.Parse(time.RFC3339, t)
+		if err != nil {
+			return d, &inventory.FieldError{Field: "decided_at", Value: t, Want: "an RFC 3339 time such as 2026-12-02T15:04:05Z"}
+		}
+		d.At = at
+	}
+	return d, nil
+}
+
+// LatestDecisions returns the last decision of every SKU in ds.
+func LatestDecisions(ds []Decision) map[string]Decision {
+	m := make(map[string]Decision, len(ds))
+	for _, d := range ds {
+		m[d.SKU] = d
+	}
+	return m
+}
+
+// ApplyDecisions makes the latest decision of each SKU the current policy
+// of its items (file is the decisions file's name, for errors): an
+// accepted recommendation, a kept policy and an override alike set
+// Item.Current to the decision's levels. Items that already failed are
+// left alone. A decision whose levels do not suit the item's mode fails
+// that item with a one-line error naming the decisions file and line. It
+// returns how many items took a decision and the SKUs of decisions that
+// match no item, sorted by first appearance.
+func ApplyDecisions(items []Item, ds []Decision, file string) (applied int, unmatched []string) {
+	latest := LatestDecisions(ds)
+	used := map[string]bool{}
+	for i := range items {
+		it := &items[i]
+		d, ok := latest[it.SKU]
+		if !ok {
+			continue
+		}
+		used[it.SKU] = true
+		if it.Err != nil {
+			continue
+		}
+		p := d.Policy
+		if err := p.Validate(it.System.Mode); err != nil {
+			var fe *inventory.FieldError
+			if !errors.As(err, &fe) {
+				err = fmt.Errorf("policy %v: %w", p, err)
+			}
+			it.Err = &LineError{File: file, Line: d.Line, Err: err}
+			continue
+		}
+		it.Current = &p
+		applied++
+	}
+	seen := map[string]bool{}
+	for _, d := range ds {
+		if !used[d.SKU] && !seen[d.SKU] {
+			seen[d.SKU] = true
+			unmatched = append(unmatched, d.SKU)
+		}
+	}
+	return applied, unmatched
+}
