@@ -3,6 +3,7 @@ package inventory
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -31,6 +32,10 @@ const MaxReviewPeriod = 100_000
 // cut where its tail falls below LeadTimeNeglect) that a random lead time
 // may take: each value costs one lead-time demand table.
 const MaxLeadTimeSpan = 10_000
+
+// MaxLeadTimeWeights is the longest fixed lead time LeadTimeWeights
+// tabulates (the weights of a one-point law at it): 2^22 periods, 32 MiB.
+const MaxLeadTimeWeights = 1 << 22
 
 // LeadTimeNeglect is the tail mass at which a lead-time law of unbounded
 // support (poisson, negbin, normal, gamma) is cut: the mass beyond its
@@ -117,8 +122,15 @@ func (s System) FixedTiming() bool { return s.LeadTimeLaw == nil && s.Review() =
 // l = 0..len(w)-1 (a fixed lead time is a one-point law), cut where the
 // tail falls below LeadTimeNeglect with the rest placed on the last point;
 // neglected is the mass so moved.
+//
+// A fixed lead time longer than MaxLeadTimeWeights is refused (ErrLimit)
+// before anything is allocated: the weights are indexed by the lead time.
 func (s System) LeadTimeWeights() (w []float64, neglected float64, err error) {
 	if s.LeadTimeLaw == nil {
+		if s.LeadTime < 0 || s.LeadTime > MaxLeadTimeWeights {
+			return nil, 0, &FieldError{Field: "lead_time", Value: strconv.Itoa(s.LeadTime),
+				Want: "a lead time of at most " + strconv.Itoa(MaxLeadTimeWeights) + " periods with a review period above 1 (the lead-time demand is tabulated by the lead time; plan in longer periods)", Err: ErrLimit}
+		}
 		w = make([]float64, s.LeadTime+1)
 		w[s.LeadTime] = 1
 		return w, 0, nil
@@ -327,6 +339,7 @@ type mixture struct {
 	vari float64
 	negl float64
 	lo   int // the smallest number of periods
+	span int // the length of the table (mixtureSpan)
 	// A table of the law on 0..len(pmf)-1, where the tail of every
 	// component is below mixtureCacheEps: pmf, cdf[k] = P(X <= k) by
 	// prefix sums and tail[k] = P(X >= k) by suffix sums from the
@@ -355,18 +368,62 @@ func mixtureSpan(x *mixture) int {
 	return hi + 1
 }
 
-// tabulate fills the table of x (skipped when it would be too long).
-func (x *mixture) tabulate() {
-	hi := mixtureSpan(x) - 1
+// mixCache keeps what the mixtures of one demand law share (see
+// MixedDemands): the sums Sum(d, n), their bounds and their pmf tables,
+// by the number of periods n.
+type mixCache struct {
+	sums   map[int]Distribution
+	bounds map[int]int
+	tabs   map[int][]float64
+	// later holds the numbers of periods that the mixtures still to be
+	// built use: only their tables are kept; the others are written
+	// into scratch.
+	later   map[int]bool
+	scratch []float64
+}
+
+func newMixCache() *mixCache {
+	return &mixCache{sums: map[int]Distribution{}, bounds: map[int]int{}, tabs: map[int][]float64{}}
+}
+
+// mixCacheEntries caps the pmf tables a mixCache keeps (32 MiB).
+const mixCacheEntries = 1 << 22
+
+// tabulate fills the table of x (skipped when it would be too long); ns
+// are the numbers of periods of its components, whose pmf tables come
+// from mc when it holds one at least as long (nil: none kept). A table's
+// values do not depend on its length (componentPMF), so a shared one gives
+// the same numbers.
+func (x *mixture) tabulate(mc *mixCache, ns []int) {
+	hi := x.span - 1
 	if hi+1 > maxMixtureCache {
 		return
 	}
 	n := hi + 1
 	pmf := make([]float64, n)
-	comp := make([]float64, n)
+	keep := mc != nil && n*len(x.c) <= mixCacheEntries
+	var scratch []float64
+	if mc != nil {
+		scratch = mc.scratch
+		defer func() { mc.scratch = scratch }()
+	}
 	var top float64 // P(X >= n)
 	for i, c := range x.c {
-		componentPMF(c, comp)
+		var comp []float64
+		if t, ok := mc.tab(ns[i]); ok && len(t) >= n {
+			comp = t[:n]
+		} else {
+			if keep && mc.later[ns[i]] {
+				comp = make([]float64, n)
+				mc.tabs[ns[i]] = comp
+			} else {
+				if cap(scratch) < n {
+					scratch = make([]float64, n)
+				}
+				comp = scratch[:n]
+			}
+			componentPMF(c, comp)
+		}
 		for k, v := range comp {
 			pmf[k] += x.w[i] * v
 		}
@@ -385,6 +442,15 @@ func (x *mixture) tabulate() {
 	}
 	tail[0] = 1
 	x.pmf, x.cdf, x.tail = pmf, cdf, tail
+}
+
+// tab returns the table of n periods kept in mc (nil mc: none).
+func (mc *mixCache) tab(n int) ([]float64, bool) {
+	if mc == nil {
+		return nil, false
+	}
+	t, ok := mc.tabs[n]
+	return t, ok
 }
 
 // componentPMF writes P(C = k), k = 0..len(out)-1. A Poisson law is
@@ -427,9 +493,57 @@ func componentPMF(c Distribution, out []float64) {
 // period's demand is Y - MixedDemand(s, 0). With a fixed lead time L and
 // R = 1 it is the sum over L + extra periods.
 func MixedDemand(s System, extra int) (Distribution, error) {
-	lw, negl, err := s.LeadTimeWeights()
+	return mixedDemand(s, extra, nil)
+}
+
+// MixedDemands returns MixedDemand(s, e) for each e of extras, computing
+// each sum of demand over a number of periods once for all of them (the
+// laws of X_{V+f} and X_{V+f+1} share all but two of their components).
+func MixedDemands(s System, extras ...int) ([]Distribution, error) {
+	mc := newMixCache()
+	out := make([]Distribution, len(extras))
+	// The longest first, so that its tables serve the shorter ones.
+	order := make([]int, len(extras))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int { return extras[b] - extras[a] })
+	w, _, err := phaseWeights(s)
 	if err != nil {
 		return nil, err
+	}
+	for j, i := range order {
+		mc.later = map[int]bool{}
+		for _, k := range order[j+1:] {
+			for m, p := range w {
+				if p > 0 {
+					mc.later[m+extras[k]] = true
+				}
+			}
+		}
+		x, err := mixedDemand(s, extras[i], mc)
+		if err != nil {
+			return nil, err
+		}
+		out[i] = x
+	}
+	return out, nil
+}
+
+func mixedDemand(s System, extra int, mc *mixCache) (Distribution, error) {
+	w, negl, err := phaseWeights(s)
+	if err != nil {
+		return nil, err
+	}
+	return newMixture(s.Demand, w, extra, negl, mc)
+}
+
+// phaseWeights returns the law of M = L + phase of MixedDemand: the
+// lead-time law convolved with the uniform phase on 0..R-1.
+func phaseWeights(s System) ([]float64, float64, error) {
+	lw, negl, err := s.LeadTimeWeights()
+	if err != nil {
+		return nil, 0, err
 	}
 	r := s.Review()
 	// Convolve the lead-time law with the uniform phase on 0..r-1.
@@ -442,7 +556,7 @@ func MixedDemand(s System, extra int) (Distribution, error) {
 			w[l+f] += p / float64(r)
 		}
 	}
-	return NewMixture(s.Demand, w, extra, negl)
+	return w, negl, nil
 }
 
 // NewMixture returns the law of X_{m+extra}, m drawn with P(M = m) = w[m]
@@ -450,15 +564,33 @@ func MixedDemand(s System, extra int) (Distribution, error) {
 // mass already moved in w, added to the Neglected of the result. A weight
 // vector of one point gives that component itself.
 func NewMixture(d Distribution, w []float64, extra int, neglected float64) (Distribution, error) {
+	return newMixture(d, w, extra, neglected, nil)
+}
+
+// newMixture is NewMixture with the sums Sum(d, n) kept in sums (when not
+// nil) for the next mixture of the same demand.
+func newMixture(d Distribution, w []float64, extra int, neglected float64, mc *mixCache) (Distribution, error) {
 	mx := &mixture{negl: neglected, lo: -1}
+	var ns []int
 	for m, p := range w {
 		if p <= 0 {
 			continue
 		}
-		x, err := Sum(d, m+extra)
-		if err != nil {
-			return nil, err
+		var x Distribution
+		ok := false
+		if mc != nil {
+			x, ok = mc.sums[m+extra]
 		}
+		if !ok {
+			var err error
+			if x, err = Sum(d, m+extra); err != nil {
+				return nil, err
+			}
+			if mc != nil {
+				mc.sums[m+extra] = x
+			}
+		}
+		ns = append(ns, m+extra)
 		if mx.lo < 0 {
 			mx.lo = m + extra
 		}
@@ -479,11 +611,26 @@ func NewMixture(d Distribution, w []float64, extra int, neglected float64) (Dist
 		dm := x.Mean() - mx.mean
 		mx.vari += mx.w[i] * (x.Variance() + dm*dm)
 	}
-	if work := float64(len(mx.c)) * float64(mixtureSpan(mx)); work > maxMixtureWork {
-		return nil, &FieldError{Field: "lead_time", Value: "a law of " + strconv.Itoa(len(mx.c)) + " values",
-			Want: fmt.Sprintf("a lead-time law whose demand tables need at most 1e9 entries (%d values times %d units of demand; plan in longer periods or larger units)", len(mx.c), mixtureSpan(mx)), Err: ErrLimit}
+	hi := 0
+	for i, c := range mx.c {
+		b, ok := 0, false
+		if mc != nil {
+			b, ok = mc.bounds[ns[i]]
+		}
+		if !ok {
+			b = c.Bound(mixtureCacheEps)
+			if mc != nil {
+				mc.bounds[ns[i]] = b
+			}
+		}
+		hi = max(hi, b)
 	}
-	mx.tabulate()
+	mx.span = hi + 1
+	if work := float64(len(mx.c)) * float64(mx.span); work > maxMixtureWork {
+		return nil, &FieldError{Field: "lead_time", Value: "a law of " + strconv.Itoa(len(mx.c)) + " values",
+			Want: fmt.Sprintf("a lead-time law whose demand tables need at most 1e9 entries (%d values times %d units of demand; plan in longer periods or larger units)", len(mx.c), mx.span), Err: ErrLimit}
+	}
+	mx.tabulate(mc, ns)
 	return Mixture{mx}, nil
 }
 

@@ -112,9 +112,12 @@ type Evaluation struct {
 // period: the probability of an order at a review divided by R. Under
 // independent lead times (orders may cross) base-stock is exact (see
 // independentPipeline); other policies are refused with ErrNotExact. In
-// lost mode a lead-time law or R > 1 is refused with ErrNotExact: the
-// chain of on-hand and pipeline under Kaplan's arrival process is not
-// built. A one-point law and R = 1 give the fixed-lead-time figures.
+// lost mode a lead-time law (sequential deliveries) or R > 1 is evaluated
+// on the chain of on-hand and the orders outstanding by age, observed at
+// the reviews, with the transitions of a whole review cycle and the
+// figures averaged over its R periods (see lostTimed); independent lead
+// times are refused with ErrNotExact there. A one-point law and R = 1 give
+// the fixed-lead-time figures.
 //
 // Errors name the policy and, for inputs, are *inventory.FieldError values
 // naming the field; a chain larger than Options.MaxStates is refused with a
@@ -145,10 +148,7 @@ func Evaluate(sys inventory.System, p Policy, opt Options) (*Evaluation, error) 
 		err error
 	)
 	if sys.Mode == inventory.Lost {
-		if err := refuseLostTiming(sys); err != nil {
-			return nil, err
-		}
-		e, err = evaluateLost(sys, p, opt)
+		e, err = evaluateLostIn(sys, p, opt, nil)
 	} else {
 		e, err = evaluateBackorder(sys, p, opt)
 	}

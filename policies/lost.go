@@ -300,11 +300,18 @@ type LostMemoryError struct {
 	States   float64 // a lower bound on the reachable states: counted, or proven by lostProbe
 	Bytes    float64 // estimated memory of those states and their transitions
 	Size     *SizeError
+	// StateBytes, when not 0, is the memory of one state (else that of the
+	// fixed-lead-time chain with LeadTime, lostStateBytes).
+	StateBytes float64
 }
 
 func (e *LostMemoryError) Error() string {
+	b := e.StateBytes
+	if b == 0 {
+		b = lostStateBytes(e.LeadTime)
+	}
 	return fmt.Sprintf("lost-sales chain with lead time %d needs at least %.0f states of %.0f bytes each with their transitions, an estimated %s, above the memory limit of %s (lower the lead time or the order-up-to level)",
-		e.LeadTime, e.States, lostStateBytes(e.LeadTime), formatBytes(e.Bytes), formatBytes(lostMemoryLimit))
+		e.LeadTime, e.States, b, formatBytes(e.Bytes), formatBytes(lostMemoryLimit))
 }
 
 func (e *LostMemoryError) Unwrap() error { return e.Size }
@@ -981,6 +988,11 @@ func evaluateLost(sys inventory.System, p Policy, opt Options) (*Evaluation, err
 // evaluateLostIn is evaluateLost with the chain built in w (nil: a new
 // lostWork). The Evaluation keeps no reference to w.
 func evaluateLostIn(sys inventory.System, p Policy, opt Options, w *lostWork) (*Evaluation, error) {
+	if !sys.FixedTiming() {
+		// A lead-time law or reviews every R > 1 periods: the chain at
+		// reviews (see lostTimed).
+		return evaluateLostTimed(sys, p, opt, w)
+	}
 	dist := sys.Demand
 	mean := dist.Mean()
 	c, dtab, err := solveLost(dist, p, sys.LeadTime, opt, w)

@@ -97,7 +97,9 @@ type Optimum struct {
 // (for R-period reviews with a fixed lead time, see also Zipkin 2000,
 // section 6.7). Under independent lead times only base-stock is searched
 // (the fractile of the pipeline law, exact); other kinds are refused with
-// ErrNotExact, as is lost mode with a lead-time law or R > 1.
+// ErrNotExact, as is lost mode with independent lead times.
+// TestSearchCostConvexUnderTiming checks the convexity of G and the
+// monotone service on the search's own tables.
 //
 // Lost mode: searches that evaluate candidates on the exact chain (at most
 // MaxEvaluations of them, each once), starting from the backorder optimum
@@ -107,7 +109,14 @@ type Optimum struct {
 // Patience). s-S and s-nQ use a compass search: the result is a local
 // optimum (no cheaper policy among its eight unit neighbours), with no
 // global guarantee, because the lost-sales cost is not known to be convex.
-// Search.Guarantee says which case applies.
+// Search.Guarantee says which case applies. Under a lead-time law
+// (sequential deliveries) or a review period the candidates are evaluated
+// on the chain at reviews (see lostTimed) and the same searches run; the
+// base-stock bounds still hold (on hand at the end of a period is at least
+// the position after the last review whose orders have all arrived, less
+// the demand since, a law that does not depend on the position; on hand
+// before demand never exceeds S), so the base-stock scan keeps its
+// guarantee, and s-S and s-nQ stay local optima.
 //
 // Costs h <= 0 or b <= 0 are refused (no finite optimum, or none worth
 // finding); so are floors outside (0, 1), as *inventory.FieldError values
@@ -175,10 +184,13 @@ func Optimize(sys inventory.System, kind Kind, opt SearchOptions) (*Optimum, err
 		err error
 	)
 	if sys.Mode == inventory.Lost {
-		if err := refuseLostTiming(sys); err != nil {
+		if err := checkLostTiming(sys); err != nil {
 			return nil, err
 		}
 		o, err = optimizeLost(sys, kind, fl, opt)
+		if err == nil && !sys.FixedTiming() {
+			o.Search.Method += fmt.Sprintf("; each chain observed at reviews every %d period(s), with a cycle's transitions, under %s deliveries", sys.Review(), sys.Model())
+		}
 	} else {
 		o, err = optimizeBackorder(sys, kind, fl, opt)
 	}
@@ -223,6 +235,8 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 	if !sys.FixedTiming() {
 		sr.Method += fmt.Sprintf("; at reviews every %d period(s), with the lead-time demand mixed over the lead-time law and the review phase (%s deliveries)", sys.Review(), sys.Model())
 	}
+	// The final evaluation takes the search's lead-time laws from
+	// opt.Eval.Tables (see DemandTables): they are built once.
 	ev, err := Evaluate(sys, p, opt.Eval)
 	if err != nil {
 		return nil, fmt.Errorf("evaluating the optimum: %w", err)
@@ -239,8 +253,11 @@ func optimizeBackorder(sys inventory.System, kind Kind, fl floors, opt SearchOpt
 func checkCostScale(sys inventory.System) error {
 	n := float64(sys.LeadTime) + 1
 	if !sys.FixedTiming() {
-		if w, _, err := sys.LeadTimeWeights(); err == nil {
-			n = float64(len(w) + sys.Review())
+		n = float64(sys.LeadTime + sys.Review())
+		if sys.LeadTimeLaw != nil {
+			if w, _, err := sys.LeadTimeWeights(); err == nil {
+				n = float64(len(w) + sys.Review())
+			}
 		}
 	}
 	d := sys.Demand

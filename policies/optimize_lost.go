@@ -49,6 +49,10 @@ type lostSearch struct {
 	cacheKey string
 	evals    int
 	work     lostWork
+	// one is the model of one period's demand (its kernel D) for the lower
+	// bound of lostLower: the search's model has the demand between
+	// reviews as its kernel when R > 1.
+	one *boModel
 }
 
 var errCap = errors.New("evaluation cap reached")
@@ -123,7 +127,14 @@ func optimizeLost(sys inventory.System, kind Kind, fl floors, opt SearchOptions)
 	if eopt.Chain.Context == nil {
 		eopt.Chain.Context = eopt.Context
 	}
-	ls := &lostSearch{sys: sys, opt: opt, eopt: eopt, fl: fl, memo: map[Policy]lostCandidate{}}
+	ls := &lostSearch{sys: sys, opt: opt, eopt: eopt, fl: fl, memo: map[Policy]lostCandidate{}, one: lost}
+	if sys.Review() > 1 {
+		s1 := sys
+		s1.ReviewPeriod = 1
+		if ls.one, err = newBOModel(s1); err != nil {
+			return nil, err
+		}
+	}
 	if opt.Cache != nil {
 		ls.cacheKey = cacheKey(sys, eopt)
 	}
@@ -165,9 +176,16 @@ func optimizeLost(sys inventory.System, kind Kind, fl floors, opt SearchOptions)
 // second because on-hand before demand never exceeds top, so at least
 // (D - top)^+ is lost each period; and b E[lost] + c E[ordered] =
 // c E[D] + (b - c) E[lost] >= min(b, c) E[D] since 0 <= E[lost] <= E[D].
-func lostLower(mo *boModel, y, top int) (upper, lower float64) {
+// Under a lead-time law (sequential deliveries) and reviews every R
+// periods the first holds with X_{L+1} replaced by the mixed law of mo.x1:
+// in every period the last review whose orders have all arrived is V + f
+// periods back (V of the lead-time law, f the phase, both independent of
+// stock), and on hand is at least that review's position less the demand
+// since. The second uses one period's demand, from one (mo itself when
+// R = 1).
+func lostLower(mo, one *boModel, y, top int) (upper, lower float64) {
 	base := min(mo.b, mo.c) * mo.mu
-	return mo.h*mo.x1.below(y) + base, base + max(mo.b-mo.c, 0)*lostAbove(mo, top)
+	return mo.h*mo.x1.below(y) + base, base + max(mo.b-mo.c, 0)*lostAbove(one, top)
 }
 
 // lostAbove returns E[(D - top)^+] for single-period demand.
@@ -245,7 +263,7 @@ func (ls *lostSearch) baseStock(mo *boModel, S0 int) (*Optimum, error) {
 				break
 			}
 			if best.err == nil && best.viol == 0 {
-				up, low := lostLower(mo, S, S)
+				up, low := lostLower(mo, ls.one, S, S)
 				if (dir == 0 && up >= best.cost) || (dir == 1 && low >= best.cost) {
 					proven[dir] = true
 					break

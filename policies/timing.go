@@ -69,12 +69,11 @@ func timingOf(sys inventory.System, k Kind) (timing, error) {
 			return t, err
 		}
 	} else {
-		if t.x0, err = inventory.MixedDemand(sys, 0); err != nil {
+		xs, err := inventory.MixedDemands(sys, 0, 1)
+		if err != nil {
 			return t, err
 		}
-		if t.x1, err = inventory.MixedDemand(sys, 1); err != nil {
-			return t, err
-		}
+		t.x0, t.x1 = xs[0], xs[1]
 	}
 	t.negl0, t.negl1 = inventory.Neglected(t.x0), inventory.Neglected(t.x1)
 	return t, nil
@@ -212,21 +211,6 @@ func onePointLaw(sys inventory.System) bool {
 		}
 	}
 	return n == 1
-}
-
-// refuseLostTiming refuses lost sales under a random lead time or a review
-// period above 1: the chain of on-hand and pipeline under Kaplan's arrival
-// process (and with reviews every R periods) is not built by this engine.
-func refuseLostTiming(sys inventory.System) error {
-	if sys.FixedTiming() {
-		return nil
-	}
-	if sys.LeadTimeLaw != nil {
-		return &inventory.FieldError{Field: "lead_time", Value: sys.LeadTimeLaw.String(),
-			Want: "a fixed lead time with --unmet lost: the exact lost-sales chain under a random lead time is not built (its state would add the arrival cut-off to on-hand and pipeline)", Err: ErrNotExact}
-	}
-	return &inventory.FieldError{Field: "review_period", Value: fmt.Sprint(sys.ReviewPeriod),
-		Want: "review every period (1) with --unmet lost: the exact lost-sales chain between reviews is not built", Err: ErrNotExact}
 }
 
 // independentPipeline returns the laws x0 and x1 of timing for base-stock

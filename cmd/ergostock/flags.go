@@ -431,4 +431,6 @@ const timingHelp = `Lead times and reviews (every figure and cost is per period)
                            the chain is that of the position at reviews with R-period demand, the
                            figures are averaged over the R periods of a cycle, and the order frequency
                            and ordering cost are per period (orders per review / R).
-  Lost sales (--unmet lost) are exact only with a fixed lead time and R = 1; otherwise refused.`
+  Lost sales (--unmet lost) are exact with sequential deliveries and any R: the chain of on-hand and
+                           the orders outstanding by age, at reviews, with a whole cycle's transitions
+                           (it grows with the longest lead time over R; --max-states bounds it).`

@@ -221,8 +221,11 @@ func hostileCases() []hostileCase {
 			add(hostileCase{name: fmt.Sprintf("%s--lead-time=%q", cmd, c.law), args: with(base, "--lead-time", c.law), code: c.code, names: c.names})
 		}
 		law := with(base, "--lead-time", "pmf:1=0.2,2=0.5,3=0.3")
-		add(hostileCase{name: cmd + "-lost-law", args: with(law, "--unmet", "lost"), code: 1, names: []string{"--lead-time", "simulate"}})
-		add(hostileCase{name: cmd + "-lost-review", args: with(with(base, "--unmet", "lost"), "--review-period", "7"), code: 1, names: []string{"--review-period", "simulate"}})
+		// Lost sales under a law and a review period are exact; orders
+		// that may cross are not, and the refusal points to simulate.
+		add(hostileCase{name: cmd + "-lost-law", args: with(law, "--unmet", "lost"), code: 0})
+		add(hostileCase{name: cmd + "-lost-review", args: with(with(base, "--unmet", "lost"), "--review-period", "7"), code: 0})
+		add(hostileCase{name: cmd + "-lost-independent", args: with(with(law, "--unmet", "lost"), "--lead-time-model", "independent"), code: 1, names: []string{"--lead-time-model", "simulate"}})
 		add(hostileCase{name: cmd + "-law-review-ok", args: with(law, "--review-period", "7"), code: 0})
 	}
 	// simulate plays the same laws, models and review periods literally
@@ -402,6 +405,23 @@ func hostileCases() []hostileCase {
 			name:  c.name,
 			args:  []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
 			files: map[string]string{"items.csv": itemsHeader + goodItem + c.row + goodItem[:4] + "2" + goodItem[4:]},
+			code:  3,
+		})
+	}
+	// The review_period column (issue 12): bad cells fail their row alone;
+	// lost sales reviewed weekly are planned.
+	const reviewHeader = "sku,lead_time,holding_cost,shortage_cost,unmet,demand,review_period\n"
+	for _, c := range []struct{ name, row string }{
+		{"batch-review-period-0", "BAD,1,0.4,12,,poisson:mean=9,0\n"},
+		{"batch-review-period-frac", "BAD,1,0.4,12,,poisson:mean=9,1.5\n"},
+		{"batch-review-period-word", "BAD,1,0.4,12,,poisson:mean=9,weekly\n"},
+		{"batch-review-period-huge", "BAD,1,0.4,12,,poisson:mean=9,1e15\n"},
+		{"batch-review-period-lost-huge-lead", "BAD,1000000000,0.4,12,lost,poisson:mean=9,7\n"},
+	} {
+		add(hostileCase{
+			name:  c.name,
+			args:  []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
+			files: map[string]string{"items.csv": reviewHeader + "GOOD,1,0.4,12,lost,poisson:mean=2,7\n" + c.row + "GOOD2,3,0.4,12,,poisson:mean=9,7\n"},
 			code:  3,
 		})
 	}

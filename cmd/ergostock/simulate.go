@@ -180,6 +180,13 @@ func simChainSize(sys inventory.System, p policies.Policy) float64 {
 	case policies.SNQ:
 		top = s + Q
 	}
+	if sys.Mode == inventory.Lost && !sys.FixedTiming() {
+		// The chain at reviews: on hand and one component per review whose
+		// order can still be out, k = ceil(lmax/R), at most C(top+k, k).
+		R := sys.Review()
+		k := max(1, (simLongestLead(sys)+R-1)/R)
+		return math.Max(policies.LostStateBound(int(math.Max(top, 0)), k), top)
+	}
 	if sys.Mode == inventory.Lost {
 		L := float64(simLongestLead(sys))
 		a, _ := math.Lgamma(top + L + 2)

@@ -98,13 +98,14 @@ const (
 	colCurMultiple    = "current_order_multiple"
 	colLocation       = "location"
 	colLeadTimeDays   = "lead_time_days"
+	colReviewPeriod   = "review_period"
 	requiredColumnsNo = 4
 )
 
 var itemColumns = []string{
 	colSKU, colLeadTime, colHolding, colShortage, // required, in this order
 	colOrderCost, colUnitCost, colUnmet, colPolicy, colMinFillRate, colDemand,
-	colCurReorder, colCurOrderUpTo, colCurMultiple, colLocation, colLeadTimeDays,
+	colCurReorder, colCurOrderUpTo, colCurMultiple, colLocation, colLeadTimeDays, colReviewPeriod,
 }
 
 // ItemColumns lists the columns the items reader knows, in normal form (see
@@ -528,6 +529,14 @@ func parseItem(it *Item, cell func(int) string, nums *tabular.Numbers, line int,
 			return withCell(err, raw)
 		}
 		sys.Demand = d
+	}
+	if s := raw[colReviewPeriod]; s != "" {
+		// Reviews every R periods (empty: every period); Validate checks R.
+		r, _, ok := parseWhole(s)
+		if !ok || r < 1 {
+			return &inventory.FieldError{Field: colReviewPeriod, Value: s, Want: "a whole number of periods >= 1 between reviews"}
+		}
+		sys.ReviewPeriod = r
 	}
 	check := *sys
 	if check.Demand == nil {
