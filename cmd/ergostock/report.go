@@ -380,6 +380,7 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		period = meta.Period
 	}
 	in := report.BatchInput{ResultsFile: path, Rows: res.Rows, Targets: targets, Workers: c.Int("workers"), Version: version}
+	byLocation := res.ByLocation
 	if meta != nil {
 		in.Period = meta.Period
 	}
@@ -396,10 +397,12 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if err != nil {
 			return nil, err
 		}
-		if cat.ByLocation {
-			// The batch page matches results to items by SKU alone.
-			return nil, fmt.Errorf("%s:1: the items file has a location column: the batch page does not yet draw its exchange curve by (sku, location); leave --items out, or give an items file without the location column", p)
+		if cat.ByLocation != res.ByLocation {
+			// Results are matched to items by (sku, location) or by SKU
+			// alone, as the batch planned them.
+			return nil, locationMismatch(p, path, cat.ByLocation)
 		}
+		byLocation = cat.ByLocation
 		items := cat.Items
 		if meta != nil && digest != meta.Items {
 			return nil, mismatch("items", p, digest, "items", meta.Items)
@@ -416,9 +419,13 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if err != nil {
 			return nil, err
 		}
+		hopt.ByLocation = byLocation
 		h, digest, err := readHistoryFile(c.Context, p, per, hopt)
 		if err != nil {
 			return nil, err
+		}
+		if byLocation && !h.Location {
+			return nil, fmt.Errorf("%s:1: %s was planned by (sku, location), but the history has no location column: give the history the batch read (or map its column with --history-columns location=HEADER)", h.File, path)
 		}
 		// A batch planned from demand columns alone (history=none) has no
 		// history to contradict; the page may still show its patterns.
@@ -431,4 +438,14 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: %s has no header record (an older ergostock wrote it): the items, history and period given are not checked against it\n", path)
 	}
 	return report.BuildBatch(in)
+}
+
+// locationMismatch is the error of an items file whose location column
+// does not agree with the results': one was planned by (sku, location),
+// the other by SKU alone.
+func locationMismatch(items, results string, itemsByLocation bool) error {
+	if itemsByLocation {
+		return fmt.Errorf("%s:1: the items file has a location column but %s has none (it was planned by SKU alone): give the items file the batch read", items, results)
+	}
+	return fmt.Errorf("%s:1: the items file has no location column but %s was planned by (sku, location) (its location column): give the items file the batch read", items, results)
 }

@@ -155,8 +155,8 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 	byRow := map[string]*ResultRow{}
 	for i := range in.Rows {
 		r := &in.Rows[i]
-		if _, dup := byRow[r.SKU]; !dup {
-			byRow[r.SKU] = r
+		if _, dup := byRow[r.Key()]; !dup {
+			byRow[r.Key()] = r
 		}
 	}
 	type job struct {
@@ -168,19 +168,20 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 	}
 	var jobs []job
 	for _, it := range in.Items {
-		r := byRow[it.SKU]
+		r := byRow[it.Key()]
+		name := itemName(it)
 		switch {
 		case it.Err != nil:
 			continue // already listed among the errors
 		case r == nil:
-			ex.LeftOut = append(ex.LeftOut, fmt.Sprintf("%s: not in %s", it.SKU, in.ResultsFile))
+			ex.LeftOut = append(ex.LeftOut, fmt.Sprintf("%s: not in %s", name, in.ResultsFile))
 			continue
 		case r.Figures == nil || r.Demand == "":
 			continue // failed in the batch: listed among the errors
 		}
 		d, err := inventory.Parse(r.Demand)
 		if err != nil {
-			ex.LeftOut = append(ex.LeftOut, fmt.Sprintf("%s: %s line %d: %v", it.SKU, in.ResultsFile, r.Line, err))
+			ex.LeftOut = append(ex.LeftOut, fmt.Sprintf("%s: %s line %d: %v", name, in.ResultsFile, r.Line, err))
 			continue
 		}
 		sys := it.System
@@ -192,7 +193,7 @@ func (pg *BatchPage) exchangeCurve() *exchange {
 		if sys.UnitCost <= 0 {
 			ex.UnitCost = false
 		}
-		jobs = append(jobs, job{sys, kind, r, it.SKU, it.MinFillRate})
+		jobs = append(jobs, job{sys, kind, r, name, it.MinFillRate})
 	}
 	nt := len(in.Targets)
 	res := make([]*policies.Optimum, len(jobs)*nt)
@@ -341,7 +342,20 @@ func patternMap(h *history.History) []patternPoint {
 		if math.IsNaN(s.ADI) || math.IsNaN(s.CV2) {
 			continue
 		}
-		out = append(out, patternPoint{SKU: k.SKU, ADI: s.ADI, CV2: s.CV2, Pattern: string(s.Pattern)})
+		name := k.SKU
+		if k.Location != "" {
+			name += " @ " + k.Location
+		}
+		out = append(out, patternPoint{SKU: name, ADI: s.ADI, CV2: s.CV2, Pattern: string(s.Pattern)})
 	}
 	return out
+}
+
+// itemName is an item's SKU, with its location after " @ " when the items
+// file has a location column, as ResultRow.Name.
+func itemName(it batch.Item) string {
+	if it.Location == "" {
+		return it.SKU
+	}
+	return it.SKU + " @ " + it.Location
 }

@@ -12,6 +12,7 @@ import (
 
 type itemRow struct {
 	SKU, Pattern, Policy, Levels      string
+	Location                          string // in a run by (sku, location)
 	Mean, Fill, Cost, Current, Saving cell
 	CurrentFill                       cell // fill rate of the policy in use, when the results give it
 	Warnings                          int
@@ -31,6 +32,7 @@ type skuMessage struct {
 type batchView struct {
 	Title, Version string
 	Sortable       bool
+	ByLocation     bool // the items table has a location column
 	SubTitle       string
 	Glance         []string
 	Totals         []kv
@@ -71,9 +73,9 @@ var batchTemplate = mustTemplate("batch", `{{template "head" .}}
 <h2 id="items" class="pagebreak">Items</h2>
 <p>One row per item, in the order of the results file{{if .Sortable}}; click a column head to sort (optional script){{end}}. Costs are per period; the saving is the current policy's total cost minus the recommended one's.</p>
 <table class="items sortable">
-<thead><tr><th>SKU</th><th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">current fill rate</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
+<thead><tr><th>SKU</th>{{if .ByLocation}}<th>location</th>{{end}}<th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">current fill rate</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
 <tbody>
-{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td><td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.CurrentFill.Key}}">{{.CurrentFill.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
+{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td>{{if $.ByLocation}}<td>{{.Location}}</td>{{end}}<td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.CurrentFill.Key}}">{{.CurrentFill.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
 {{end}}</tbody></table>
 <h2 id="errors">Errors</h2>
 {{if .Errors}}<p>These items could not be planned; their rows in the results file carry no figures.</p>
@@ -156,7 +158,11 @@ func (pg *BatchPage) view() batchView {
 		if sku == "" {
 			sku = fmt.Sprintf("(no SKU, line %d)", r.Line)
 		}
-		row := itemRow{SKU: sku, Pattern: r.Pattern, Warnings: len(r.Warnings)}
+		row := itemRow{SKU: sku, Location: r.Location, Pattern: r.Pattern, Warnings: len(r.Warnings)}
+		if r.Location != "" {
+			v.ByLocation = true
+			sku += " @ " + r.Location // in the lists of errors and warnings
+		}
 		if r.Demand != "" {
 			row.Mean = cell{strconv.FormatFloat(r.DemandMean, 'g', 4, 64), fkey(r.DemandMean)}
 		}
@@ -191,7 +197,7 @@ func (pg *BatchPage) view() batchView {
 			}
 		}
 		for _, w := range r.Warnings {
-			v.Warnings = append(v.Warnings, skuMessage{r.SKU, w})
+			v.Warnings = append(v.Warnings, skuMessage{r.Name(), w})
 		}
 		v.Items = append(v.Items, row)
 	}

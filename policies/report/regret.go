@@ -96,7 +96,7 @@ func regretRows(rows []ResultRow) ([]regretRow, string) {
 		if u.HasReorderPoint {
 			band = fmt.Sprintf("%g to %g", u.ReorderPointP05, u.ReorderPointP95)
 		}
-		out = append(out, regretRow{SKU: r.SKU, Pattern: r.Pattern, Levels: levels(*r.Policy),
+		out = append(out, regretRow{SKU: r.Name(), Pattern: r.Pattern, Levels: levels(*r.Policy),
 			Mean: money(u.RegretMean), P95: money(u.RegretP95), Fill: pct(r.Figures.FillRate),
 			Expected: pct(u.ExpectedFillRate), FillP05: pct(u.FillRateP05), Band: band})
 	}

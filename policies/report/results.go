@@ -20,6 +20,9 @@ import (
 type ResultRow struct {
 	Line           int // in the file, for errors
 	SKU            string
+	// Location is the item's location in a run planned by (sku, location)
+	// (the results' location column); "" otherwise.
+	Location       string
 	Demand         string // the demand model in the text grammar; "" if unknown
 	DemandMean     float64
 	DemandVariance float64
@@ -69,6 +72,22 @@ type Results struct {
 	// nil for a file written before there was one (format v1).
 	Meta *batch.Meta
 	Rows []ResultRow
+	// ByLocation is true when the file has a location column: the run
+	// planned by (sku, location) and ResultRow.Key is the planning key.
+	ByLocation bool
+}
+
+// Key is the row's planning key, batch.PlanKey(SKU, Location): the key
+// of the item it was planned for.
+func (r ResultRow) Key() string { return batch.PlanKey(r.SKU, r.Location) }
+
+// Name is the row's SKU, with its location after " @ " in a run by
+// location, for lists and messages.
+func (r ResultRow) Name() string {
+	if r.Location == "" {
+		return r.SKU
+	}
+	return r.SKU + " @ " + r.Location
 }
 
 // ReadResults reads the rows of a results file; see ReadResultsFile.
@@ -170,6 +189,7 @@ func readResultsTable(tr *tabular.Reader, res *Results) (*Results, error) {
 		}
 		return nil, fmt.Errorf("%s:%d: missing %s %s: %w (want its header: sku, demand, ..., error)", name, tr.HeaderLine, noun, list, ErrNotResults)
 	}
+	_, res.ByLocation = col["location"]
 	var rows []ResultRow
 	for {
 		rec, line, err := tr.Read()
@@ -266,6 +286,7 @@ func readResultsTable(tr *tabular.Reader, res *Results) (*Results, error) {
 			}
 			return ""
 		}
+		row.Location = opt("location")
 		row.LeadTime, row.LeadTimeModel = opt("lead_time"), opt("lead_time_model")
 		if row.LeadTime != "" {
 			if _, _, err := inventory.ParseLeadTime(row.LeadTime); err != nil {
