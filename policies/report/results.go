@@ -18,8 +18,8 @@ import (
 
 // ResultRow is one line of the results file of `ergostock batch`.
 type ResultRow struct {
-	Line           int // in the file, for errors
-	SKU            string
+	Line int // in the file, for errors
+	SKU  string
 	// Location is the item's location in a run planned by (sku, location)
 	// (the results' location column); "" otherwise.
 	Location       string
