@@ -11,7 +11,9 @@ import (
 // applyDecisionsFile makes the latest decision of each SKU in the
 // decisions file at path (none when path is "") the policy in use of its
 // items, before the batch plans them (see batch.ApplyDecisions).
-func applyDecisionsFile(path string, items []batch.Item, stderr io.Writer) error {
+// byLocation says that the items plan by (sku, location): the decisions
+// must then have a location column (batch.CheckDecisionsLocation).
+func applyDecisionsFile(path string, items []batch.Item, byLocation bool, stderr io.Writer) error {
 	if path == "" {
 		return nil
 	}
@@ -22,6 +24,9 @@ func applyDecisionsFile(path string, items []batch.Item, stderr io.Writer) error
 	defer f.Close()
 	ds, err := batch.ReadDecisions(f, path)
 	if err != nil {
+		return err
+	}
+	if err := batch.CheckDecisionsLocation(ds, byLocation, path); err != nil {
 		return err
 	}
 	n, unmatched := batch.ApplyDecisions(items, ds, path)

@@ -57,9 +57,9 @@ func serveCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "serve",
 		Usage:       "a local what-if page over a batch run: try levels with exact figures, record decisions",
-		UsageText:   "ergostock serve --results FILE --items FILE --history FILE [--addr 127.0.0.1:8080] [--decisions FILE] [--allow-remote] [--timeout D]",
+		UsageText:   "ergostock serve --results FILE --items FILE --history FILE [--addr 127.0.0.1:8080] [--decisions FILE] [--allow-remote] [--timeout D] [reader flags as batch: --delimiter, --decimal, --date-format, --history-columns, --items-columns, --returns, ...]",
 		Description: serveDescription,
-		Flags: []cli.Flag{
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "results", Usage: "results file of ergostock batch", Required: true},
 			&cli.StringFlag{Name: "items", Usage: "the items file the batch planned", Required: true},
 			&cli.StringFlag{Name: "history", Usage: "the demand history the batch fitted (optional when every item has a demand column)"},
@@ -67,7 +67,7 @@ func serveCommand() *cli.Command {
 			&cli.StringFlag{Name: "decisions", Usage: "decisions file (CSV log) to keep; default: the results name with -decisions"},
 			&cli.BoolFlag{Name: "allow-remote", Usage: "allow an address other than loopback (no accounts: anyone who reaches it can use it)"},
 			&cli.DurationFlag{Name: "timeout", Usage: "budget of one evaluation or search", Value: whatif.DefaultTimeout},
-		},
+		}, readFlags()...),
 		Action: runServe,
 	}
 }
@@ -83,9 +83,24 @@ func defaultDecisions(results string) string {
 	return base + "-decisions" + ext
 }
 
-// serveConfig reads the files of serve and builds the server's
-// configuration.
+// serveConfig reads the files of serve with the readers' defaults and
+// builds the server's configuration (see serveConfigWith).
 func serveConfig(ctx context.Context, resultsPath, itemsPath, histPath, decisionsPath string) (whatif.Config, error) {
+	return serveConfigWith(ctx, resultsPath, itemsPath, histPath, decisionsPath, func(p history.Period) (batch.ReadOptions, history.Options, error) {
+		return batch.ReadOptions{PeriodDays: periodDays(p), PeriodName: p.String()}, history.Options{}, nil
+	})
+}
+
+// readerOptions gives the options of the items and history readers for
+// the planning period of the results.
+type readerOptions func(history.Period) (batch.ReadOptions, history.Options, error)
+
+// serveConfigWith reads the files of serve, the items and history with
+// the options of opts (the reader flags, as batch and report take them),
+// and builds the server's configuration. A run planned by (sku,
+// location) (the results' location column) needs an items file with a
+// location column and a history read by location.
+func serveConfigWith(ctx context.Context, resultsPath, itemsPath, histPath, decisionsPath string, opts readerOptions) (whatif.Config, error) {
 	var cfg whatif.Config
 	raw, err := os.ReadFile(resultsPath)
 	if err != nil {
@@ -103,25 +118,34 @@ func serveConfig(ctx context.Context, resultsPath, itemsPath, histPath, decision
 	if res.Meta != nil && res.Meta.Period != "" {
 		period = res.Meta.Period
 	}
-	// The inputs are read with the reader's defaults (dialect, decimal
-	// mark and date layout found from the files).
-	per, _ := history.ParsePeriod(period)
-	cat, _, err := readItemsFile(ctx, itemsPath, batch.Shard{}, batch.ReadOptions{PeriodDays: periodDays(per), PeriodName: period})
+	per, err := history.ParsePeriod(period)
+	if err != nil {
+		return cfg, fmt.Errorf("--results %s: %w", resultsPath, err)
+	}
+	iopt, hopt, err := opts(per)
 	if err != nil {
 		return cfg, err
 	}
-	if cat.ByLocation {
-		return cfg, fmt.Errorf("%s:1: the items file has a location column: serve does not yet plan by (sku, location); give an items file without it", itemsPath)
+	cat, _, err := readItemsFile(ctx, itemsPath, batch.Shard{}, iopt)
+	if err != nil {
+		return cfg, err
+	}
+	if cat.ByLocation != res.ByLocation {
+		return cfg, locationMismatch(itemsPath, resultsPath, cat.ByLocation)
 	}
 	items := cat.Items
+	hopt.ByLocation = cat.ByLocation
 	var h *history.History
 	if histPath != "" {
 		p, err := history.ParsePeriod(period)
 		if err != nil {
 			return cfg, fmt.Errorf("--results %s: %w", resultsPath, err)
 		}
-		if h, _, err = readHistoryFile(ctx, histPath, p, history.Options{}); err != nil {
+		if h, _, err = readHistoryFile(ctx, histPath, p, hopt); err != nil {
 			return cfg, err
+		}
+		if cat.ByLocation && !h.Location {
+			return cfg, fmt.Errorf("%s:1: %s was planned by (sku, location), but the history has no location column: give the history the batch read (or map its column with --history-columns location=HEADER)", h.File, resultsPath)
 		}
 	}
 	if decisionsPath == "" {
@@ -156,7 +180,15 @@ func runServe(c *cli.Context) error {
 	}
 	ctx, stop := signal.NotifyContext(c.Context, os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	cfg, err := serveConfig(ctx, c.String("results"), c.String("items"), c.String("history"), c.String("decisions"))
+	cfg, err := serveConfigWith(ctx, c.String("results"), c.String("items"), c.String("history"), c.String("decisions"),
+		func(p history.Period) (batch.ReadOptions, history.Options, error) {
+			iopt, err := itemsOptions(c, p)
+			if err != nil {
+				return iopt, history.Options{}, err
+			}
+			hopt, err := historyOptions(c)
+			return iopt, hopt, err
+		})
 	if err != nil {
 		return err
 	}

@@ -24,6 +24,10 @@ import (
 //	sku, version, decision, policy, reorder_point, order_up_to,
 //	order_multiple, note, decided_at
 //
+// A run that plans by (sku, location) keeps a location column after sku
+// (header sku, location, version, ...): a decision then belongs to one
+// (sku, location) and versions count per pair.
+//
 // version counts the decisions of the SKU (1 for its first); decision is
 // accept (the recommended levels), keep (the levels in use) or override
 // (levels the planner chose); policy and the level columns give the
@@ -54,12 +58,19 @@ func ParseDecisionKind(s string) (DecisionKind, bool) {
 type Decision struct {
 	Line    int // in the file; 0 for a decision not read from one
 	SKU     string
-	Version int
+	// Location is the decision's location in a run by (sku, location);
+	// "" otherwise.
+	Location string
+	Version  int
 	Kind    DecisionKind
 	Policy  policies.Policy // the levels the decision settles on
 	Note    string
 	At      time.Time
 }
+
+// Key is the decision's planning key, PlanKey(SKU, Location): the key of
+// the item it applies to.
+func (d Decision) Key() string { return PlanKey(d.SKU, d.Location) }
 
 // DecisionHeader returns the column names of a decisions file.
 func DecisionHeader() []string {
@@ -67,16 +78,42 @@ func DecisionHeader() []string {
 		"order_multiple", "note", "decided_at"}
 }
 
-// WriteDecisions writes the header and the decisions ds as CSV.
+// DecisionHeaderLocation returns the column names of the decisions file
+// of a run by (sku, location): DecisionHeader with location after sku.
+func DecisionHeaderLocation() []string {
+	h := DecisionHeader()
+	return append([]string{h[0], "location"}, h[1:]...)
+}
+
+// WriteDecisions writes the header and the decisions ds as CSV, with the
+// location column when any decision has a location.
 func WriteDecisions(w io.Writer, ds []Decision) error {
+	loc := false
+	for _, d := range ds {
+		loc = loc || d.Location != ""
+	}
+	return WriteDecisionsLocation(w, ds, loc)
+}
+
+// WriteDecisionsLocation writes the header and the decisions ds as CSV,
+// with the location column when location is true (the log of a run by
+// (sku, location), even before its first decision).
+func WriteDecisionsLocation(w io.Writer, ds []Decision, location bool) error {
 	cw := csv.NewWriter(w)
-	if err := cw.Write(DecisionHeader()); err != nil {
+	header := DecisionHeader()
+	if location {
+		header = DecisionHeaderLocation()
+	}
+	if err := cw.Write(header); err != nil {
 		return err
 	}
 	for _, d := range ds {
 		s, S, q := levelCells(&d.Policy)
 		rec := []string{Guard(d.SKU), strconv.Itoa(d.Version), string(d.Kind), string(d.Policy.Kind),
 			s, S, q, Guard(d.Note), d.At.UTC().Format(time.RFC3339)}
+		if location {
+			rec = append([]string{rec[0], Guard(d.Location)}, rec[1:]...)
+		}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -88,7 +125,9 @@ func WriteDecisions(w io.Writer, ds []Decision) error {
 // ReadDecisions reads a decisions file from r; name is the file name used
 // in errors. An empty input has no decisions. Errors are one line naming
 // the file, the line and the column (*LineError). The versions of a SKU
-// must count up from 1 in file order.
+// must count up from 1 in file order. A location column after sku (see
+// DecisionHeaderLocation) gives each decision its location; a file with
+// it has no decision without one.
 func ReadDecisions(r io.Reader, name string) ([]Decision, error) {
 	cr := csv.NewReader(r)
 	cr.FieldsPerRecord = -1
@@ -102,6 +141,10 @@ func ReadDecisions(r io.Reader, name string) ([]Decision, error) {
 	want := DecisionHeader()
 	if len(header) > 0 {
 		header[0] = strings.TrimPrefix(header[0], "\ufeff")
+	}
+	location := len(header) > 1 && strings.ToLower(strings.TrimSpace(header[1])) == "location"
+	if location {
+		want = DecisionHeaderLocation()
 	}
 	if len(header) != len(want) {
 		return nil, &LineError{File: name, Line: 1, Err: fmt.Errorf("header has %d columns: want %s", len(header), strings.Join(want, ","))}
@@ -122,15 +165,31 @@ func ReadDecisions(r io.Reader, name string) ([]Decision, error) {
 		if err != nil {
 			return nil, csvErr(name, line, err)
 		}
-		d, err := parseDecision(rec, len(want))
+		if len(rec) != len(want) {
+			return nil, &LineError{File: name, Line: line, Err: fmt.Errorf("%d fields: want %d", len(rec), len(want))}
+		}
+		var loc string
+		if location {
+			loc = Unguard(strings.TrimSpace(rec[1]))
+			if loc == "" {
+				return nil, &LineError{File: name, Line: line, Err: &inventory.FieldError{Field: "location", Value: rec[1], Want: "a location (the file has a location column)"}}
+			}
+			rec = append(rec[:1:1], rec[2:]...)
+		}
+		d, err := parseDecision(rec, len(want)-map[bool]int{true: 1}[location])
 		if err != nil {
 			return nil, &LineError{File: name, Line: line, Err: err}
 		}
-		if d.Version != last[d.SKU]+1 {
+		d.Location = loc
+		if k := d.Key(); d.Version != last[k]+1 {
+			what := fmt.Sprintf("sku %q", d.SKU)
+			if loc != "" {
+				what += fmt.Sprintf(" at location %q", loc)
+			}
 			return nil, &LineError{File: name, Line: line, Err: &inventory.FieldError{Field: "version", Value: rec[1],
-				Want: fmt.Sprintf("%d, the next version of sku %q", last[d.SKU]+1, d.SKU)}}
+				Want: fmt.Sprintf("%d, the next version of %s", last[k]+1, what)}}
 		}
-		last[d.SKU] = d.Version
+		last[d.Key()] = d.Version
 		d.Line = line
 		ds = append(ds, d)
 	}
@@ -201,33 +260,35 @@ func parseDecision(rec []string, n int) (Decision, error) {
 	return d, nil
 }
 
-// LatestDecisions returns the last decision of every SKU in ds.
+// LatestDecisions returns the last decision of every planning key
+// (Decision.Key: the SKU, or SKU and location) in ds.
 func LatestDecisions(ds []Decision) map[string]Decision {
 	m := make(map[string]Decision, len(ds))
 	for _, d := range ds {
-		m[d.SKU] = d
+		m[d.Key()] = d
 	}
 	return m
 }
 
-// ApplyDecisions makes the latest decision of each SKU the current policy
-// of its items (file is the decisions file's name, for errors): an
+// ApplyDecisions makes the latest decision of each SKU (of each (sku,
+// location) in a run by location) the current policy of its items (file is the decisions file's name, for errors): an
 // accepted recommendation, a kept policy and an override alike set
 // Item.Current to the decision's levels. Items that already failed are
 // left alone. A decision whose levels do not suit the item's mode fails
 // that item with a one-line error naming the decisions file and line. It
 // returns how many items took a decision and the SKUs of decisions that
-// match no item, sorted by first appearance.
+// match no item ("SKU @ location" in a run by location), in order of
+// first appearance.
 func ApplyDecisions(items []Item, ds []Decision, file string) (applied int, unmatched []string) {
 	latest := LatestDecisions(ds)
 	used := map[string]bool{}
 	for i := range items {
 		it := &items[i]
-		d, ok := latest[it.SKU]
+		d, ok := latest[it.Key()]
 		if !ok {
 			continue
 		}
-		used[it.SKU] = true
+		used[it.Key()] = true
 		if it.Err != nil {
 			continue
 		}
@@ -245,10 +306,30 @@ func ApplyDecisions(items []Item, ds []Decision, file string) (applied int, unma
 	}
 	seen := map[string]bool{}
 	for _, d := range ds {
-		if !used[d.SKU] && !seen[d.SKU] {
-			seen[d.SKU] = true
-			unmatched = append(unmatched, d.SKU)
+		if k := d.Key(); !used[k] && !seen[k] {
+			seen[k] = true
+			name := d.SKU
+			if d.Location != "" {
+				name += " @ " + d.Location
+			}
+			unmatched = append(unmatched, name)
 		}
 	}
 	return applied, unmatched
+}
+
+// CheckDecisionsLocation refuses decisions ds (of the file named file)
+// that do not match the planning key of the items: in a run by (sku,
+// location) (byLocation) every decision needs a location, and in a run by
+// SKU none may have one. The error is one line naming the file and line.
+func CheckDecisionsLocation(ds []Decision, byLocation bool, file string) error {
+	for _, d := range ds {
+		switch {
+		case byLocation && d.Location == "":
+			return &LineError{File: file, Line: d.Line, Err: fmt.Errorf("sku %q: no location, but the items file plans by (sku, location): want a decisions file with a location column after sku (serve writes one for such a run)", d.SKU)}
+		case !byLocation && d.Location != "":
+			return &LineError{File: file, Line: d.Line, Err: fmt.Errorf("sku %q: location %q, but the items file has no location column (it plans each SKU on its whole history): give the decisions of this run", d.SKU, d.Location)}
+		}
+	}
+	return nil
 }

@@ -22,16 +22,20 @@ import (
 )
 
 // Catalogue is what the page lists: the rows of a results file joined by
-// SKU with the items file (for the inputs and the policy in use) and the
+// planning key (the SKU, or the SKU and location of a run by location)
+// with the items file (for the inputs and the policy in use) and the
 // history (for the series and its fit).
 type Catalogue struct {
 	Period  string // of the history: day, week or month
 	entries []*entry
-	bySKU   map[string]*entry
+	bySKU   map[string]*entry // by planning key (batch.PlanKey)
 	hist    map[string]*history.SKU
 	h       *history.History
 	// Uncertainty says whether the results carry a regret column.
 	Uncertainty bool
+	// ByLocation says that the results were planned by (sku, location):
+	// items are found by both and decisions carry a location.
+	ByLocation bool
 }
 
 // entry is one item of the catalogue.
@@ -77,6 +81,7 @@ func policyJSON(p *policies.Policy) *PolicyJSON {
 // the results file; Regret is the results' regret column, when it has one.
 type Summary struct {
 	SKU                string             `json:"sku"`
+	Location           string             `json:"location,omitempty"`
 	Pattern            string             `json:"pattern"`
 	Demand             string             `json:"demand"`
 	DemandMean         float64            `json:"demand_mean"`
@@ -95,8 +100,9 @@ type Summary struct {
 	Version            int                `json:"version"`
 }
 
-// NewCatalogue joins the results rows with the items (by SKU; the first
-// item of a SKU counts) and the history (nil when there is none). The
+// NewCatalogue joins the results rows with the items (by planning key,
+// batch.PlanKey of the SKU and, in a run by location, the location; the
+// first item of a key counts) and the history (nil when there is none). The
 // inputs of an item are its costs and mode from the items file, the
 // demand law of the results, and the lead time, lead-time model and
 // review period of the results when they give them (else the items
@@ -106,23 +112,25 @@ func NewCatalogue(rows []report.ResultRow, regret []*float64, items []batch.Item
 	c := &Catalogue{Period: period, bySKU: map[string]*entry{}, hist: map[string]*history.SKU{}, h: h, Uncertainty: regret != nil}
 	byItem := map[string]*batch.Item{}
 	for i := range items {
-		if _, dup := byItem[items[i].SKU]; !dup {
-			byItem[items[i].SKU] = &items[i]
+		if _, dup := byItem[items[i].Key()]; !dup {
+			byItem[items[i].Key()] = &items[i]
 		}
+		c.ByLocation = c.ByLocation || items[i].Location != ""
 	}
 	if h != nil {
 		for _, k := range h.SKUs {
-			c.hist[k.SKU] = k
+			c.hist[batch.PlanKey(k.SKU, k.Location)] = k
 		}
 	}
 	for i, r := range rows {
 		if r.SKU == "" {
 			continue
 		}
-		if _, dup := c.bySKU[r.SKU]; dup {
+		c.ByLocation = c.ByLocation || r.Location != ""
+		if _, dup := c.bySKU[r.Key()]; dup {
 			continue
 		}
-		e := &entry{Summary: Summary{SKU: r.SKU, Pattern: r.Pattern, Demand: r.Demand, DemandMean: r.DemandMean,
+		e := &entry{Summary: Summary{SKU: r.SKU, Location: r.Location, Pattern: r.Pattern, Demand: r.Demand, DemandMean: r.DemandMean,
 			RecommendedFigures: r.Figures, Saving: r.Saving, Error: r.Err, Warnings: r.Warnings}}
 		if e.Warnings == nil {
 			e.Warnings = []string{}
@@ -139,7 +147,7 @@ func NewCatalogue(rows []report.ResultRow, regret []*float64, items []batch.Item
 		if r.Demand != "" {
 			e.inputs["demand"] = r.Demand
 		}
-		if it := byItem[r.SKU]; it != nil {
+		if it := byItem[r.Key()]; it != nil {
 			sys := it.System
 			e.mode = sys.Mode
 			e.Unmet = sys.Mode
@@ -186,9 +194,20 @@ func NewCatalogue(rows []report.ResultRow, regret []*float64, items []batch.Item
 			e.inputs["review_period"] = strconv.Itoa(r.ReviewPeriod)
 		}
 		c.entries = append(c.entries, e)
-		c.bySKU[r.SKU] = e
+		c.bySKU[r.Key()] = e
 	}
 	return c
+}
+
+// key is the entry's planning key.
+func (e *entry) key() string { return batch.PlanKey(e.SKU, e.Location) }
+
+// itemName names an item in messages: sku "A", or sku "A" at location "north".
+func itemName(sku, location string) string {
+	if location == "" {
+		return fmt.Sprintf("sku %q", sku)
+	}
+	return fmt.Sprintf("sku %q at location %q", sku, location)
 }
 
 // Len returns the number of items.
@@ -326,7 +345,7 @@ func (s *Server) summaries() []Summary {
 	latest := s.store.latestAll()
 	for _, e := range s.cfg.Catalogue.entries {
 		sm := e.Summary
-		if d, ok := latest[e.SKU]; ok {
+		if d, ok := latest[e.key()]; ok {
 			sm.Decision, sm.Version = decisionJSON(d), d.Version
 		}
 		out = append(out, sm)
@@ -339,6 +358,7 @@ func (s *Server) items(w http.ResponseWriter, r *http.Request) {
 	writeJSON(w, http.StatusOK, map[string]any{
 		"period":      s.cfg.Catalogue.Period,
 		"uncertainty": s.cfg.Catalogue.Uncertainty,
+		"by_location": s.cfg.Catalogue.ByLocation,
 		"items":       s.summaries(),
 	})
 }
@@ -372,7 +392,8 @@ type CandidateJSON struct {
 	AICc          *float64 `json:"aicc"`
 }
 
-// detail is GET /api/items/{sku}.
+// detail is GET /api/items/{sku} (with ?location=LOC in a run by
+// location).
 type detail struct {
 	Summary
 	Inputs  map[string]string `json:"inputs"`
@@ -381,18 +402,23 @@ type detail struct {
 }
 
 func (s *Server) item(w http.ResponseWriter, r *http.Request) {
-	sku := r.PathValue("sku")
+	sku, loc := r.PathValue("sku"), r.URL.Query().Get("location")
 	c := s.cfg.Catalogue
-	e, ok := c.bySKU[sku]
+	key := batch.PlanKey(sku, loc)
+	e, ok := c.bySKU[key]
 	if !ok {
-		s.fail(w, r, http.StatusNotFound, fmt.Sprintf("sku %q: not in the results file", sku))
+		msg := itemName(sku, loc) + ": not in the results file"
+		if c.ByLocation && loc == "" {
+			msg += " (planned by sku and location: give ?location=LOC)"
+		}
+		s.fail(w, r, http.StatusNotFound, msg)
 		return
 	}
 	d := detail{Summary: e.Summary, Inputs: e.inputs}
-	if dec, ok := s.store.latest(sku); ok {
+	if dec, ok := s.store.latest(key); ok {
 		d.Decision, d.Version = decisionJSON(dec), dec.Version
 	}
-	if k := c.hist[sku]; k != nil && len(k.Demand) > 0 {
+	if k := c.hist[key]; k != nil && len(k.Demand) > 0 {
 		hj := &HistoryJSON{Period: c.Period, Demand: k.Demand, Records: k.Records}
 		for i := range k.Demand {
 			hj.Labels = append(hj.Labels, c.h.Label(k.Start+i))

@@ -25,17 +25,22 @@ import (
 type store struct {
 	path string
 	mu   sync.Mutex
-	last map[string]batch.Decision // latest decision per SKU, as last read
+	last map[string]batch.Decision // latest decision per planning key, as last read
 	now  func() time.Time
+	// location: the log has a location column (a run by location).
+	location bool
 }
 
-func openStore(path string) (*store, error) {
-	s := &store{path: path, last: map[string]batch.Decision{}, now: time.Now}
+func openStore(path string, location bool) (*store, error) {
+	s := &store{path: path, last: map[string]batch.Decision{}, now: time.Now, location: location}
 	if path == "" {
 		return s, nil
 	}
 	ds, err := readDecisions(path)
 	if err != nil {
+		return nil, err
+	}
+	if err := batch.CheckDecisionsLocation(ds, location, path); err != nil {
 		return nil, err
 	}
 	s.last = batch.LatestDecisions(ds)
@@ -75,12 +80,12 @@ func (s *store) latestAll() map[string]batch.Decision {
 // conflictError is a decision based on a version that is no longer the
 // latest: 409.
 type conflictError struct {
-	sku           string
+	sku, location string
 	based, latest int
 }
 
 func (e *conflictError) Error() string {
-	return fmt.Sprintf("sku %q: decision based on version %d, but version %d was recorded since (another tab or user); nothing was saved: reload the item to see it", e.sku, e.based, e.latest)
+	return fmt.Sprintf("%s: decision based on version %d, but version %d was recorded since (another tab or user); nothing was saved: reload the item to see it", itemName(e.sku, e.location), e.based, e.latest)
 }
 
 // record appends d as the next version of its SKU when the latest version
@@ -106,25 +111,26 @@ func (s *store) record(d batch.Decision, basedOn int) (batch.Decision, error) {
 	}
 	latest := batch.LatestDecisions(ds)
 	s.last = latest
-	if v := latest[d.SKU].Version; v != basedOn {
-		return d, &conflictError{sku: d.SKU, based: basedOn, latest: v}
+	if v := latest[d.Key()].Version; v != basedOn {
+		return d, &conflictError{sku: d.SKU, location: d.Location, based: basedOn, latest: v}
 	}
 	d.Version = basedOn + 1
 	d.At = s.now().UTC().Truncate(time.Second)
 	ds = append(ds, d)
-	if err := batch.WriteDecisions(af, ds); err != nil {
+	if err := batch.WriteDecisionsLocation(af, ds, s.location); err != nil {
 		return d, fmt.Errorf("decisions file %s: %w", s.path, err)
 	}
 	if err := af.Commit(); err != nil {
 		return d, fmt.Errorf("decisions file %s: %w", s.path, err)
 	}
-	s.last[d.SKU] = d
+	s.last[d.Key()] = d
 	return d, nil
 }
 
 // DecisionJSON is a decision as the API gives it.
 type DecisionJSON struct {
 	SKU       string             `json:"sku"`
+	Location  string             `json:"location,omitempty"`
 	Version   int                `json:"version"`
 	Decision  batch.DecisionKind `json:"decision"`
 	Policy    *PolicyJSON        `json:"policy"`
@@ -134,7 +140,7 @@ type DecisionJSON struct {
 
 func decisionJSON(d batch.Decision) *DecisionJSON {
 	p := d.Policy
-	return &DecisionJSON{SKU: d.SKU, Version: d.Version, Decision: d.Kind, Policy: policyJSON(&p),
+	return &DecisionJSON{SKU: d.SKU, Location: d.Location, Version: d.Version, Decision: d.Kind, Policy: policyJSON(&p),
 		Note: d.Note, DecidedAt: d.At.UTC().Format(time.RFC3339)}
 }
 
@@ -144,7 +150,7 @@ func (s *Server) decisions(w http.ResponseWriter, r *http.Request) {
 	latest := s.store.latestAll()
 	out := []*DecisionJSON{}
 	for _, e := range s.cfg.Catalogue.entries {
-		if d, ok := latest[e.SKU]; ok {
+		if d, ok := latest[e.key()]; ok {
 			out = append(out, decisionJSON(d))
 		}
 	}
@@ -155,6 +161,7 @@ func (s *Server) decisions(w http.ResponseWriter, r *http.Request) {
 // version of the SKU's latest decision the page showed (0: none).
 type decisionRequest struct {
 	SKU           string `json:"sku"`
+	Location      string `json:"location"`
 	Decision      string `json:"decision"`
 	Version       *int   `json:"version"`
 	Note          string `json:"note"`
@@ -188,11 +195,11 @@ func (s *Server) parseDecision(body io.Reader) (batch.Decision, int, error) {
 	if err != nil {
 		return d, 0, err
 	}
-	known := map[string]bool{"sku": true, "decision": true, "version": true, "note": true, "policy": true,
+	known := map[string]bool{"sku": true, "location": true, "decision": true, "version": true, "note": true, "policy": true,
 		"reorder_point": true, "order_up_to": true, "order_multiple": true}
 	for k := range obj {
 		if !known[k] {
-			return d, 0, badRequest("decision: unknown field %q: want sku, decision, version, note and for an override policy, reorder_point, order_up_to, order_multiple", k)
+			return d, 0, badRequest("decision: unknown field %q: want sku, (location,) decision, version, note and for an override policy, reorder_point, order_up_to, order_multiple", k)
 		}
 	}
 	var req decisionRequest
@@ -201,6 +208,8 @@ func (s *Server) parseDecision(body io.Reader) (batch.Decision, int, error) {
 		switch k {
 		case "sku":
 			err = jsonInto(raw, &req.SKU)
+		case "location":
+			err = jsonInto(raw, &req.Location)
 		case "decision":
 			err = jsonInto(raw, &req.Decision)
 		case "version":
@@ -220,8 +229,11 @@ func (s *Server) parseDecision(body io.Reader) (batch.Decision, int, error) {
 			return d, 0, badRequest("decision: %s %s: %v", k, short(string(raw)), err)
 		}
 	}
-	e, ok := s.cfg.Catalogue.bySKU[req.SKU]
+	e, ok := s.cfg.Catalogue.bySKU[batch.PlanKey(req.SKU, req.Location)]
 	if !ok {
+		if s.cfg.Catalogue.ByLocation {
+			return d, 0, badRequest("decision: %s: want a SKU and location of the results file", itemName(req.SKU, req.Location))
+		}
 		return d, 0, badRequest("decision: sku %q: want a SKU of the results file", req.SKU)
 	}
 	kind, ok := batch.ParseDecisionKind(req.Decision)
@@ -234,16 +246,16 @@ func (s *Server) parseDecision(body io.Reader) (batch.Decision, int, error) {
 	if len(req.Note) > maxNote || strings.ContainsAny(req.Note, "\x00") {
 		return d, 0, badRequest("decision: note: want at most %d bytes of text", maxNote)
 	}
-	d = batch.Decision{SKU: req.SKU, Kind: kind, Note: strings.TrimSpace(oneLine(req.Note))}
+	d = batch.Decision{SKU: req.SKU, Location: req.Location, Kind: kind, Note: strings.TrimSpace(oneLine(req.Note))}
 	switch kind {
 	case batch.Accept:
 		if e.rec == nil {
-			return d, 0, badRequest("decision: sku %q has no recommendation to accept (its row failed: %s)", req.SKU, e.Error)
+			return d, 0, badRequest("decision: %s has no recommendation to accept (its row failed: %s)", itemName(req.SKU, req.Location), e.Error)
 		}
 		d.Policy = *e.rec
 	case batch.Keep:
 		if e.current == nil {
-			return d, 0, badRequest("decision: sku %q has no policy in use to keep (the items file gives no current_* levels)", req.SKU)
+			return d, 0, badRequest("decision: %s has no policy in use to keep (the items file gives no current_* levels)", itemName(req.SKU, req.Location))
 		}
 		d.Policy = *e.current
 	case batch.Override:

@@ -81,7 +81,7 @@ func New(cfg Config) (*Server, error) {
 	if cfg.Timeout <= 0 {
 		cfg.Timeout = DefaultTimeout
 	}
-	st, err := openStore(cfg.Decisions)
+	st, err := openStore(cfg.Decisions, cfg.Catalogue.ByLocation)
 	if err != nil {
 		return nil, err
 	}

@@ -56,9 +56,15 @@ async function api(method, path, body) {
 
 // ---- the list ----
 
+// label names an item: its SKU, with " @ location" in a run by location.
+function label(it) { return it.location ? it.sku + " @ " + it.location : it.sku; }
+
+// same says whether a and b are the same item (same SKU and location).
+function same(a, b) { return a.sku === b.sku && (a.location || "") === (b.location || ""); }
+
 function sortValue(it, key) {
   switch (key) {
-    case "sku": return it.sku;
+    case "sku": return label(it);
     case "pattern": return it.pattern || "";
     case "decision": return it.decision ? it.decision.decision : "";
     default: return it[key];
@@ -71,22 +77,24 @@ function renderList() {
   const open = $("only-open").checked;
   const { key, dir } = state.sort;
   const rows = state.items.filter((it) =>
-    (!q || it.sku.toLowerCase().includes(q)) && (!pat || it.pattern === pat) && (!open || !it.decision));
+    (!q || label(it).toLowerCase().includes(q)) && (!pat || it.pattern === pat) && (!open || !it.decision));
   rows.sort((a, b) => {
     const x = sortValue(a, key), y = sortValue(b, key);
     const xn = x === null || x === undefined || x === "", yn = y === null || y === undefined || y === "";
-    if (xn || yn) return xn === yn ? a.sku.localeCompare(b.sku) : (xn ? 1 : -1);
-    if (typeof x === "number") return dir * (x - y) || a.sku.localeCompare(b.sku);
-    return dir * String(x).localeCompare(String(y)) || a.sku.localeCompare(b.sku);
+    if (xn || yn) return xn === yn ? label(a).localeCompare(label(b)) : (xn ? 1 : -1);
+    if (typeof x === "number") return dir * (x - y) || label(a).localeCompare(label(b));
+    return dir * String(x).localeCompare(String(y)) || label(a).localeCompare(label(b));
   });
   const tb = $("items").tBodies[0];
   tb.replaceChildren();
   for (const it of rows) {
     const tr = el("tr");
-    if (state.item && state.item.sku === it.sku) tr.className = "chosen";
+    if (state.item && same(state.item, it)) tr.className = "chosen";
     const td = el("td");
-    const b = el("button", { type: "button", "data-sku": it.sku }, it.sku);
-    b.addEventListener("click", () => openItem(it.sku));
+    const attrs = { type: "button", "data-sku": it.sku };
+    if (it.location) attrs["data-location"] = it.location;
+    const b = el("button", attrs, label(it));
+    b.addEventListener("click", () => openItem(it.sku, it.location));
     td.appendChild(b);
     tr.appendChild(td);
     tr.appendChild(el("td", {}, it.pattern || ""));
@@ -114,6 +122,7 @@ async function loadItems() {
   state.uncertainty = r.data.uncertainty;
   state.period = r.data.period || "period";
   for (const th of document.querySelectorAll("th.regret")) th.hidden = !state.uncertainty;
+  if (r.data.by_location) document.querySelector('#items th button[data-sort="sku"]').textContent = "SKU @ location";
   const pats = [...new Set(state.items.map((it) => it.pattern).filter((p) => p))].sort();
   const sel = $("pattern");
   for (const p of pats) sel.appendChild(el("option", { value: p }, p));
@@ -122,13 +131,13 @@ async function loadItems() {
 
 // ---- one item ----
 
-async function openItem(sku) {
-  const r = await api("GET", "/api/items/" + encodeURIComponent(sku));
+async function openItem(sku, location) {
+  const r = await api("GET", "/api/items/" + encodeURIComponent(sku) + (location ? "?location=" + encodeURIComponent(location) : ""));
   if (!r.ok) { $("status").textContent = r.data.error; $("status").className = "error"; return; }
   const it = r.data;
   state.item = it;
   $("item").hidden = false;
-  $("item-title").textContent = it.sku;
+  $("item-title").textContent = label(it);
   $("period-name").textContent = state.period;
   $("item-note").textContent = [it.pattern ? "pattern " + it.pattern : "", it.unmet ? "unmet demand " + it.unmet : "",
     it.error ? "batch error: " + it.error : "", it.current_error ? "levels in use: " + it.current_error : "",
@@ -367,6 +376,7 @@ async function decide(kind) {
   const it = state.item;
   if (!it) return;
   const body = { sku: it.sku, decision: kind, version: it.version, note: $("note").value };
+  if (it.location) body.location = it.location;
   if (kind === "override") {
     const t = $("in-policy").value;
     body.policy = t;
@@ -383,7 +393,7 @@ async function decide(kind) {
   st.textContent = "saved: " + r.data.decision + " as version " + r.data.version;
   st.className = "";
   showDecision(r.data, r.data.version);
-  const li = state.items.find((x) => x.sku === it.sku);
+  const li = state.items.find((x) => same(x, it));
   if (li) { li.decision = r.data; li.version = r.data.version; }
   renderList();
 }
