@@ -3,10 +3,20 @@ package main
 import (
 	"bufio"
 	"bytes"
+	"context"
+	"encoding/json"
+	"net/http"
+	"net/http/httptest"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
+
+	"ergostock/cmd/ergostock/whatif"
+	"ergostock/inventory/history"
+	"ergostock/inventory/tabular"
+	"ergostock/policies/batch"
 )
 
 // locationDemo writes, in a temporary directory, a small by-location
@@ -128,5 +138,110 @@ func TestMergeByLocation(t *testing.T) {
 	b, _ := os.ReadFile(merged)
 	if !bytes.Equal(a, b) {
 		t.Errorf("merged results differ from the whole run:\n%s\n---\n%s", a, b)
+	}
+}
+
+// locationReaders are the reader options of the by-location demo: the
+// history's depot column is the location (as --history-columns
+// location=depot gives batch).
+func locationReaders(t *testing.T) readerOptions {
+	t.Helper()
+	cols, err := tabular.ParseColumnMap("--history-columns", "location=depot", history.HistoryColumns)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return func(p history.Period) (batch.ReadOptions, history.Options, error) {
+		return batch.ReadOptions{PeriodDays: periodDays(p), PeriodName: p.String()}, history.Options{Columns: cols, ColumnsFlag: "--history-columns"}, nil
+	}
+}
+
+func get(t *testing.T, h http.Handler, path string) *httptest.ResponseRecorder {
+	t.Helper()
+	rec := httptest.NewRecorder()
+	h.ServeHTTP(rec, httptest.NewRequest("GET", "http://127.0.0.1"+path, nil))
+	return rec
+}
+
+// serve over a run by (sku, location): the list names each pair, one
+// item's page shows its own depot's history, decisions are recorded per
+// pair in a log with a location column, and batch --decisions applies
+// them to that pair only.
+func TestServeByLocation(t *testing.T) {
+	dir, items, hist, cols := locationDemo(t, 3)
+	results := filepath.Join(dir, "r.csv")
+	if code, stderr := runBatchCmd(t, append([]string{"--items", items, "--history", hist, "--out", results}, cols...)...); code != 0 {
+		t.Fatalf("batch: exit %d: %s", code, stderr)
+	}
+	header, rows := readResults(t, results)
+	sku, mean := rows[1][0], rows[1][index(header, "demand_mean")]
+	if rows[1][1] != "millbeck" {
+		t.Fatalf("row 2 %v", rows[1])
+	}
+	// Without the column map the history has no location: refused.
+	if _, err := serveConfig(context.Background(), results, items, hist, ""); err == nil || !strings.Contains(err.Error(), "history-loc.csv:1:") {
+		t.Errorf("history without its location column: %v", err)
+	}
+	decisions := filepath.Join(dir, "d.csv")
+	cfg, err := serveConfigWith(context.Background(), results, items, hist, decisions, locationReaders(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv, err := whatif.New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var list struct {
+		ByLocation bool `json:"by_location"`
+		Items      []struct{ SKU, Location string }
+	}
+	if rec := get(t, srv, "/api/items"); rec.Code != 200 || json.Unmarshal(rec.Body.Bytes(), &list) != nil || !list.ByLocation || len(list.Items) != 6 || list.Items[1].Location != "millbeck" {
+		t.Fatalf("items: %d %.300s", rec.Code, rec.Body.String())
+	}
+	rec := get(t, srv, "/api/items/"+sku+"?location=millbeck")
+	var d struct {
+		Location string
+		Fit      struct{ Mean float64 }
+	}
+	if rec.Code != 200 || json.Unmarshal(rec.Body.Bytes(), &d) != nil || d.Location != "millbeck" || strconv.FormatFloat(d.Fit.Mean, 'g', -1, 64) != mean {
+		t.Errorf("item at millbeck: %d, mean %v (results %s): %.300s", rec.Code, d.Fit.Mean, mean, rec.Body.String())
+	}
+	if rec := get(t, srv, "/api/items/"+sku); rec.Code != 404 || !strings.Contains(rec.Body.String(), "give ?location=LOC") {
+		t.Errorf("item without location: %d %s", rec.Code, rec.Body.String())
+	}
+	for _, c := range []struct {
+		body   string
+		status int
+		want   string
+	}{
+		{`{"sku":"` + sku + `","location":"millbeck","decision":"override","version":0,"order_up_to":` + "500" + `}`, 200, `"location":"millbeck"`},
+		{`{"sku":"` + sku + `","location":"millbeck","decision":"accept","version":0}`, 409, `at location \"millbeck\": decision based on version 0`},
+		{`{"sku":"` + sku + `","decision":"accept","version":0}`, 400, "want a SKU and location of the results file"},
+	} {
+		if rec := post(t, srv, "/api/decisions", c.body); rec.Code != c.status || !strings.Contains(rec.Body.String(), c.want) {
+			t.Errorf("%s: %d %s, want %d and %q", c.body, rec.Code, rec.Body.String(), c.status, c.want)
+		}
+	}
+	raw, err := os.ReadFile(decisions)
+	if err != nil || !strings.HasPrefix(string(raw), "sku,location,version,") {
+		t.Fatalf("decisions file: %v %q", err, raw)
+	}
+	again := filepath.Join(dir, "again.csv")
+	code, stderr := runBatchCmd(t, append([]string{"--items", items, "--history", hist, "--out", again, "--decisions", decisions}, cols...)...)
+	if code != 0 || !strings.Contains(stderr, "1 items take their latest decision") {
+		t.Fatalf("batch --decisions: exit %d: %s", code, stderr)
+	}
+	h2, rows2 := readResults(t, again)
+	cur := index(h2, "current_order_up_to")
+	for i, r := range rows2 {
+		if (r[cur] == "500") != (i == 1) {
+			t.Errorf("row %d (%s @ %s): current_order_up_to %q", i+1, r[0], r[1], r[cur])
+		}
+	}
+	// A log kept by SKU alone does not apply to a run by location.
+	bySKU := filepath.Join(dir, "d-sku.csv")
+	writeFile(t, bySKU, "sku,version,decision,policy,reorder_point,order_up_to,order_multiple,note,decided_at\n"+sku+",1,keep,base-stock,,3,,,\n")
+	code, stderr = runBatchCmd(t, append([]string{"--items", items, "--history", hist, "--out", again, "--decisions", bySKU}, cols...)...)
+	if code != 1 || !strings.Contains(stderr, "d-sku.csv:2: sku") {
+		t.Errorf("by-SKU log on a run by location: exit %d: %s", code, stderr)
 	}
 }

@@ -56,16 +56,16 @@ func ParseDecisionKind(s string) (DecisionKind, bool) {
 
 // Decision is one line of a decisions file.
 type Decision struct {
-	Line    int // in the file; 0 for a decision not read from one
-	SKU     string
+	Line int // in the file; 0 for a decision not read from one
+	SKU  string
 	// Location is the decision's location in a run by (sku, location);
 	// "" otherwise.
 	Location string
 	Version  int
-	Kind    DecisionKind
-	Policy  policies.Policy // the levels the decision settles on
-	Note    string
-	At      time.Time
+	Kind     DecisionKind
+	Policy   policies.Policy // the levels the decision settles on
+	Note     string
+	At       time.Time
 }
 
 // Key is the decision's planning key, PlanKey(SKU, Location): the key of

@@ -94,3 +94,70 @@ func TestApplyDecisions(t *testing.T) {
 		t.Errorf("C touched: %+v", items[2])
 	}
 }
+
+// A run by (sku, location) keeps its decisions with a location column:
+// versions count per (sku, location), the latest decision of each pair is
+// applied to its own item only, and a log that does not match the items'
+// key is refused with its file and line.
+func TestDecisionsByLocation(t *testing.T) {
+	at := time.Date(2026, 12, 2, 15, 4, 5, 0, time.UTC)
+	bs := func(S int) policies.Policy { return policies.Policy{Kind: policies.BaseStock, OrderUpTo: S} }
+	ds := []Decision{
+		{SKU: "A", Location: "north", Version: 1, Kind: Keep, Policy: bs(5), At: at},
+		{SKU: "A", Location: "south", Version: 1, Kind: Override, Policy: bs(9), Note: "=x", At: at},
+		{SKU: "A", Location: "north", Version: 2, Kind: Override, Policy: bs(6), At: at},
+	}
+	var buf bytes.Buffer
+	if err := WriteDecisions(&buf, ds); err != nil {
+		t.Fatal(err)
+	}
+	if h, _, _ := strings.Cut(buf.String(), "\n"); h != strings.Join(DecisionHeaderLocation(), ",") || !strings.HasPrefix(DecisionHeaderLocation()[1], "location") {
+		t.Fatalf("header %q", h)
+	}
+	got, err := ReadDecisions(bytes.NewReader(buf.Bytes()), "d.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range got {
+		got[i].Line = 0
+	}
+	if !reflect.DeepEqual(got, ds) {
+		t.Errorf("read back\n%+v\nwant\n%+v", got, ds)
+	}
+	items := []Item{{SKU: "A", Location: "north"}, {SKU: "A", Location: "south"}, {SKU: "A", Location: "east"}}
+	if err := CheckDecisionsLocation(got, true, "d.csv"); err != nil {
+		t.Fatal(err)
+	}
+	n, unmatched := ApplyDecisions(items, append(got, Decision{SKU: "B", Location: "north", Version: 1, Kind: Keep, Policy: bs(1)}), "d.csv")
+	if n != 2 || len(unmatched) != 1 || unmatched[0] != "B @ north" {
+		t.Errorf("applied %d, unmatched %q", n, unmatched)
+	}
+	for i, want := range []int{6, 9, -1} {
+		switch c := items[i].Current; {
+		case want < 0 && c != nil, want >= 0 && (c == nil || c.OrderUpTo != want):
+			t.Errorf("item %d (%s): current %+v, want order-up-to %d", i, items[i].Location, c, want)
+		}
+	}
+	h := strings.Join(DecisionHeaderLocation(), ",") + "\n"
+	for _, c := range []struct {
+		name, in string
+		byLoc    bool
+		want     string
+	}{
+		{"no-location-cell", h + "A,,1,keep,base-stock,,3,,,\n", true, `d.csv:2: location "": want a location`},
+		{"fields", h + "A,north,1,keep\n", true, "d.csv:2: 4 fields: want 10"},
+		{"version-per-pair", h + "A,north,1,keep,base-stock,,3,,,\nA,south,2,keep,base-stock,,3,,,\n", true, `d.csv:3: version "2": want 1, the next version of sku "A" at location "south"`},
+		{"log-by-sku-run-by-location", strings.Join(DecisionHeader(), ",") + "\nA,1,keep,base-stock,,3,,,\n", true, `d.csv:2: sku "A": no location, but the items file plans by (sku, location)`},
+		{"log-by-location-run-by-sku", h + "A,north,1,keep,base-stock,,3,,,\n", false, `d.csv:2: sku "A": location "north", but the items file has no location column`},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			ds, err := ReadDecisions(strings.NewReader(c.in), "d.csv")
+			if err == nil {
+				err = CheckDecisionsLocation(ds, c.byLoc, "d.csv")
+			}
+			if err == nil || !strings.Contains(err.Error(), c.want) || strings.Contains(err.Error(), "\n") {
+				t.Errorf("got %v, want one line containing %q", err, c.want)
+			}
+		})
+	}
+}
