@@ -514,6 +514,12 @@ func hostileCases() []hostileCase {
 		files: map[string]string{"items.csv": "sku,lead_time,holding_cost,shortage_cost,demand\nA,1,€0.4,12,poisson:mean=9\nB,1,$0.4,12,poisson:mean=9\n"}, code: 1, names: []string{"items.csv", "EUR"}})
 	add(hostileCase{name: "batch-items-location-history-without", args: []string{"batch", "--items", "{dir}/items.csv", "--history", "{dir}/h.csv", "--out", "{dir}/out.csv"},
 		files: map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost\nA,north,1,0.4,12\n", "h.csv": rhist}, code: 1, names: []string{"h.csv", "location"}})
+	add(hostileCase{name: "batch-decisions-by-sku-run-by-location", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--decisions", "{dir}/d.csv"},
+		files: map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost,demand\nA,north,1,0.4,12,poisson:mean=3\n",
+			"d.csv": strings.Join(batch.DecisionHeader(), ",") + "\nA,1,keep,base-stock,,3,,,\n"}, code: 1, names: []string{"d.csv:2", "location"}})
+	add(hostileCase{name: "batch-decisions-location-empty", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--decisions", "{dir}/d.csv"},
+		files: map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost,demand\nA,north,1,0.4,12,poisson:mean=3\n",
+			"d.csv": strings.Join(batch.DecisionHeaderLocation(), ",") + "\nA,,1,keep,base-stock,,3,,,\n"}, code: 1, names: []string{"d.csv:2", "location"}})
 	add(hostileCase{name: "batch-lead-time-days-huge", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
 		files: map[string]string{"items.csv": "sku,lead_time_days,holding_cost,shortage_cost,demand\nA,1e300,0.4,12,poisson:mean=9\nB,3,0.4,12,poisson:mean=9\n"}, code: 3})
 	// The results' output flags and --carry (issue 11).
@@ -690,6 +696,12 @@ func hostileCases() []hostileCase {
 		{"serve-decisions-foreign", withFiles(map[string]string{"d.csv": "when,what\n1,2\n"}), append(append([]string(nil), serveArgs...), "--decisions", "{dir}/d.csv"), 1, []string{"d.csv:1"}},
 		{"serve-decisions-version-gap", withFiles(map[string]string{"d.csv": decHeader + "GOOD,2,keep,base-stock,,20,,,\n"}), append(append([]string(nil), serveArgs...), "--decisions", "{dir}/d.csv"), 1, []string{"d.csv:2", "version"}},
 		{"serve-nothing", nil, []string{}, 2, []string{"--results"}},
+		// serve takes the reader flags of batch (issue 11 downstream) and
+		// keys a run by (sku, location) as batch planned it.
+		{"serve-returns-bad", serveFiles, append(append([]string(nil), serveArgs...), "--returns", "sometimes"), 2, []string{"--returns"}},
+		{"serve-delimiter-bad", serveFiles, append(append([]string(nil), serveArgs...), "--delimiter", "xx"), 2, []string{"--delimiter"}},
+		{"serve-history-columns-unknown", withFiles(map[string]string{"h.csv": rhist}), append(append([]string(nil), serveArgs...), "--history", "{dir}/h.csv", "--history-columns", "location=Site"), 1, []string{"h.csv", "Site"}},
+		{"serve-items-location-results-without", withFiles(map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost\nGOOD,north,1,0.4,12\n"}), serveArgs, 1, []string{"items.csv:1", "location"}},
 	} {
 		add(hostileCase{name: c.name, files: c.files, args: append([]string{"serve"}, c.args...), code: c.code, names: c.want})
 	}

@@ -37,7 +37,17 @@ results file name with "-decisions" before its extension), rewritten
 atomically under a lock at each decision; an older decision is never lost,
 and a decision based on a version that is no longer the latest (a second
 tab) is refused. ergostock batch --decisions FILE takes the latest decision
-of each SKU as its policy in use.
+of each SKU (of each (sku, location) in a run by location) as its policy
+in use.
+
+The items and history are read as batch reads them, with the same reader
+flags (--delimiter, --decimal, --encoding, --date-format,
+--history-columns, --items-columns, --returns, --returns-column,
+--quantity-scale, the sheet flags): give the flags the batch run was given.
+A run planned by (sku, location) (an items file with a location column;
+the results then have one after sku) is served by (sku, location): the
+list names each pair as "SKU @ location", an item's history is its
+location's, and the decisions file has a location column after sku.
 
 The server listens on a loopback address only (127.0.0.1:8080 by default),
 with no accounts: anyone on this machine can use it. --allow-remote lets it
