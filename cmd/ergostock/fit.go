@@ -182,6 +182,11 @@ func fitAll(h *history.History, specs bool) []fitResult {
 					return
 				}
 				k := h.SKUs[i]
+				if err := k.FieldCountError(); err != nil {
+					// As in batch: the SKU fails (history.SKU.FieldCountError).
+					res[i] = fitResult{SKU: k.SKU, Err: err}
+					continue
+				}
 				s, err := k.Fit()
 				res[i] = fitResult{SKU: k.SKU, Summary: s, Err: err}
 				if s.Demand != nil {

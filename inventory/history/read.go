@@ -46,6 +46,9 @@ type SKU struct {
 	// unusable rows that name this SKU, in file order.
 	Records int
 	Errors  []*RowError
+	// width lists the rows of Errors whose number of fields differs from
+	// the header's (see FieldCountError).
+	width []*RowError
 	// LeftOut lists the usable rows left out of Demand because they lie
 	// far from the bulk of the SKU's rows, or of the file's (see the
 	// package documentation), in order of date.
@@ -193,6 +196,7 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 	restart := map[string][2]int{} // key -> last period number, its line
 	labels := Period(-1)           // a period column of labels: Week or Month once seen; Index for numbers
 	errs := map[int]*RowError{}    // row -> why it cannot be used
+	widths := map[int]bool{}       // rows of errs whose field count differs from the header's
 	qerrs := map[int]*RowError{}   // row -> why its quantity cannot (after the date)
 	nums := tabular.Numbers{Decimal: opt.Decimal, File: name}
 	if nums.Decimal == 0 && tr.Dialect.Format == "csv" && tr.Dialect.Delimiter == ',' {
@@ -260,6 +264,7 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 		rw := row{a: a, line: line}
 		idx := rows.n
 		if width != "" {
+			widths[idx] = true
 			if len(rec) < len(tr.Header) {
 				short := fmt.Sprintf(" (the row has %d fields, the header %d)", len(rec), len(tr.Header))
 				switch {
@@ -388,6 +393,9 @@ func ReadWith(r io.Reader, name string, p Period, opt Options) (*History, error)
 		bad := func(e *RowError) { a.sku.Errors = append(a.sku.Errors, e) }
 		if e := errs[i]; e != nil {
 			bad(e)
+			if widths[i] {
+				a.sku.width = append(a.sku.width, e)
+			}
 			continue
 		}
 		t := rw.v
@@ -683,4 +691,26 @@ func hasLineBreak(s string) bool {
 		}
 	}
 	return false
+}
+
+// FieldCountError returns, when some row of the SKU has a number of fields
+// other than the header's, an error naming the first such row's file and
+// line and counting the others; nil when there is none.
+//
+// Such a row fails its SKU, in fit and batch alike: its cells do not line
+// up with the header (an unquoted decimal comma or thousands separator in
+// a comma-delimited file, a stray delimiter in a name), so the rows around
+// it may be misread in the same way and no figure of the SKU can be
+// trusted. Rows with other faults (a bad date, a fractional quantity) are
+// reported by each command as before: fit leaves them out with a
+// warning, batch fails the SKU.
+func (k *SKU) FieldCountError() error {
+	if len(k.width) == 0 {
+		return nil
+	}
+	more := ""
+	if n := len(k.width); n > 1 {
+		more = fmt.Sprintf(" (and %d more rows of this sku with another number of fields)", n-1)
+	}
+	return fmt.Errorf("%w%s: a row whose fields do not line up with the header fails its sku", k.width[0], more)
 }

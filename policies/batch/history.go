@@ -35,6 +35,9 @@ func HistoryFit(h *history.History, need func(sku string) bool) (fit func(sku st
 			}
 			return nil, fmt.Errorf("no history for sku %q in %s%s", sku, file, nearHint(h, sku, ""))
 		}
+		if err := k.FieldCountError(); err != nil {
+			return nil, err // the same message as fit's
+		}
 		if n := len(k.Errors); n > 0 {
 			more := ""
 			if n > 1 {
