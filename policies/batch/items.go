@@ -524,6 +524,10 @@ func parseItem(it *Item, cell func(int) string, nums *tabular.Numbers, line int,
 		sys.Mode = m
 	}
 	if s := raw[colDemand]; s != "" {
+		s, err := decimalCommaSpec(s, nums) // see demandcomma.go
+		if err != nil {
+			return err
+		}
 		d, err := inventory.Parse(s)
 		if err != nil {
 			return withCell(err, raw)
