@@ -17,6 +17,7 @@ import (
 	"github.com/chromedp/cdproto/emulation"
 	"github.com/chromedp/chromedp"
 
+	"ergostock/cmd/ergostock/whatif"
 	"ergostock/policies/batch"
 )
 
@@ -219,5 +220,73 @@ func TestServeBrowser(t *testing.T) {
 	d := ds[0]
 	if d.SKU != sku || d.Kind != batch.Override || d.Version != 1 || d.Note != "checked with the depot, one spare more" || strconv.Itoa(d.Policy.OrderUpTo) != level {
 		t.Errorf("decision read back as %+v (page said %q)", d, status)
+	}
+}
+
+// TestServeBrowserByLocation drives the page over a run by (sku,
+// location): the list names each pair, opening one at a depot shows that
+// depot's item, and accepting its recommendation writes a decision with
+// the location to the decisions file.
+func TestServeBrowserByLocation(t *testing.T) {
+	exe := chromiumPath()
+	if exe == "" {
+		t.Skip("no Chromium installed (Debian: apt-get install chromium); the browser test needs one")
+	}
+	dir, items, hist, cols := locationDemo(t, 2)
+	results := dir + "/r.csv"
+	if code, stderr := runBatchCmd(t, append([]string{"--items", items, "--history", hist, "--out", results}, cols...)...); code != 0 {
+		t.Fatalf("batch: exit %d: %s", code, stderr)
+	}
+	_, rows := readResults(t, results)
+	sku := rows[1][0]
+	decisions := dir + "/d.csv"
+	cfg, err := serveConfigWith(context.Background(), results, items, hist, decisions, locationReaders(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv, err := whatif.New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ts := httptest.NewServer(srv)
+	defer ts.Close()
+	actx, cancelAlloc := chromedp.NewExecAllocator(context.Background(), chromedp.ExecPath(exe), chromedp.Headless,
+		chromedp.NoSandbox, chromedp.DisableGPU, chromedp.NoFirstRun, chromedp.NoDefaultBrowserCheck,
+		chromedp.Flag("disable-background-networking", true), chromedp.UserDataDir(t.TempDir()))
+	defer cancelAlloc()
+	ctx, cancel := chromedp.NewContext(actx)
+	defer cancel()
+	ctx, cancelT := context.WithTimeout(ctx, 90*time.Second)
+	defer cancelT()
+	button := chromedp.CSS(`#items tbody button[data-sku="` + sku + `"][data-location="millbeck"]`)
+	err = chromedp.Do(ctx,
+		chromedp.Navigate(ts.URL+"/"),
+		chromedp.WaitVisible(button),
+		chromedp.Click(button),
+		chromedp.Poll[chromedp.Void](`document.getElementById('figures').dataset.state === 'ready'`, chromedp.WithPollingTimeout(30*time.Second)),
+	)
+	if err != nil {
+		t.Fatalf("opening the item: %v", err)
+	}
+	title, _ := chromedp.Run(ctx, chromedp.Text(chromedp.ID("item-title")))
+	head, _ := chromedp.Run(ctx, chromedp.Text(chromedp.CSS(`#items th button[data-sort="sku"]`)))
+	if title != sku+" @ millbeck" || head != "SKU @ location" {
+		t.Errorf("title %q, list header %q", title, head)
+	}
+	err = chromedp.Do(ctx,
+		chromedp.Click(chromedp.ID("accept")),
+		chromedp.Poll[chromedp.Void](`document.getElementById('decision-status').textContent.startsWith('saved')`, chromedp.WithPollingTimeout(30*time.Second)),
+	)
+	if err != nil {
+		t.Fatalf("recording the decision: %v", err)
+	}
+	f, err := os.Open(decisions)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds, err := batch.ReadDecisions(f, decisions)
+	f.Close()
+	if err != nil || len(ds) != 1 || ds[0].SKU != sku || ds[0].Location != "millbeck" || ds[0].Kind != batch.Accept {
+		t.Errorf("decisions %+v, %v; want one accept of %s at millbeck", ds, err, sku)
 	}
 }
