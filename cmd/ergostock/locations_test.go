@@ -245,3 +245,37 @@ func TestServeByLocation(t *testing.T) {
 		t.Errorf("by-SKU log on a run by location: exit %d: %s", code, stderr)
 	}
 }
+
+// The one-SKU page of one location: --location picks the SKU's rows at a
+// depot; a location the SKU has no rows at is refused naming those it has.
+func TestReportSKUAtLocation(t *testing.T) {
+	dir, _, hist, cols := locationDemo(t, 1)
+	raw, _ := os.ReadFile(hist)
+	sku := strings.Split(strings.Split(string(raw), "\n")[1], ",")[2]
+	base := append([]string{"ergostock", "report", "--history", hist, "--sku", sku, "--holding-cost", "1", "--shortage-cost", "9"}, cols...)
+	page := filepath.Join(dir, "one.html")
+	var o, e bytes.Buffer
+	if code := run(append(base, "--location", "millbeck", "--out", page), nil, &o, &e); code != 0 {
+		t.Fatalf("report --location: exit %d: %s", code, e.String())
+	}
+	if html, _ := os.ReadFile(page); !bytes.Contains(html, []byte(sku+" @ millbeck")) {
+		t.Errorf("page does not name %s @ millbeck", sku)
+	}
+	for _, c := range []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{"--location", "nowhere"}, 1, `no rows of SKU "` + sku + `" at location "nowhere": want one of its locations ("harrow-lane", "millbeck")`},
+	} {
+		e.Reset()
+		code := run(append(append(base, "--out", filepath.Join(dir, "x.html")), c.args...), nil, &o, &e)
+		if code != c.code || !strings.Contains(e.String(), c.want) || strings.Count(strings.TrimSpace(e.String()), "\n") != 0 {
+			t.Errorf("%v: exit %d, %q; want %d and %q", c.args, code, e.String(), c.code, c.want)
+		}
+	}
+	e.Reset()
+	if code := run([]string{"ergostock", "report", "--history", hist, "--sku", sku, "--holding-cost", "1", "--shortage-cost", "9", "--location", "millbeck", "--out", filepath.Join(dir, "y.html")}, nil, &o, &e); code != 1 || !strings.Contains(e.String(), "the history has no location column") {
+		t.Errorf("without the column map: exit %d, %q", code, e.String())
+	}
+}

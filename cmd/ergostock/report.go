@@ -83,6 +83,7 @@ func reportCommand() *cli.Command {
 		&cli.Float64Flag{Name: "min-fill-rate", Usage: "recommend the cheapest policy with fill rate at least F, for F in (0, 1)"},
 		&cli.StringFlag{Name: "history", Usage: "demand history (CSV with sku, date or period, quantity)"},
 		&cli.StringFlag{Name: "sku", Usage: "the SKU of --history to show (one-SKU page)"},
+		&cli.StringFlag{Name: "location", Usage: "with --history --sku: the SKU's rows at this location only (the history's location column; default: summed over locations)"},
 		&cli.StringFlag{Name: "period", Usage: "review period the history is summed into: day, week (ISO, Monday first) or month", Value: "week"},
 		&cli.BoolFlag{Name: "simulate", Usage: "add the exact-versus-simulated table (one-SKU page)"},
 		&cli.IntFlag{Name: "periods", Usage: "with --simulate: periods per replication, warm-up included", Value: 50_000},
@@ -158,6 +159,9 @@ func reportSKU(c *cli.Context) (*report.SKUPage, error) {
 		}
 	}
 	in := report.SKUInput{Version: version, DemandSource: "--demand"}
+	if c.IsSet("location") && !c.IsSet("sku") {
+		return nil, usageErr("--location goes with --history --sku: it picks the SKU's rows at one location")
+	}
 	if c.IsSet("history") != c.IsSet("sku") {
 		return nil, usageErr("--history and --sku go together: give both to show a SKU's demand history")
 	}
@@ -167,6 +171,9 @@ func reportSKU(c *cli.Context) (*report.SKUPage, error) {
 			return nil, err
 		}
 		in.History, in.SKU = h, h.SKU
+		if loc := c.String("location"); loc != "" {
+			in.SKU = h.SKU + " @ " + loc
+		}
 		if !c.IsSet("demand") {
 			if h.Fitted == nil {
 				return nil, fmt.Errorf("%s: SKU %q: no demand model could be fitted; give --demand", h.File, h.SKU)
@@ -268,20 +275,35 @@ func reportHistory(c *cli.Context) (*report.History, error) {
 	if err != nil {
 		return nil, usageErr("--%v", err)
 	}
-	path, sku := c.String("history"), c.String("sku")
+	path, sku, loc := c.String("history"), c.String("sku"), c.String("location")
 	hopt, err := historyOptions(c)
 	if err != nil {
 		return nil, err
 	}
+	hopt.ByLocation = loc != ""
 	h, err := reportReadHistory(path, period, hopt)
 	if err != nil {
 		return nil, err
 	}
+	if loc != "" && !h.Location {
+		return nil, fmt.Errorf("%s:1: --location %s: the history has no location column (map one with --history-columns location=HEADER)", path, loc)
+	}
 	var k *history.SKU
 	for _, s := range h.SKUs {
-		if s.SKU == sku {
+		if s.SKU == sku && s.Location == loc {
 			k = s
 			break
+		}
+	}
+	if k == nil && loc != "" {
+		var at []string
+		for _, s := range h.SKUs {
+			if s.SKU == sku && len(at) < 5 {
+				at = append(at, strconv.Quote(s.Location))
+			}
+		}
+		if len(at) > 0 {
+			return nil, fmt.Errorf("%s: no rows of SKU %q at location %q: want one of its locations (%s)", path, sku, loc, strings.Join(at, ", "))
 		}
 	}
 	if k == nil {
@@ -340,7 +362,7 @@ func reportReadHistory(path string, p history.Period, opt history.Options) (*his
 // reportBatch gathers the batch page.
 func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 	for _, f := range []string{"demand", "lead-time", "holding-cost", "shortage-cost", "order-cost", "unit-cost", "unmet",
-		"reorder-point", "order-up-to", "order-multiple", "policy", "min-fill-rate", "sku", "simulate",
+		"reorder-point", "order-up-to", "order-multiple", "policy", "min-fill-rate", "sku", "location", "simulate",
 		"uncertainty", "resamples", "resampling", "robust", "floor-confidence"} {
 		if c.IsSet(f) {
 			return nil, usageErr("--%s belongs to a one-SKU page; a batch page (--results) takes --items, --history, --targets and --workers", f)
