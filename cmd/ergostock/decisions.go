@@ -22,14 +22,14 @@ func applyDecisionsFile(path string, items []batch.Item, byLocation bool, stderr
 		return fmt.Errorf("--decisions: %w", err)
 	}
 	defer f.Close()
-	ds, err := batch.ReadDecisions(f, path)
+	log, err := batch.ReadDecisionLog(f, path)
 	if err != nil {
 		return err
 	}
-	if err := batch.CheckDecisionsLocation(ds, byLocation, path); err != nil {
+	if err := batch.CheckDecisionsLocation(log, byLocation, path); err != nil {
 		return err
 	}
-	n, unmatched := batch.ApplyDecisions(items, ds, path)
+	n, unmatched := batch.ApplyDecisions(items, log.Decisions, path)
 	msg := fmt.Sprintf("ergostock: %s: %d items take their latest decision as the policy in use", path, n)
 	if len(unmatched) > 0 {
 		msg += fmt.Sprintf("; %d SKUs of the decisions are not in the items file (first %q)", len(unmatched), unmatched[0])

@@ -517,9 +517,9 @@ func hostileCases() []hostileCase {
 	add(hostileCase{name: "batch-decisions-by-sku-run-by-location", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--decisions", "{dir}/d.csv"},
 		files: map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost,demand\nA,north,1,0.4,12,poisson:mean=3\n",
 			"d.csv": strings.Join(batch.DecisionHeader(), ",") + "\nA,1,keep,base-stock,,3,,,\n"}, code: 1, names: []string{"d.csv:2", "location"}})
-	add(hostileCase{name: "batch-decisions-location-empty", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--decisions", "{dir}/d.csv"},
-		files: map[string]string{"items.csv": "sku,location,lead_time,holding_cost,shortage_cost,demand\nA,north,1,0.4,12,poisson:mean=3\n",
-			"d.csv": strings.Join(batch.DecisionHeaderLocation(), ",") + "\nA,,1,keep,base-stock,,3,,,\n"}, code: 1, names: []string{"d.csv:2", "location"}})
+	add(hostileCase{name: "batch-decisions-location-run-by-sku", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv", "--decisions", "{dir}/d.csv"},
+		files: map[string]string{"items.csv": "sku,lead_time,holding_cost,shortage_cost,demand\nA,1,0.4,12,poisson:mean=3\n",
+			"d.csv": strings.Join(batch.DecisionHeaderLocation(), ",") + "\nA,north,1,keep,base-stock,,3,,,\n"}, code: 1, names: []string{"d.csv:2", "location"}})
 	add(hostileCase{name: "batch-demand-decimal-comma-ambiguous", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
 		files: map[string]string{"items.csv": "sku;lead_time;holding_cost;shortage_cost;demand\nA;1;1;9;poisson:mean=1,500\nB;1;1;9;negbin:mean=2,5,var=9,75\n"}, code: 3})
 	add(hostileCase{name: "batch-lead-time-days-huge", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},

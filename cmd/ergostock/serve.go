@@ -171,6 +171,7 @@ func serveConfigWith(ctx context.Context, resultsPath, itemsPath, histPath, deci
 		Catalogue: whatif.NewCatalogue(res.Rows, regret, items, h, period),
 		Decisions: decisionsPath,
 	}
+	cfg.Catalogue.ByLocation = cat.ByLocation // even when every location cell is empty
 	return cfg, nil
 }
 

@@ -126,14 +126,31 @@ func WriteDecisionsLocation(w io.Writer, ds []Decision, location bool) error {
 // in errors. An empty input has no decisions. Errors are one line naming
 // the file, the line and the column (*LineError). The versions of a SKU
 // must count up from 1 in file order. A location column after sku (see
-// DecisionHeaderLocation) gives each decision its location; a file with
-// it has no decision without one.
+// DecisionHeaderLocation) gives each decision its location (an empty cell
+// is the location "", as in an items file).
 func ReadDecisions(r io.Reader, name string) ([]Decision, error) {
+	log, err := ReadDecisionLog(r, name)
+	if err != nil {
+		return nil, err
+	}
+	return log.Decisions, nil
+}
+
+// DecisionLog is a decisions file as read.
+type DecisionLog struct {
+	Decisions []Decision
+	// Location is true when the file has a location column.
+	Location bool
+}
+
+// ReadDecisionLog reads a decisions file as ReadDecisions does, and says
+// whether it has a location column.
+func ReadDecisionLog(r io.Reader, name string) (*DecisionLog, error) {
 	cr := csv.NewReader(r)
 	cr.FieldsPerRecord = -1
 	header, err := cr.Read()
 	if err == io.EOF {
-		return nil, nil
+		return &DecisionLog{}, nil
 	}
 	if err != nil {
 		return nil, csvErr(name, 1, err)
@@ -159,7 +176,7 @@ func ReadDecisions(r io.Reader, name string) ([]Decision, error) {
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
-			return ds, nil
+			return &DecisionLog{Decisions: ds, Location: location}, nil
 		}
 		line, _ := cr.FieldPos(0)
 		if err != nil {
@@ -171,9 +188,6 @@ func ReadDecisions(r io.Reader, name string) ([]Decision, error) {
 		var loc string
 		if location {
 			loc = Unguard(strings.TrimSpace(rec[1]))
-			if loc == "" {
-				return nil, &LineError{File: name, Line: line, Err: &inventory.FieldError{Field: "location", Value: rec[1], Want: "a location (the file has a location column)"}}
-			}
 			rec = append(rec[:1:1], rec[2:]...)
 		}
 		d, err := parseDecision(rec, len(want)-map[bool]int{true: 1}[location])
@@ -318,15 +332,18 @@ func ApplyDecisions(items []Item, ds []Decision, file string) (applied int, unma
 	return applied, unmatched
 }
 
-// CheckDecisionsLocation refuses decisions ds (of the file named file)
-// that do not match the planning key of the items: in a run by (sku,
-// location) (byLocation) every decision needs a location, and in a run by
-// SKU none may have one. The error is one line naming the file and line.
-func CheckDecisionsLocation(ds []Decision, byLocation bool, file string) error {
-	for _, d := range ds {
+// CheckDecisionsLocation refuses a decisions log (of the file named file)
+// that does not match the planning key of the items: a run by (sku,
+// location) (byLocation) wants a log with a location column, and in a run
+// by SKU no decision may have a location. The error is one line naming
+// the file and the line of the first decision concerned.
+func CheckDecisionsLocation(log *DecisionLog, byLocation bool, file string) error {
+	if byLocation && !log.Location && len(log.Decisions) > 0 {
+		d := log.Decisions[0]
+		return &LineError{File: file, Line: d.Line, Err: fmt.Errorf("sku %q: no location, but the items file plans by (sku, location): want a decisions file with a location column after sku (serve writes one for such a run)", d.SKU)}
+	}
+	for _, d := range log.Decisions {
 		switch {
-		case byLocation && d.Location == "":
-			return &LineError{File: file, Line: d.Line, Err: fmt.Errorf("sku %q: no location, but the items file plans by (sku, location): want a decisions file with a location column after sku (serve writes one for such a run)", d.SKU)}
 		case !byLocation && d.Location != "":
 			return &LineError{File: file, Line: d.Line, Err: fmt.Errorf("sku %q: location %q, but the items file has no location column (it plans each SKU on its whole history): give the decisions of this run", d.SKU, d.Location)}
 		}

@@ -125,7 +125,7 @@ func TestDecisionsByLocation(t *testing.T) {
 		t.Errorf("read back\n%+v\nwant\n%+v", got, ds)
 	}
 	items := []Item{{SKU: "A", Location: "north"}, {SKU: "A", Location: "south"}, {SKU: "A", Location: "east"}}
-	if err := CheckDecisionsLocation(got, true, "d.csv"); err != nil {
+	if err := CheckDecisionsLocation(&DecisionLog{Decisions: got, Location: true}, true, "d.csv"); err != nil {
 		t.Fatal(err)
 	}
 	n, unmatched := ApplyDecisions(items, append(got, Decision{SKU: "B", Location: "north", Version: 1, Kind: Keep, Policy: bs(1)}), "d.csv")
@@ -139,21 +139,24 @@ func TestDecisionsByLocation(t *testing.T) {
 		}
 	}
 	h := strings.Join(DecisionHeaderLocation(), ",") + "\n"
+	// An empty location cell is the location "", as in an items file.
+	if log, err := ReadDecisionLog(strings.NewReader(h+"A,,1,keep,base-stock,,3,,,\n"), "d.csv"); err != nil || !log.Location || log.Decisions[0].Key() != "A" || CheckDecisionsLocation(log, true, "d.csv") != nil {
+		t.Errorf("empty location cell: %+v, %v", log, err)
+	}
 	for _, c := range []struct {
 		name, in string
 		byLoc    bool
 		want     string
 	}{
-		{"no-location-cell", h + "A,,1,keep,base-stock,,3,,,\n", true, `d.csv:2: location "": want a location`},
 		{"fields", h + "A,north,1,keep\n", true, "d.csv:2: 4 fields: want 10"},
 		{"version-per-pair", h + "A,north,1,keep,base-stock,,3,,,\nA,south,2,keep,base-stock,,3,,,\n", true, `d.csv:3: version "2": want 1, the next version of sku "A" at location "south"`},
 		{"log-by-sku-run-by-location", strings.Join(DecisionHeader(), ",") + "\nA,1,keep,base-stock,,3,,,\n", true, `d.csv:2: sku "A": no location, but the items file plans by (sku, location)`},
 		{"log-by-location-run-by-sku", h + "A,north,1,keep,base-stock,,3,,,\n", false, `d.csv:2: sku "A": location "north", but the items file has no location column`},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			ds, err := ReadDecisions(strings.NewReader(c.in), "d.csv")
+			log, err := ReadDecisionLog(strings.NewReader(c.in), "d.csv")
 			if err == nil {
-				err = CheckDecisionsLocation(ds, c.byLoc, "d.csv")
+				err = CheckDecisionsLocation(log, c.byLoc, "d.csv")
 			}
 			if err == nil || !strings.Contains(err.Error(), c.want) || strings.Contains(err.Error(), "\n") {
 				t.Errorf("got %v, want one line containing %q", err, c.want)

@@ -36,28 +36,39 @@ func openStore(path string, location bool) (*store, error) {
 	if path == "" {
 		return s, nil
 	}
-	ds, err := readDecisions(path)
+	log, err := readDecisionLog(path)
 	if err != nil {
 		return nil, err
 	}
-	if err := batch.CheckDecisionsLocation(ds, location, path); err != nil {
+	if err := batch.CheckDecisionsLocation(log, location, path); err != nil {
 		return nil, err
 	}
+	ds := log.Decisions
 	s.last = batch.LatestDecisions(ds)
 	return s, nil
 }
 
 // readDecisions reads the log at path; a missing file has no decisions.
 func readDecisions(path string) ([]batch.Decision, error) {
+	log, err := readDecisionLog(path)
+	if err != nil {
+		return nil, err
+	}
+	return log.Decisions, nil
+}
+
+// readDecisionLog reads the log at path with its shape; a missing file
+// is an empty log.
+func readDecisionLog(path string) (*batch.DecisionLog, error) {
 	f, err := os.Open(path)
 	if errors.Is(err, fs.ErrNotExist) {
-		return nil, nil
+		return &batch.DecisionLog{}, nil
 	}
 	if err != nil {
 		return nil, fmt.Errorf("--decisions: %w", err)
 	}
 	defer f.Close()
-	return batch.ReadDecisions(f, path)
+	return batch.ReadDecisionLog(f, path)
 }
 
 func (s *store) latest(sku string) (batch.Decision, bool) {
