@@ -80,6 +80,9 @@ func TestReportByLocation(t *testing.T) {
 	if code := run(append([]string{"ergostock", "report", "--results", out, "--items", items, "--history", hist, "--out", page, "--targets", "0.9,0.99"}, cols...), nil, &o, &e); code != 0 {
 		t.Fatalf("report: exit %d: %s", code, e.String())
 	}
+	if strings.Contains(e.String(), "warning: the reader flags") {
+		t.Errorf("report with the batch's reader flags warned: %s", e.String())
+	}
 	html, err := os.ReadFile(page)
 	if err != nil {
 		t.Fatal(err)
@@ -107,8 +110,10 @@ func TestReportByLocation(t *testing.T) {
 		o.Reset()
 		e.Reset()
 		code := run(append([]string{"ergostock", "report", "--out", filepath.Join(dir, "x.html")}, c.args...), nil, &o, &e)
-		if code != 1 || !strings.Contains(e.String(), c.want) || strings.Count(strings.TrimSpace(e.String()), "\n") != 0 {
-			t.Errorf("%s: exit %d, %q; want exit 1 and one line with %q", c.name, code, e.String(), c.want)
+		// Without the batch's reader flags, a warning line comes first.
+		lines := strings.Split(strings.TrimSpace(e.String()), "\n")
+		if code != 1 || len(lines) != 2 || !strings.Contains(lines[0], "warning: the reader flags given are not those") || !strings.Contains(lines[1], c.want) {
+			t.Errorf("%s: exit %d, %q; want exit 1, the reader-flags warning and one line with %q", c.name, code, e.String(), c.want)
 		}
 	}
 }

@@ -178,3 +178,19 @@ func unitOf(scale float64) string {
 	}
 	return strings.TrimPrefix(history.UnitNote(scale), "quantities in units of ")
 }
+
+// warnReading warns on stderr when the reader flags of c are not those the
+// results at path were planned with (their header record's reading=): the
+// inputs may then be read otherwise than the batch read them.
+func warnReading(c *cli.Context, m *batch.Meta, path string) {
+	if m == nil {
+		return
+	}
+	if got := readingDigest(c); got != m.Reading {
+		want := "none"
+		if m.Reading != "" {
+			want = "reading=" + m.Reading
+		}
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: warning: the reader flags given are not those %s was planned with (%s on its line 1): give the batch's reader flags, or the inputs may be read otherwise\n", path, want)
+	}
+}

@@ -401,6 +401,9 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		}
 		period = meta.Period
 	}
+	if c.IsSet("items") || c.IsSet("history") {
+		warnReading(c, meta, path)
+	}
 	in := report.BatchInput{ResultsFile: path, Rows: res.Rows, Targets: targets, Workers: c.Int("workers"), Version: version}
 	byLocation := res.ByLocation
 	if meta != nil {

@@ -1,10 +1,12 @@
 package main
 
 import (
+	"bufio"
 	"bytes"
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"net"
 	"net/http"
 	"os"
@@ -191,6 +193,9 @@ func runServe(c *cli.Context) error {
 	}
 	ctx, stop := signal.NotifyContext(c.Context, os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	if res, err := readResultsMeta(c.String("results")); err == nil {
+		warnReading(c, res, c.String("results"))
+	}
 	cfg, err := serveConfigWith(ctx, c.String("results"), c.String("items"), c.String("history"), c.String("decisions"),
 		func(p history.Period) (batch.ReadOptions, history.Options, error) {
 			iopt, err := itemsOptions(c, p)
@@ -303,4 +308,19 @@ func keepLevels(ctx context.Context, e *policies.Evaluation) {
 	if s, ok := ctx.Value(levelsKey{}).(*levelsSink); ok {
 		s.levels = e.Levels
 	}
+}
+
+// readResultsMeta reads the header record of a results file (nil without
+// one); an unreadable file is left for serveConfigWith to report.
+func readResultsMeta(path string) (*batch.Meta, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	line, err := bufio.NewReader(io.LimitReader(f, 1<<16)).ReadString('\n')
+	if !strings.HasPrefix(line, "#") {
+		return nil, err
+	}
+	return batch.ParseMeta(line, path, 1)
 }
