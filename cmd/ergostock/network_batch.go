@@ -8,6 +8,7 @@ import (
 	"os"
 	"runtime"
 	"strconv"
+	"strings"
 
 	"github.com/urfave/cli/v2"
 
@@ -20,7 +21,7 @@ import (
 // row per SKU and location.
 var networkBatchHeader = []string{"sku", "location", "parent", "lead_time", "base_stock", "echelon_base_stock",
 	"fill_rate", "stockout_probability", "mean_on_hand", "mean_backorders", "holding_cost", "shortage_cost",
-	"total_cost", "network_total_cost", "alone_total_cost", "exact", "fill_rate_error", "error"}
+	"total_cost", "network_total_cost", "alone_total_cost", "exact", "fill_rate_error", "warnings", "error"}
 
 func networkBatchCommand() *cli.Command {
 	return &cli.Command{
@@ -31,8 +32,12 @@ func networkBatchCommand() *cli.Command {
 			"alone for comparison, and writes --out atomically. A SKU whose rows cannot be used fails alone:\n" +
 			"its row carries the reason in the error column (exit status 3). For SKUs with several stores\n" +
 			"the figures are an approximation; fill_rate_error is the largest fill-rate difference from a\n" +
-			"short seeded simulation of the same network (--check-periods 0 skips it).",
-		Flags: []cli.Flag{
+			"short seeded simulation of the same network (--check-periods 0 skips it).\n\n" +
+			"With --history (a demand history with a location column), every location whose demand cell is\n" +
+			"empty (or every location, when the items file has no demand column) gets the demand fitted to\n" +
+			"the history rows of its SKU and location, as fit and batch fit it; a centre without rows has no\n" +
+			"demand of its own, a store without rows fails its SKU. The warnings column says what was fitted.",
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "the items file (CSV or .xlsx)"},
 			&cli.StringFlag{Name: "out", Usage: "results file to write"},
 			&cli.StringFlag{Name: "levels", Usage: "what the centre's base_stock means: echelon or installation", Value: "echelon"},
@@ -42,7 +47,7 @@ func networkBatchCommand() *cli.Command {
 			&cli.StringFlag{Name: "check-periods", Usage: "periods per replication of the check simulation (several stores); 0 skips it", Value: "5000"},
 			&cli.StringFlag{Name: "check-replications", Usage: "replications of the check simulation", Value: "4"},
 			&cli.StringFlag{Name: "seed", Usage: "seed of the check simulation", Value: "1"},
-		},
+		}, append(networkHistoryFlags(false), itemsReadFlags()...)...),
 		Action: networkBatch,
 	}
 }
@@ -88,11 +93,29 @@ func networkBatch(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	opt, err := networkReadOptions(c, "items-columns")
+	if err != nil {
+		return err
+	}
+	h, err := readNetworkHistory(c)
+	if err != nil {
+		return err
+	}
+	notes := map[string]string{}
+	if h != nil {
+		if sameFile(h.File, out) {
+			return usageErr("--out %s: it is the --history file", out)
+		}
+		opt.Demand = historyDemand(h, path, notes)
+	}
+	if sameFile(path, out) {
+		return usageErr("--out %s: it is the --items file", out)
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return err
 	}
-	items, err := network.ReadCatalogue(f, path, levels, tabular.Options{})
+	items, err := network.ReadCatalogueWith(f, path, levels, opt)
 	f.Close()
 	if err != nil {
 		return err
@@ -135,7 +158,8 @@ func networkBatch(c *cli.Context) error {
 			rows = append(rows, []string{batch.Guard(it.SKU), batch.Guard(l.Location), batch.Guard(l.Parent), strconv.Itoa(l.LeadTime),
 				strconv.Itoa(l.InstallationLevel), strconv.Itoa(l.EchelonLevel), g(l.FillRate), g(l.StockoutProbability),
 				g(l.MeanOnHand), g(l.MeanBackorders), g(l.HoldingCost), g(l.ShortageCost), g(l.TotalCost),
-				g(p.Result.TotalCost), g(alone.Result.TotalCost), strconv.FormatBool(p.Result.Exact), gOrEmpty(fillErr), ""})
+				g(p.Result.TotalCost), g(alone.Result.TotalCost), strconv.FormatBool(p.Result.Exact), gOrEmpty(fillErr),
+				batch.Guard(notes[batch.PlanKey(it.SKU, l.Location)]), ""})
 		}
 		return rows
 	}
@@ -172,6 +196,17 @@ func networkBatch(c *cli.Context) error {
 		return fmt.Errorf("--out %s: %w", out, err)
 	}
 	msg := fmt.Sprintf("network batch: %d SKUs: %d planned, %d failed; results in %s", len(items), planned, failed, out)
+	if h != nil {
+		fitted, bare := 0, 0
+		for _, n := range notes {
+			if strings.HasPrefix(n, "centre ") {
+				bare++
+			} else {
+				fitted++
+			}
+		}
+		msg += fmt.Sprintf("; demand fitted from %s (by location, per %s) at %d locations, %d centres without demand of their own", h.File, h.Period, fitted, bare)
+	}
 	if failed > 0 {
 		return &exitError{code: 3, err: fmt.Errorf("%s", msg)}
 	}
