@@ -124,7 +124,7 @@ func historyDemand(h *history.History, file string, notes map[string]string) fun
 				}
 				return nil, note, nil
 			}
-			return nil, "", bad("empty, and %s has no rows of sku %q at location %q%s: want a demand law, or history rows for every store", h.File, sku, l.Name, hint)
+			return nil, "", bad("empty, and %s has no rows of sku %q at location %q: want a demand law, or history rows for every store%s", h.File, sku, l.Name, hint)
 		}
 		if l.Parent == "" {
 			return nil, "", bad("empty, and %s has %d rows of sku %q at the centre %q: external demand at the centre is not modelled: give it to a store of the centre with lead time 0", h.File, k.Records, sku, l.Name)
