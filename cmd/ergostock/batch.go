@@ -153,6 +153,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	if c.Int("max-states") < 1 {
 		return usageErr("--max-states %d: want a state count >= 1", c.Int("max-states"))
 	}
+	if itemsAreNetworks(c) {
+		return batchNetworks(c) // location and parent columns: one network per SKU
+	}
 	timeout := c.Duration("item-timeout")
 	if timeout < 0 {
 		return usageErr("--item-timeout %v: want a duration >= 0 (0 for no limit), e.g. 90s or 5m", timeout)

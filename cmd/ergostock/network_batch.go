@@ -93,6 +93,28 @@ func networkBatch(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	return runNetworkBatch(c, networkBatchConfig{items: path, out: out, levels: levels, split: split, floor: floor,
+		workers: workers, periods: periods, reps: reps, seed: seed, command: "network batch"})
+}
+
+// networkBatchConfig is what `network batch` (and `batch` with an items
+// file of networks) was asked for.
+type networkBatchConfig struct {
+	items, out       string
+	levels           network.Levels
+	split            network.Split
+	floor            float64
+	workers, periods int
+	reps, seed       int
+	command          string // for the summary line
+}
+
+// runNetworkBatch plans the networks of cfg.items; the reader flags
+// (dialect, --items-columns, --items-sheet, --history and its flags) are
+// read from c, which both commands give.
+func runNetworkBatch(c *cli.Context, cfg networkBatchConfig) error {
+	path, out, levels, split, floor := cfg.items, cfg.out, cfg.levels, cfg.split, cfg.floor
+	workers, periods, reps, seed := cfg.workers, cfg.periods, cfg.reps, cfg.seed
 	opt, err := networkReadOptions(c, "items-columns")
 	if err != nil {
 		return err
@@ -195,7 +217,7 @@ func networkBatch(c *cli.Context) error {
 	if err := a.Commit(); err != nil {
 		return fmt.Errorf("--out %s: %w", out, err)
 	}
-	msg := fmt.Sprintf("network batch: %d SKUs: %d planned, %d failed; results in %s", len(items), planned, failed, out)
+	msg := fmt.Sprintf("%s: %d SKUs: %d planned, %d failed; results in %s", cfg.command, len(items), planned, failed, out)
 	if h != nil {
 		fitted, bare := 0, 0
 		for _, n := range notes {
@@ -228,4 +250,62 @@ func gOrEmpty(v float64) string {
 		return ""
 	}
 	return g(v)
+}
+
+// itemsAreNetworks reports whether the batch items file plans networks: a
+// header with both a location and a parent column (by name, or mapped by
+// --items-columns). Anything it cannot read is left to the plain reader,
+// which reports it.
+func itemsAreNetworks(c *cli.Context) bool {
+	path := c.String("items")
+	if path == "" || path == "-" {
+		return false
+	}
+	t, _, err := tableOptions(c)
+	if err != nil {
+		return false
+	}
+	t.Sheet = c.String("items-sheet")
+	m, err := tabular.ParseColumnMap("--items-columns", c.String("items-columns"), network.CatalogueColumns())
+	if err != nil {
+		m = nil
+	}
+	r, closer, err := tabular.OpenFile(path, t)
+	if err != nil {
+		return false
+	}
+	defer closer()
+	has := map[string]bool{}
+	for _, h := range r.Header {
+		has[tabular.Normalize(h)] = true
+	}
+	for k, v := range m {
+		if has[tabular.Normalize(v)] {
+			has[k] = true
+		}
+	}
+	return has["location"] && has["parent"]
+}
+
+// networkBatchOff are the batch flags that do not apply to networks.
+var networkBatchOff = []string{"shard", "receipts", "receipts-columns", "receipts-date-format", "uncertainty",
+	"resamples", "resampling", "robust", "floor-confidence", "seed", "carry", "decisions", "out-delimiter",
+	"out-decimal", "digits", "item-timeout", "max-states"}
+
+// batchNetworks runs `batch` on an items file of networks: each SKU's rows
+// are its locations, planned together as `network batch` plans them (the
+// echelon reading of the centre's base_stock, the binomial split, a check
+// simulation of 4 x 5000 periods, seed 1, for SKUs with several stores).
+func batchNetworks(c *cli.Context) error {
+	for _, f := range networkBatchOff {
+		if c.IsSet(f) {
+			return usageErr("--%s: not for an items file with location and parent columns (each SKU's network is planned as by network batch); drop it, or use ergostock network batch", f)
+		}
+	}
+	out := c.String("out")
+	if out == "-" || strings.HasSuffix(strings.ToLower(out), ".xlsx") {
+		return usageErr("--out %s: an items file with location and parent columns writes network results to a CSV file; give a .csv name", out)
+	}
+	return runNetworkBatch(c, networkBatchConfig{items: c.String("items"), out: out, levels: network.Echelon, split: network.Binomial,
+		workers: c.Int("workers"), periods: 5000, reps: 4, seed: 1, command: "batch (networks)"})
 }

@@ -276,3 +276,38 @@ func TestNetworkBatchHistoryDialect(t *testing.T) {
 		t.Errorf("records %v", recs)
 	}
 }
+
+// batch with an items file of networks (location and parent columns)
+// writes what network batch writes, also with demand from the history,
+// and refuses the flags that do not apply.
+func TestBatchOfNetworks(t *testing.T) {
+	dir := t.TempDir()
+	hist := filepath.Join(dir, "history.csv")
+	items := filepath.Join(dir, "items.csv")
+	if err := os.WriteFile(hist, []byte(byLocationHistory()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(items, []byte(networkItemsNoDemand), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	a, b := filepath.Join(dir, "a.csv"), filepath.Join(dir, "b.csv")
+	var o, e strings.Builder
+	if code := run([]string{"ergostock", "batch", "--items", items, "--history", hist, "--out", a, "--workers", "2"}, strings.NewReader(""), &o, &e); code != 0 {
+		t.Fatalf("batch: exit %d: %s", code, e.String())
+	}
+	if code, _, errs := runNetwork(t, "batch", "--items", items, "--history", hist, "--out", b, "--check-periods", "5000", "--check-replications", "4", "--workers", "1"); code != 0 {
+		t.Fatalf("network batch: exit %d: %s", code, errs)
+	}
+	ra, _ := os.ReadFile(a)
+	rb, _ := os.ReadFile(b)
+	if string(ra) != string(rb) || !strings.Contains(e.String(), "batch (networks): 2 SKUs: 2 planned") {
+		t.Errorf("batch of networks differs from network batch:\n%s\n%s", ra, rb)
+	}
+	for _, extra := range [][]string{{"--shard", "0/2"}, {"--uncertainty"}, {"--out", "-"}, {"--out", filepath.Join(dir, "r.xlsx")}} {
+		args := append([]string{"ergostock", "batch", "--items", items, "--history", hist, "--out", a}, extra...)
+		var o, e strings.Builder
+		if code := run(args, strings.NewReader(""), &o, &e); code != 2 || !strings.Contains(e.String(), extra[0]) || o.Len() > 0 {
+			t.Errorf("%v: exit %d: %s", extra, code, e.String())
+		}
+	}
+}
