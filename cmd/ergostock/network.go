@@ -81,7 +81,7 @@ func networkCommand() *cli.Command {
 			Usage: "simulate the network period by period: every figure with a 95% confidence interval",
 			Description: "Plays the periods one by one on seeded streams and prints each figure's mean with the\n" +
 				"half-width of its 95% Student t interval, beside the exact or approximate value." + assumptions,
-			Flags:  append(common(), simFlags...),
+			Flags:  append(append(common(), simFlags...), networkHistoryFlags(true)...),
 			Action: networkSimulate,
 		},
 		{
@@ -93,7 +93,7 @@ func networkCommand() *cli.Command {
 				&cli.StringFlag{Name: "min-fill-rate", Usage: "fill-rate floor for every store whose min_fill_rate cell is empty (0.95 or 95%)"},
 				&cli.BoolFlag{Name: "as-given", Usage: "show the levels in the file instead of the cheapest ones"},
 				&cli.StringFlag{Name: "out", Usage: "HTML file to write"}),
-				check...),
+				append(check, networkHistoryFlags(true)...)...),
 			Action: networkReport,
 		},
 	}

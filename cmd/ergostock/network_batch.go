@@ -119,7 +119,7 @@ func runNetworkBatch(c *cli.Context, cfg networkBatchConfig) error {
 	if err != nil {
 		return err
 	}
-	h, err := readNetworkHistory(c)
+	h, hdigest, err := readNetworkHistoryDigest(c)
 	if err != nil {
 		return err
 	}
@@ -142,6 +142,19 @@ func runNetworkBatch(c *cli.Context, cfg networkBatchConfig) error {
 	if err != nil {
 		return err
 	}
+	// Notes are complete before the plans run (they are read in parallel).
+	for _, it := range items {
+		if h == nil || it.Network == nil {
+			continue
+		}
+		if note := unnamedLocations(h, it.SKU, it.Network); note != "" {
+			key := batch.PlanKey(it.SKU, it.Network.Centre.Name)
+			if notes[key] != "" {
+				note = notes[key] + "; " + note
+			}
+			notes[key] = note
+		}
+	}
 	plan := func(_ context.Context, i int) [][]string {
 		it := items[i]
 		if it.Err != nil {
@@ -149,6 +162,7 @@ func runNetworkBatch(c *cli.Context, cfg networkBatchConfig) error {
 		}
 		n := it.Network
 		n.Split = split
+
 		for j := range n.Stores {
 			if n.Stores[j].MinFillRate == 0 {
 				n.Stores[j].MinFillRate = floor
@@ -192,7 +206,11 @@ func runNetworkBatch(c *cli.Context, cfg networkBatchConfig) error {
 		return fmt.Errorf("--out %s: %w", out, err)
 	}
 	w := csv.NewWriter(a)
-	fmt.Fprintf(a, "# ergostock network results v1; levels=%s; items=%d\n", levels, len(items))
+	record := fmt.Sprintf("# ergostock network results v1; levels=%s; items=%d", levels, len(items))
+	if h != nil {
+		record += fmt.Sprintf("; history=%s; period=%s", hdigest, h.Period)
+	}
+	fmt.Fprintln(a, record)
 	if err := w.Write(networkBatchHeader); err != nil {
 		a.Abort()
 		return err

@@ -54,36 +54,43 @@ func networkReadOptions(c *cli.Context, flag string) (network.CatalogueOptions, 
 // readNetworkHistory reads --history by location for the network commands;
 // nil when the flag is not given.
 func readNetworkHistory(c *cli.Context) (*history.History, error) {
+	h, _, err := readNetworkHistoryDigest(c)
+	return h, err
+}
+
+// readNetworkHistoryDigest is readNetworkHistory with the digest of the
+// history file.
+func readNetworkHistoryDigest(c *cli.Context) (*history.History, string, error) {
 	path := c.String("history")
 	if path == "" {
 		if c.IsSet("history") {
-			return nil, usageErr("--history: want the history file")
+			return nil, "", usageErr("--history: want the history file")
 		}
-		return nil, nil
+		return nil, "", nil
 	}
 	period, err := history.ParsePeriod(c.String("period"))
 	if err != nil {
-		return nil, usageErr("--%v", err)
+		return nil, "", usageErr("--%v", err)
 	}
 	hopt, err := historyOptions(c)
 	if err != nil {
-		return nil, err
+		return nil, "", err
 	}
 	hopt.ByLocation = true
-	h, _, err := readHistoryFile(context.Background(), path, period, hopt)
+	h, digest, err := readHistoryFile(context.Background(), path, period, hopt)
 	if err != nil {
-		return nil, err
+		return nil, "", err
 	}
 	if !h.Location {
-		return nil, fmt.Errorf("%s:1: no location column: the network's demand is fitted per location, so the history needs one (or map it with --history-columns location=HEADER)", h.File)
+		return nil, "", fmt.Errorf("%s:1: no location column: the network's demand is fitted per location, so the history needs one (or map it with --history-columns location=HEADER)", h.File)
 	}
 	if h.Rows == 0 {
-		return nil, fmt.Errorf("%s:2: no data rows, want at least one row of sku, date, quantity and location", h.File)
+		return nil, "", fmt.Errorf("%s:2: no data rows, want at least one row of sku, date, quantity and location", h.File)
 	}
 	if err := fitNoSeries(h); err != nil {
-		return nil, err
+		return nil, "", err
 	}
-	return h, nil
+	return h, digest, nil
 }
 
 // historyDemand is the demand source of a network read with a history: the
@@ -167,4 +174,27 @@ func locationHint(sku, loc string, skus, locs []string) string {
 		return "; did you mean location " + quote(near, " or ") + "?"
 	}
 	return fmt.Sprintf(" (it has sku %q at %s)", sku, quote(locs, ", "))
+}
+
+// unnamedLocations says which locations of sku the history has rows at
+// that the network does not name ("" when none): their demand is left out
+// of the plan.
+func unnamedLocations(h *history.History, sku string, n *network.Network) string {
+	named := map[string]bool{n.Centre.Name: true}
+	for _, l := range n.Stores {
+		named[l.Name] = true
+	}
+	var left []string
+	for _, k := range h.SKUs {
+		if k.SKU == sku && !named[k.Location] {
+			left = append(left, fmt.Sprintf("%q (%d rows)", k.Location, k.Records))
+		}
+	}
+	if len(left) == 0 {
+		return ""
+	}
+	if len(left) > 5 {
+		left = append(left[:5], "...")
+	}
+	return fmt.Sprintf("%s also has sku %q at %s, not in the network: left out of the plan", h.File, sku, strings.Join(left, ", "))
 }

@@ -311,3 +311,23 @@ func TestBatchOfNetworks(t *testing.T) {
 		}
 	}
 }
+
+// A location of the history that the network does not name is reported on
+// the centre's row, and the header record names the history and period.
+func TestNetworkBatchHistoryUnnamed(t *testing.T) {
+	hist := writeTemp(t, "history.csv", byLocationHistory())
+	items := writeTemp(t, "items.csv", "sku,location,parent,lead_time,holding_cost,shortage_cost\n"+
+		"SEAL-KIT-40,central-stores,,4,0.5,\nSEAL-KIT-40,harrow-lane,central-stores,1,0.8,20\n")
+	out := filepath.Join(t.TempDir(), "r.csv")
+	if code, _, errs := runNetwork(t, "batch", "--items", items, "--history", hist, "--out", out, "--check-periods", "0", "--workers", "2"); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	b, _ := os.ReadFile(out)
+	if !strings.Contains(strings.SplitN(string(b), "\n", 2)[0], "; history=") {
+		t.Errorf("header record %q", strings.SplitN(string(b), "\n", 2)[0])
+	}
+	recs := readNetResults(t, out)
+	if w := recs[1][len(recs[1])-2]; !strings.Contains(w, `"millbeck" (20 rows), not in the network`) {
+		t.Errorf("centre warnings %q", w)
+	}
+}
