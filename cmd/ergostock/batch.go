@@ -31,6 +31,11 @@ current_* columns give one, and writes one row per item, in the order of the
 items file, to the results file. An item that cannot be planned gets an error
 in its row; the others are unaffected.
 
+An items file with both a location and a parent column describes networks:
+the rows of a SKU are its centre (empty parent) and stores, planned together
+as ergostock network batch plans them, one row per SKU and location in the
+network results file (see ergostock network batch --help).
+
 Items file columns (header required, any order): sku, lead_time,
 holding_cost, shortage_cost; optionally order_cost, unit_cost, unmet
 (backorder|lost), policy (base-stock|s-S|s-nQ), min_fill_rate, demand,
