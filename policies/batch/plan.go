@@ -268,6 +268,9 @@ func (p *Planner) PlanAll(ctx context.Context, items []Item, opt RunOptions, emi
 func CostOrder(items []Item) []int {
 	weight := func(it *Item) float64 {
 		L := float64(it.System.LeadTime)
+		if law := it.System.LeadTimeLaw; law != nil {
+			L = law.Mean()
+		}
 		if it.System.Mode == inventory.Lost {
 			return 1e3 * math.Pow(L+2, 4)
 		}
