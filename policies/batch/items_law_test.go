@@ -158,3 +158,35 @@ func findItem(t *testing.T, items []Item, sku string) *Item {
 	t.Fatalf("no item %s", sku)
 	return nil
 }
+
+// The timing defaults of a run are recorded in the header record only
+// when set, read back, and change the run digest; a plain record is as it
+// was.
+func TestMetaTiming(t *testing.T) {
+	plain := Meta{Format: MetaFormat, Period: "day", Items: "0123456789abcdef", History: "none", Shard: Shard{K: 0, N: 1}, Version: "t"}
+	plain.Run = plain.RunDigest()
+	timed := plain
+	timed.ReviewPeriod, timed.LeadTimeModel = 7, "independent"
+	timed.Run = timed.RunDigest()
+	if strings.Contains(plain.String(), "review_period") || strings.Contains(plain.String(), "lead_time_model") {
+		t.Errorf("plain record %q names timing keys", plain.String())
+	}
+	if !strings.Contains(timed.String(), "; review_period=7; lead_time_model=independent;") {
+		t.Errorf("record %q lacks the timing keys", timed.String())
+	}
+	if timed.Run == plain.Run {
+		t.Error("the timing defaults leave the run digest unchanged")
+	}
+	weekly := plain
+	weekly.ReviewPeriod = 7
+	if weekly.RunDigest() == plain.Run || weekly.RunDigest() == timed.Run {
+		t.Error("review_period alone does not make its own run digest")
+	}
+	back, err := ParseMeta(timed.String(), "r.csv", 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.ReviewPeriod != 7 || back.LeadTimeModel != "independent" || back.RunDigest() != timed.Run {
+		t.Errorf("read back %+v", back)
+	}
+}

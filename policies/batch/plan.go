@@ -155,6 +155,10 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	best, err := optimize(sys, kind, policies.SearchOptions{MinFillRate: it.MinFillRate, Eval: opt})
 	if err != nil {
 		row.Err = fmt.Errorf("optimize %s: %w", kind, err)
+		if errors.Is(err, policies.ErrNotExact) && sys.Model() == inventory.Independent {
+			// The engine names its flags; say which cells answer it.
+			row.Err = fmt.Errorf("%w; in the items file: policy base-stock, or lead_time_model sequential", row.Err)
+		}
 		return row
 	}
 	var cur *policies.Evaluation

@@ -1,0 +1,100 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strconv"
+	"testing"
+)
+
+// A batch row whose lead_time is a law (and whose review period comes
+// from the row or from --review-period) gives the very figures of
+// optimize --lead-time LAW on the same inputs: one reader of the law
+// (inventory.ParseLeadTime) and one engine. The items file is written in
+// two dialects, plain CSV with the law quoted and ;-delimited with decimal
+// commas, and both must agree with optimize bit for bit.
+func TestBatchLeadTimeLawMatchesOptimize(t *testing.T) {
+	dir := t.TempDir()
+	plain := "sku,lead_time,holding_cost,shortage_cost,order_cost,demand,policy,lead_time_model,review_period\n" +
+		"SS,\"pmf:1=0.2,2=0.5,3=0.3\",0.5,9,20,poisson:mean=3,s-S,,\n" +
+		"BS,poisson:mean=2,0.5,9,0,poisson:mean=3,base-stock,,\n" +
+		"IND,\"pmf:1=0.5,3=0.5\",0.5,9,0,poisson:mean=3,base-stock,independent,\n" +
+		"WEEK,\"pmf:1=0.2,2=0.5,3=0.3\",0.5,9,20,poisson:mean=3,s-S,,\n" +
+		"NQ,\"pmf:1=0.2,2=0.5,3=0.3\",0.5,9,20,poisson:mean=3,s-nQ,,2\n"
+	semi := "sku;lead_time;holding_cost;shortage_cost;order_cost;demand;policy;lead_time_model;review_period\n" +
+		"SS;pmf:1=0.2,2=0.5,3=0.3;0,5;9;20;poisson:mean=3;s-S;;\n" +
+		"BS;poisson:mean=2;0,5;9;0;poisson:mean=3;base-stock;;\n" +
+		"IND;\"pmf:1=0.5,3=0.5\";0,5;9;0;poisson:mean=3;base-stock;independent;\n" +
+		"WEEK;pmf:1=0.2,2=0.5,3=0.3;0,5;9;20;poisson:mean=3;s-S;;\n" +
+		"NQ;pmf:1=0.2,2=0.5,3=0.3;0,5;9;20;poisson:mean=3;s-nQ;;2\n"
+	type want struct{ law, model, review, policy, orderCost string }
+	cases := map[string]want{
+		"SS":   {"pmf:1=0.2,2=0.5,3=0.3", "sequential", "1", "s-S", "20"},
+		"BS":   {"poisson:mean=2", "sequential", "1", "base-stock", "0"},
+		"IND":  {"pmf:1=0.5,3=0.5", "independent", "1", "base-stock", "0"},
+		"WEEK": {"pmf:1=0.2,2=0.5,3=0.3", "sequential", "1", "s-S", "20"},
+		"NQ":   {"pmf:1=0.2,2=0.5,3=0.3", "sequential", "2", "s-nQ", "20"},
+	}
+	figures := []string{"fill_rate", "stockout_probability", "mean_on_hand", "mean_backorders", "order_frequency", "mean_order_quantity", "holding_cost", "shortage_cost", "ordering_cost", "total_cost"}
+	levels := map[string]string{"reorder_point": "reorder_point", "order_up_to": "order_up_to", "order_multiple": "order_multiple"}
+	for _, run1 := range []struct {
+		name, text string
+		extra      []string
+	}{
+		{"plain", plain, nil},
+		{"semicolon", semi, nil},
+		{"weekly", plain, []string{"--review-period", "3"}},
+	} {
+		items := filepath.Join(dir, run1.name+".csv")
+		if err := os.WriteFile(items, []byte(run1.text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		out := filepath.Join(dir, run1.name+"-out.csv")
+		if code, msg := runBatchCmd(t, append([]string{"--items", items, "--out", out}, run1.extra...)...); code != 0 {
+			t.Fatalf("%s: batch exit %d: %s", run1.name, code, msg)
+		}
+		header, rows := readResults(t, out)
+		if len(rows) != len(cases) {
+			t.Fatalf("%s: %d rows, want %d", run1.name, len(rows), len(cases))
+		}
+		for _, row := range rows {
+			sku := row[column(header, "sku")]
+			w := cases[sku]
+			if run1.name == "weekly" && sku != "NQ" {
+				w.review = "3" // the default of rows without a review_period cell
+			}
+			if got := row[column(header, "lead_time")]; got != w.law {
+				t.Errorf("%s %s: lead_time %q, want %q", run1.name, sku, got, w.law)
+			}
+			if got := row[column(header, "lead_time_model")] + "/" + row[column(header, "review_period")]; got != w.model+"/"+w.review {
+				t.Errorf("%s %s: model/review %s, want %s/%s", run1.name, sku, got, w.model, w.review)
+			}
+			var o, e bytes.Buffer
+			args := []string{"ergostock", "optimize", "--demand", "poisson:mean=3", "--holding-cost", "0.5", "--shortage-cost", "9",
+				"--order-cost", w.orderCost, "--lead-time", w.law, "--lead-time-model", w.model, "--review-period", w.review, "--policy", w.policy, "--json"}
+			if code := run(args, nil, &o, &e); code != 0 {
+				t.Fatalf("%s %s: optimize exit %d: %s", run1.name, sku, code, e.String())
+			}
+			var js map[string]any
+			if err := json.Unmarshal(o.Bytes(), &js); err != nil {
+				t.Fatal(err)
+			}
+			for _, f := range figures {
+				v, err := strconv.ParseFloat(row[column(header, f)], 64)
+				if err != nil || v != js[f].(float64) {
+					t.Errorf("%s %s: %s batch %q, optimize %v", run1.name, sku, f, row[column(header, f)], js[f])
+				}
+			}
+			pol := js["policy"].(map[string]any)
+			for col, key := range levels {
+				cell := row[column(header, col)]
+				jv, ok := pol[key]
+				if (cell == "") != !ok || ok && cell != strconv.FormatFloat(jv.(float64), 'f', -1, 64) {
+					t.Errorf("%s %s: %s batch %q, optimize %v", run1.name, sku, col, cell, jv)
+				}
+			}
+		}
+	}
+}
