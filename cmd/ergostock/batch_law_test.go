@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
 )
 
@@ -96,5 +97,33 @@ func TestBatchLeadTimeLawMatchesOptimize(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// --receipts still overrides a lead_time given as a law, with its warning
+// naming the law the items file gave; an item without receipts keeps its
+// law.
+func TestBatchReceiptsOverrideLaw(t *testing.T) {
+	dir := t.TempDir()
+	items := filepath.Join(dir, "items.csv")
+	writeFile(t, items, "sku,lead_time,holding_cost,shortage_cost,order_cost,demand\n"+
+		"DOOR-ROLLER-T3,\"pmf:2=0.5,3=0.5\",0.2,9,25,poisson:mean=4\n"+
+		"SEAT-COVER-T4,\"pmf:1=0.2,2=0.5,3=0.3\",0.3,12,0,poisson:mean=1\n")
+	rec := filepath.Join(dir, "receipts.csv")
+	writeFile(t, rec, fewReceipts)
+	out := filepath.Join(dir, "out.csv")
+	if code, errs := runBatchCmd(t, "--items", items, "--receipts", rec, "--out", out); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	h, rows := readResults(t, out)
+	lead, warn := column(h, "lead_time"), column(h, "warnings")
+	if got := rows[0][lead]; got != "pmf:1=0.6666666666666666,2=0.3333333333333333" {
+		t.Errorf("row 0 lead_time %q, want the receipts' law", got)
+	}
+	if w := rows[0][warn]; !strings.HasPrefix(w, "lead_time from receipts: ") || !strings.Contains(w, "the items file said pmf:2=0.5,3=0.5") {
+		t.Errorf("row 0 warnings %q", w)
+	}
+	if got := rows[1][lead]; got != "pmf:1=0.2,2=0.5,3=0.3" {
+		t.Errorf("row 1 lead_time %q, want the items file's law", got)
 	}
 }
