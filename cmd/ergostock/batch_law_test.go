@@ -2,12 +2,19 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
+	"net/http/httptest"
 	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
+
+	"ergostock/cmd/ergostock/whatif"
+	"ergostock/inventory"
+	"ergostock/policies/batch"
+	"ergostock/policies/report"
 )
 
 // A batch row whose lead_time is a law (and whose review period comes
@@ -125,5 +132,98 @@ func TestBatchReceiptsOverrideLaw(t *testing.T) {
 	}
 	if got := rows[1][lead]; got != "pmf:1=0.2,2=0.5,3=0.3" {
 		t.Errorf("row 1 lead_time %q, want the items file's law", got)
+	}
+}
+
+// Items planned under laws from the items file, the lead_time_model column
+// and the --review-period default: the report's batch page and serve take
+// them as the batch planned them (serve's inputs reproduce the results'
+// figures), and the item that fails (s-S under crossing orders) shows its
+// reason.
+func TestBatchLawReportServe(t *testing.T) {
+	dir := t.TempDir()
+	items := filepath.Join(dir, "items.csv")
+	head := strings.SplitN(serveItems, "\n", 2)[0] + ",lead_time_model\n"
+	writeFile(t, items, head+
+		"WIPE-CAB-100,\"pmf:1=0.2,2=0.5,3=0.3\",0.0218,6.87,62.43,4.54,,,,,38,88,,\n"+
+		"GLOVE-NITRILE-S,\"pmf:1=0.5,3=0.5\",0.0343,6.82,0,7.13,,base-stock,,,,40,,independent\n"+
+		"BRAKE-PAD-X,\"pmf:1=0.5,3=0.5\",0.5,9,20,3,backorder,s-S,0.95,poisson:mean=3,4,20,,independent\n")
+	hist := filepath.Join("..", "..", "data", "history.csv")
+	results := filepath.Join(dir, "results.csv")
+	var stderr bytes.Buffer
+	code := run([]string{"ergostock", "batch", "--items", items, "--history", hist, "--out", results, "--workers", "1", "--review-period", "2"}, nil, &bytes.Buffer{}, &stderr)
+	if code != 3 {
+		t.Fatalf("batch exit %d, want 3 (one item fails): %s", code, stderr.String())
+	}
+	h, rows := readResults(t, results)
+	if e := rows[2][column(h, "error")]; !strings.Contains(e, "independent lead times") || !strings.Contains(e, "lead_time_model sequential") {
+		t.Errorf("BRAKE-PAD-X error %q", e)
+	}
+	for i := range 2 {
+		if rows[i][column(h, "error")] != "" || rows[i][column(h, "review_period")] != "2" {
+			t.Errorf("row %d: error %q review_period %q", i, rows[i][column(h, "error")], rows[i][column(h, "review_period")])
+		}
+	}
+
+	page := filepath.Join(dir, "batch.html")
+	rc, _, msg := runReport("--results", results, "--items", items, "--history", hist, "--targets", "0.9,0.95", "--out", page)
+	if rc != 0 {
+		t.Fatalf("report: exit %d: %s", rc, msg)
+	}
+	html := checkReportPage(t, page)
+	for _, s := range []string{"GLOVE-NITRILE-S", "BRAKE-PAD-X", "review_period", "Independent lead times for 2 items", "sequential deliveries (Kaplan 1970) for 1 item"} {
+		if !strings.Contains(html, s) {
+			t.Errorf("batch page lacks %q", s)
+		}
+	}
+
+	cfg, err := serveConfig(context.Background(), results, items, hist, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv, err := whatif.New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for sku, want := range map[string][3]string{
+		"WIPE-CAB-100":    {"pmf:1=0.2,2=0.5,3=0.3", "sequential", "2"},
+		"GLOVE-NITRILE-S": {"pmf:1=0.5,3=0.5", "independent", "2"},
+	} {
+		rec := httptest.NewRecorder()
+		srv.ServeHTTP(rec, httptest.NewRequest("GET", "http://127.0.0.1/api/items/"+sku, nil))
+		var d struct{ Inputs map[string]string }
+		if err := json.Unmarshal(rec.Body.Bytes(), &d); err != nil {
+			t.Fatal(err)
+		}
+		if got := [3]string{d.Inputs["lead_time"], d.Inputs["lead_time_model"], d.Inputs["review_period"]}; got != want {
+			t.Errorf("%s: serve inputs %v, want %v", sku, got, want)
+		}
+	}
+	checkInputs(t, srv)
+}
+
+// plannedTiming gives the report's items the timing of their results rows
+// (receipts' laws, the batch's --review-period), and leaves items whose
+// rows predate the timing columns as the items file has them.
+func TestPlannedTiming(t *testing.T) {
+	cat, err := batch.ReadCatalogue(strings.NewReader("sku,lead_time,holding_cost,shortage_cost\nA,2,1,9\nB,2,1,9\nC,2,1,9\n"), "items.csv", nil, batch.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows := []report.ResultRow{
+		{SKU: "A", LeadTime: "pmf:1=0.5,3=0.5", LeadTimeModel: "independent", ReviewPeriod: 7},
+		{SKU: "B", LeadTime: "3", LeadTimeModel: "sequential", ReviewPeriod: 1},
+		{SKU: "C"},
+	}
+	plannedTiming(cat.Items, rows)
+	a, b, c := cat.Items[0].System, cat.Items[1].System, cat.Items[2].System
+	if a.LeadTimeLaw == nil || a.LeadTimeLaw.String() != "pmf:1=0.5,3=0.5" || a.Model() != inventory.Independent || a.Review() != 7 {
+		t.Errorf("A: %v %s %d", a.LeadTimeLaw, a.Model(), a.Review())
+	}
+	if b.LeadTimeLaw != nil || b.LeadTime != 3 || b.Review() != 1 {
+		t.Errorf("B: %d %v %d", b.LeadTime, b.LeadTimeLaw, b.Review())
+	}
+	if c.LeadTime != 2 || c.LeadTimeLaw != nil {
+		t.Errorf("C: %d %v", c.LeadTime, c.LeadTimeLaw)
 	}
 }
