@@ -227,3 +227,38 @@ func TestPlannedTiming(t *testing.T) {
 		t.Errorf("C: %d %v", c.LeadTime, c.LeadTimeLaw)
 	}
 }
+
+// Shards planned with different --review-period defaults have different
+// run digests, so merge refuses to join them; shards of one setting merge
+// into the unsharded file.
+func TestMergeRefusesOtherReviewPeriod(t *testing.T) {
+	dir := t.TempDir()
+	items := filepath.Join(dir, "items.csv")
+	writeFile(t, items, "sku,lead_time,holding_cost,shortage_cost,demand\n"+
+		"A,\"pmf:1=0.2,2=0.5,3=0.3\",1,9,poisson:mean=3\nB,2,1,9,poisson:mean=2\n")
+	part := func(name string, args ...string) string {
+		p := filepath.Join(dir, name)
+		if code, msg := runBatchCmd(t, append([]string{"--items", items, "--out", p}, args...)...); code != 0 {
+			t.Fatalf("%s: exit %d: %s", name, code, msg)
+		}
+		return p
+	}
+	whole := part("whole.csv", "--review-period", "7")
+	p0 := part("p0.csv", "--shard", "0/2", "--review-period", "7")
+	p1 := part("p1.csv", "--shard", "1/2", "--review-period", "7")
+	q1 := part("q1.csv", "--shard", "1/2")
+	merged := filepath.Join(dir, "merged.csv")
+	if code, _, msg := runMergeCmd("--out", merged, p0, p1); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, msg)
+	}
+	if !bytes.Equal(readFile(t, merged), readFile(t, whole)) {
+		t.Error("merged shards differ from the unsharded run")
+	}
+	if !strings.Contains(string(readFile(t, whole)), "; review_period=7;") {
+		t.Error("header record lacks review_period=7")
+	}
+	code, _, msg := runMergeCmd("--out", filepath.Join(dir, "bad.csv"), p0, q1)
+	if code != 1 || !strings.Contains(msg, "run digest") || strings.Count(msg, "\n") != 1 {
+		t.Errorf("merge of different review periods: exit %d: %q", code, msg)
+	}
+}
