@@ -171,7 +171,7 @@ func TestBatchLawReportServe(t *testing.T) {
 		t.Fatalf("report: exit %d: %s", rc, msg)
 	}
 	html := checkReportPage(t, page)
-	for _, s := range []string{"GLOVE-NITRILE-S", "BRAKE-PAD-X", "review_period", "Independent lead times for 2 items", "sequential deliveries (Kaplan 1970) for 1 item"} {
+	for _, s := range []string{"GLOVE-NITRILE-S", "BRAKE-PAD-X", "review_period", "Independent lead times for 2 items", "sequential deliveries (Kaplan 1970) for 1 item", "<th>lead time</th>", "pmf:1=0.5,3=0.5, independent, R=2"} {
 		if !strings.Contains(html, s) {
 			t.Errorf("batch page lacks %q", s)
 		}
