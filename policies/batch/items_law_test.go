@@ -190,3 +190,21 @@ func TestMetaTiming(t *testing.T) {
 		t.Errorf("read back %+v", back)
 	}
 }
+
+// A policy in use that the engine does not evaluate exactly under crossing
+// orders (s-S) leaves the exact base-stock recommendation standing, with a
+// warning and empty current figures.
+func TestPlanIndependentCurrent(t *testing.T) {
+	text := "sku,lead_time,holding_cost,shortage_cost,demand,lead_time_model,policy,current_reorder_point,current_order_up_to\n" +
+		"A,\"pmf:1=0.5,3=0.5\",1,9,poisson:mean=3,independent,base-stock,5,20\n"
+	items, err := ReadItems(strings.NewReader(text), "items.csv", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var p Planner
+	r := p.Plan(items[0])
+	if r.Err != nil || r.Policy == nil || r.CurrentTotalCost != nil || len(r.Warnings) != 1 ||
+		!strings.HasPrefix(r.Warnings[0], "current policy s-S(s=5,S=20) not evaluated") || strings.Contains(r.Warnings[0], "\n") {
+		t.Errorf("row: err %v policy %v current cost %v warnings %q", r.Err, r.Policy, r.CurrentTotalCost, r.Warnings)
+	}
+}

@@ -165,6 +165,15 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	if it.Current != nil {
 		SetStage(ctx, fmt.Sprintf("evaluating the current policy %v", *it.Current))
 		cur, err = evaluate(sys, *it.Current, opt)
+		if errors.Is(err, policies.ErrNotExact) {
+			// The recommendation is exact; the policy in use is of a
+			// type the engine does not evaluate exactly under these lead
+			// times (s-S or s-nQ with orders that may cross): say so and
+			// leave its cost and the saving empty rather than fail the
+			// item.
+			row.Warnings = append(row.Warnings, fmt.Sprintf("current policy %v not evaluated (current_total_cost and saving left empty): %v", *it.Current, err))
+			cur, err = nil, nil
+		}
 		if err != nil {
 			row.Err = fmt.Errorf("current policy %v: %w", *it.Current, err)
 			return row
