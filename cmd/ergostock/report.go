@@ -12,6 +12,7 @@ import (
 
 	"github.com/urfave/cli/v2"
 
+	"ergostock/inventory"
 	"ergostock/inventory/history"
 	"ergostock/policies"
 	"ergostock/policies/batch"
@@ -392,6 +393,11 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if err != nil {
 			return nil, err
 		}
+		if meta != nil {
+			// The batch's defaults for items without the cells
+			// (batch --review-period, --lead-time-model).
+			iopt.ReviewPeriod, iopt.LeadTimeModel = meta.ReviewPeriod, inventory.LeadTimeModel(meta.LeadTimeModel)
+		}
 		cat, digest, err := readItemsFile(c.Context, p, batch.Shard{}, iopt)
 		if err != nil {
 			return nil, err
@@ -404,6 +410,7 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if meta != nil && digest != meta.Items {
 			return nil, mismatch("items", p, digest, "items", meta.Items)
 		}
+		plannedTiming(items, res.Rows)
 		in.Items, in.ItemsFile = items, p
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: re-optimising %d items at %d fill-rate targets for the exchange curve\n", len(items), len(targets))
 	}
@@ -431,4 +438,40 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: %s has no header record (an older ergostock wrote it): the items, history and period given are not checked against it\n", path)
 	}
 	return report.BuildBatch(in)
+}
+
+// plannedTiming gives each item the lead time, lead-time model and review
+// period its results row was planned under (a law from batch --receipts,
+// the batch's --review-period), so that the exchange curve re-optimises
+// the items as the batch planned them; rows without the timing columns
+// (older files) leave the items file's.
+func plannedTiming(items []batch.Item, rows []report.ResultRow) {
+	byKey := make(map[string]*report.ResultRow, len(rows))
+	for i := range rows {
+		if _, dup := byKey[rows[i].SKU]; !dup {
+			byKey[rows[i].SKU] = &rows[i]
+		}
+	}
+	for i := range items {
+		it := &items[i]
+		r := byKey[it.SKU]
+		if it.Err != nil || r == nil || r.LeadTime == "" {
+			continue
+		}
+		fixed, law, err := inventory.ParseLeadTime(r.LeadTime)
+		if err != nil {
+			continue
+		}
+		sys := it.System
+		sys.LeadTime, sys.LeadTimeLaw = fixed, law
+		if m, err := inventory.ParseLeadTimeModel(r.LeadTimeModel); err == nil && r.LeadTimeModel != "" {
+			sys.LeadTimeModel = m
+		}
+		if r.ReviewPeriod > 0 {
+			sys.ReviewPeriod = r.ReviewPeriod
+		}
+		if sys.Demand == nil || sys.Validate() == nil {
+			it.System = sys
+		}
+	}
 }
