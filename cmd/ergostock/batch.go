@@ -17,6 +17,7 @@ import (
 	"github.com/urfave/cli/v2"
 	"golang.org/x/term"
 
+	"ergostock/inventory"
 	"ergostock/inventory/history"
 	"ergostock/inventory/tabular"
 	"ergostock/policies"
@@ -31,12 +32,26 @@ current_* columns give one, and writes one row per item, in the order of the
 items file, to the results file. An item that cannot be planned gets an error
 in its row; the others are unaffected.
 
+An items file with both a location and a parent column describes networks:
+the rows of a SKU are its centre (empty parent) and stores, planned together
+as ergostock network batch plans them, one row per SKU and location in the
+network results file (see ergostock network batch --help).
+
 Items file columns (header required, any order): sku, lead_time,
 holding_cost, shortage_cost; optionally order_cost, unit_cost, unmet
 (backorder|lost), policy (base-stock|s-S|s-nQ), min_fill_rate, demand,
 current_reorder_point, current_order_up_to, current_order_multiple
 (current_order_up_to alone: base-stock; with current_reorder_point: s-S;
-current_reorder_point with current_order_multiple: s-nQ).
+current_reorder_point with current_order_multiple: s-nQ), review_period,
+lead_time_model (sequential|independent). lead_time is a whole number of
+periods or a lead-time law in the demand grammar, as --lead-time takes it
+(e.g. "pmf:2=0.2,3=0.5,4=0.3", quoted where it holds commas; under
+sequential deliveries the law must be one the model can realise, and the
+error names the nearest one that is). --review-period R and
+--lead-time-model set the items whose cell is empty or absent; when they
+differ from 1 and sequential the header record says so (review_period=,
+lead_time_model=). With independent lead times only base-stock in backorder
+mode is exact: an item of another policy type fails with that reason.
 
 Each item has a budget, --item-timeout (default 1m0s; 0 means none): an item
 that runs past it fails with that reason and the run goes on. A panic, a
@@ -93,7 +108,7 @@ func batchCommand() *cli.Command {
 	return &cli.Command{
 		Name:        "batch",
 		Usage:       "plan a whole catalogue: fitted demand, cheapest policy, its figures and the saving, one row per item",
-		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]] [--delimiter D] [--decimal M] [--date-format F] [--history-columns MAP] [--items-columns MAP] [--returns ignore|net|error] [--quantity-scale X]",
+		UsageText:   "ergostock batch --items FILE --history FILE --out FILE[.xlsx] [--period day|week|month] [--workers N] [--shard K/N] [--item-timeout D] [--receipts FILE] [--review-period R] [--lead-time-model sequential|independent] [--out-delimiter ';' --out-decimal ,] [--digits N] [--carry COL,...] [--uncertainty [--resamples B] [--seed N] [--resampling iid|block|auto|parametric] [--robust [--floor-confidence F]]] [--delimiter D] [--decimal M] [--date-format F] [--history-columns MAP] [--items-columns MAP] [--returns ignore|net|error] [--quantity-scale X]",
 		Description: batchDescription + "\n\n" + receiptsHelp + "\n\nWith --receipts, an item's lead time is its SKU's law from the receipts: the\nresults' lead_time column shows the law, and a warning in the row gives the\ncounts behind it and the lead_time it replaced." + "\n\n" + uncertaintyHelp + "\n\n" + batchUncertaintyHelp,
 		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "items", Usage: "items file (CSV in any common dialect, or .xlsx): costs, lead time and policy in use per SKU (and location)", Required: true},
@@ -109,11 +124,35 @@ func batchCommand() *cli.Command {
 			&cli.StringFlag{Name: "carry", Usage: "item columns to copy to the results, comma-separated (e.g. supplier,category); appended after the results columns"},
 			&cli.IntFlag{Name: "digits", Usage: "significant digits of the figures in the results (1 to 17; 0: full precision, the shortest decimal that reads back exactly)"},
 			&cli.StringFlag{Name: "decisions", Usage: "decisions file of ergostock serve: each SKU's latest decision becomes its policy in use"},
+			intFlag("review-period", "review period R in periods of the items without a review_period cell: reviewed, and ordered, only every R periods (figures and costs stay per period)", 1),
+			&cli.StringFlag{Name: "lead-time-model", Usage: "lead-time model of the items without a lead_time_model cell: sequential (orders arrive in the order placed; Kaplan 1970) or independent (orders may cross)", Value: "sequential"},
 		}, append(append(receiptsFlags(), uncertaintyFlags()...), readFlags()...)...),
 		Action: func(c *cli.Context) error {
 			return runBatch(c, c.App.ErrWriter)
 		},
 	}
+}
+
+// batchTiming reads --review-period and --lead-time-model, the defaults of
+// the items without those cells, into the reader's options and, when they
+// differ from review every period and sequential deliveries, the header
+// record.
+func batchTiming(c *cli.Context, opt *batch.ReadOptions, meta *batch.Meta) error {
+	r := c.Int("review-period")
+	if r < 1 || r > inventory.MaxReviewPeriod {
+		return usageErr("--review-period %s: want a whole number of periods from 1 to %d", typed(c, "review-period"), inventory.MaxReviewPeriod)
+	}
+	m, err := inventory.ParseLeadTimeModel(c.String("lead-time-model"))
+	if err != nil {
+		return usageErr("--lead-time-model %q: want sequential or independent", c.String("lead-time-model"))
+	}
+	if r > 1 {
+		opt.ReviewPeriod, meta.ReviewPeriod = r, r
+	}
+	if m != inventory.Sequential {
+		opt.LeadTimeModel, meta.LeadTimeModel = m, string(m)
+	}
+	return nil
 }
 
 // batchSummary tallies the rows as they are written.
@@ -152,6 +191,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	}
 	if c.Int("max-states") < 1 {
 		return usageErr("--max-states %d: want a state count >= 1", c.Int("max-states"))
+	}
+	if itemsAreNetworks(c) {
+		return batchNetworks(c) // location and parent columns: one network per SKU
 	}
 	timeout := c.Duration("item-timeout")
 	if timeout < 0 {
@@ -260,6 +302,9 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	}
 	iopt, err := itemsOptions(c, period)
 	if err != nil {
+		return err
+	}
+	if err := batchTiming(c, &iopt, &meta); err != nil {
 		return err
 	}
 	cat, count, digest, err := readItemsCounted(ctx, itemsPath, shard, iopt)

@@ -524,6 +524,36 @@ func hostileCases() []hostileCase {
 		files: map[string]string{"items.csv": "sku;lead_time;holding_cost;shortage_cost;demand\nA;1;1;9;poisson:mean=1,500\nB;1;1;9;negbin:mean=2,5,var=9,75\n"}, code: 3})
 	add(hostileCase{name: "batch-lead-time-days-huge", args: []string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"},
 		files: map[string]string{"items.csv": "sku,lead_time_days,holding_cost,shortage_cost,demand\nA,1e300,0.4,12,poisson:mean=9\nB,3,0.4,12,poisson:mean=9\n"}, code: 3})
+	// Lead-time laws in the items file, the lead_time_model column and the
+	// batch defaults --review-period and --lead-time-model (issue 12): a
+	// bad flag is a usage error naming it; a bad cell fails its item alone
+	// (exit 3), whatever the law, without crashing or running away.
+	lawItems := "sku,lead_time,holding_cost,shortage_cost,order_cost,demand,lead_time_model\n" +
+		"OK,\"pmf:1=0.2,2=0.5,3=0.3\",0.4,12,0,poisson:mean=9,\n" +
+		"KAPLAN,\"pmf:2=0.2,3=0.5,5=0.3\",0.4,12,0,poisson:mean=9,\n" +
+		"WIDE,poisson:mean=1e6,0.4,12,0,poisson:mean=9,\n" +
+		"HUGE,pmf:1048577=1,0.4,12,0,poisson:mean=9,\n" +
+		"NAN,poisson:mean=NaN,0.4,12,0,poisson:mean=9,\n" +
+		"EMPTY,pmf:,0.4,12,0,poisson:mean=9,\n" +
+		"SUM,pmf:1=0.5,0.4,12,0,poisson:mean=9,\n" +
+		"HEAVY,\"negbin:mean=40,var=4000\",0.4,12,0,poisson:mean=9,independent\n" +
+		"CROSS,\"pmf:1=0.5,3=0.5\",0.4,12,20,poisson:mean=9,independent\n" +
+		"MODEL,2,0.4,12,0,poisson:mean=9,crossing\n"
+	lawBatch := func(extra ...string) []string {
+		return append([]string{"batch", "--items", "{dir}/items.csv", "--out", "{dir}/out.csv"}, extra...)
+	}
+	add(hostileCase{name: "batch-items-laws", args: lawBatch(), files: map[string]string{"items.csv": lawItems}, code: 3})
+	add(hostileCase{name: "batch-items-laws-weekly", args: lawBatch("--review-period", "7", "--lead-time-model", "independent"), files: map[string]string{"items.csv": lawItems}, code: 3})
+	add(hostileCase{name: "batch-items-law-semicolon", args: lawBatch(), code: 0,
+		files: map[string]string{"items.csv": "sku;lead_time;holding_cost;shortage_cost;demand\nA;pmf:1=0.2,2=0.5,3=0.3;0,4;12;poisson:mean=9\n"}})
+	for _, v := range []string{"-1", "0", "1.5", "abc", "100001", "9223372036854775808", ""} {
+		add(hostileCase{name: fmt.Sprintf("batch--review-period=%q", v), args: lawBatch("--review-period", v),
+			files: map[string]string{"items.csv": lawItems}, code: 2, names: []string{"--review-period", v}})
+	}
+	for _, v := range []string{"crossing", "FIFO", "sequential,independent"} {
+		add(hostileCase{name: fmt.Sprintf("batch--lead-time-model=%q", v), args: lawBatch("--lead-time-model", v),
+			files: map[string]string{"items.csv": lawItems}, code: 2, names: []string{"--lead-time-model"}})
+	}
 	// The results' output flags and --carry (issue 11).
 	outItems := map[string]string{"items.csv": itemsHeader + goodItem}
 	batchOut := func(extra ...string) []string {

@@ -62,7 +62,7 @@ func networkCommand() *cli.Command {
 			Name:        "evaluate",
 			Usage:       "every location's fill rate, stock, backorders and costs for the levels in the file",
 			Description: "Reads the network and its base_stock levels and prints each location's figures." + assumptions,
-			Flags:       append(common(), check...),
+			Flags:       append(append(common(), check...), networkHistoryFlags(true)...),
 			Action:      networkEvaluate,
 		},
 		{
@@ -73,7 +73,7 @@ func networkCommand() *cli.Command {
 				"prints the levels with every figure." + assumptions,
 			Flags: append(append(common(),
 				&cli.StringFlag{Name: "min-fill-rate", Usage: "fill-rate floor for every store whose min_fill_rate cell is empty (0.95 or 95%)"}),
-				check...),
+				append(check, networkHistoryFlags(true)...)...),
 			Action: networkOptimize,
 		},
 		{
@@ -81,7 +81,7 @@ func networkCommand() *cli.Command {
 			Usage: "simulate the network period by period: every figure with a 95% confidence interval",
 			Description: "Plays the periods one by one on seeded streams and prints each figure's mean with the\n" +
 				"half-width of its 95% Student t interval, beside the exact or approximate value." + assumptions,
-			Flags:  append(common(), simFlags...),
+			Flags:  append(append(common(), simFlags...), networkHistoryFlags(true)...),
 			Action: networkSimulate,
 		},
 		{
@@ -93,7 +93,7 @@ func networkCommand() *cli.Command {
 				&cli.StringFlag{Name: "min-fill-rate", Usage: "fill-rate floor for every store whose min_fill_rate cell is empty (0.95 or 95%)"},
 				&cli.BoolFlag{Name: "as-given", Usage: "show the levels in the file instead of the cheapest ones"},
 				&cli.StringFlag{Name: "out", Usage: "HTML file to write"}),
-				check...),
+				append(check, networkHistoryFlags(true)...)...),
 			Action: networkReport,
 		},
 	}
@@ -149,9 +149,37 @@ func readNetwork(c *cli.Context) (*network.Network, error) {
 	if err != nil {
 		return nil, usageErr("--split %s: want binomial or two-moment", showValue(c.String("split")))
 	}
-	n, err := network.ReadFile(c.String("network"), levels, tabular.Options{})
+	if c.String("history") == "" && c.String("sku") != "" {
+		return nil, usageErr("--sku %s: want it with --history (the SKU whose history gives the demand)", showValue(c.String("sku")))
+	}
+	h, err := readNetworkHistory(c)
 	if err != nil {
-		return nil, err // one line naming file, line and column: exit 1
+		return nil, err
+	}
+	if h == nil {
+		n, err := network.ReadFile(c.String("network"), levels, tabular.Options{})
+		if err != nil {
+			return nil, err // one line naming file, line and column: exit 1
+		}
+		n.Split = split
+		return n, nil
+	}
+	sku := strings.TrimSpace(c.String("sku"))
+	if sku == "" {
+		return nil, usageErr("--history: want --sku too (the SKU of the history the network plans)")
+	}
+	opt, err := networkReadOptions(c, "")
+	if err != nil {
+		return nil, err
+	}
+	hook := historyDemand(h, c.String("network"), nil)
+	opt.Demand = func(_ string, l network.Location) (inventory.Distribution, string, error) { return hook(sku, l) }
+	n, notes, err := network.ReadFileWith(c.String("network"), levels, opt)
+	if err != nil {
+		return nil, err
+	}
+	for _, note := range notes {
+		fmt.Fprintf(c.App.ErrWriter, "ergostock: %s\n", note)
 	}
 	n.Split = split
 	return n, nil

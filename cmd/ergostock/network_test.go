@@ -146,6 +146,22 @@ func networkHostileCases() []hostileCase {
 	add(hostileCase{name: "network-report-bad-dir", args: []string{"network", "report", "--network", "{dir}/n.csv", "--out", "{dir}/no/such/dir/p.html", "--check-periods", "0"}, files: good, code: 1, names: []string{"p.html"}})
 	add(hostileCase{name: "network-batch-no-items", args: []string{"network", "batch", "--out", "{dir}/r.csv"}, code: 2, names: []string{"--items"}})
 	add(hostileCase{name: "network-batch-bad-header", args: []string{"network", "batch", "--items", "{dir}/n.csv", "--out", "{dir}/r.csv"}, files: good, code: 1, names: []string{"n.csv:1", "sku"}})
+	// Demand from history (--history).
+	hf := func(hist string) map[string]string {
+		return map[string]string{"i.csv": "sku,location,parent,lead_time,holding_cost,shortage_cost\nP,hub,,2,0.1,\nP,east,hub,1,0.2,5\n", "h.csv": hist}
+	}
+	okHist := "sku,location,date,quantity\nP,east,2025-01-06,3\nP,east,2025-01-13,2\nP,east,2025-01-20,4\n"
+	add(hostileCase{name: "network-history-missing", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/none.csv", "--out", "{dir}/r.csv"}, files: hf(okHist), code: 1, names: []string{"none.csv"}})
+	add(hostileCase{name: "network-history-no-location", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv"}, files: hf("sku,date,quantity\nP,2025-01-06,3\n"), code: 1, names: []string{"h.csv:1", "location"}})
+	add(hostileCase{name: "network-history-empty", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv"}, files: hf("sku,location,date,quantity\n"), code: 1, names: []string{"h.csv"}})
+	add(hostileCase{name: "network-history-binary", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv"}, files: hf("\x00\x01\x02PK\x03\x04garbage"), code: 1, names: []string{"h.csv"}})
+	add(hostileCase{name: "network-history-period-bad", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--period", "year"}, files: hf(okHist), code: 2, names: []string{"year"}})
+	add(hostileCase{name: "network-history-out-is-history", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/h.csv"}, files: hf(okHist), code: 2, names: []string{"--out", "--history"}})
+	add(hostileCase{name: "network-history-store-missing", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv"}, files: hf("sku,location,date,quantity\nP,East ,2025-01-06,3\n"), code: 3, names: []string{"1 failed"}})
+	add(hostileCase{name: "network-history-columns-bad", args: []string{"network", "batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--items-columns", "colour=Hue"}, files: hf(okHist), code: 2, names: []string{"--items-columns", "colour"}})
+	add(hostileCase{name: "network-optimize-sku-alone", args: []string{"network", "optimize", "--network", "{dir}/n.csv", "--sku", "P"}, files: good, code: 2, names: []string{"--sku", "--history"}})
+	add(hostileCase{name: "network-optimize-history-no-sku", args: []string{"network", "optimize", "--network", "{dir}/n.csv", "--history", "{dir}/h.csv"}, files: map[string]string{"n.csv": twoStoreNetworkCSV, "h.csv": okHist}, code: 2, names: []string{"--sku"}})
+	add(hostileCase{name: "batch-networks-shard", args: []string{"batch", "--items", "{dir}/i.csv", "--history", "{dir}/h.csv", "--out", "{dir}/r.csv", "--shard", "0/2"}, files: hf(okHist), code: 2, names: []string{"--shard"}})
 	add(hostileCase{name: "network-split-bad", args: []string{"network", "evaluate", "--network", "{dir}/n.csv", "--split", "poisson"}, files: good, code: 2, names: []string{"--split"}})
 	add(hostileCase{name: "report-network-missing", args: []string{"report", "--network", "{dir}/none.csv", "--out", "{dir}/p.html"}, code: 1, names: []string{"none.csv"}})
 	add(hostileCase{name: "report-network-bad-row", args: []string{"report", "--network", "{dir}/n.csv", "--out", "{dir}/p.html"}, files: file(head + "hub,,1,,1,,30\nshop,hub,x,poisson:mean=2,1,9,10\n"), code: 1, names: []string{"n.csv:3", "lead_time"}})

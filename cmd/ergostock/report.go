@@ -12,6 +12,7 @@ import (
 
 	"github.com/urfave/cli/v2"
 
+	"ergostock/inventory"
 	"ergostock/inventory/history"
 	"ergostock/policies"
 	"ergostock/policies/batch"
@@ -418,6 +419,11 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if err != nil {
 			return nil, err
 		}
+		if meta != nil {
+			// The batch's defaults for items without the cells
+			// (batch --review-period, --lead-time-model).
+			iopt.ReviewPeriod, iopt.LeadTimeModel = meta.ReviewPeriod, inventory.LeadTimeModel(meta.LeadTimeModel)
+		}
 		cat, digest, err := readItemsFile(c.Context, p, batch.Shard{}, iopt)
 		if err != nil {
 			return nil, err
@@ -432,6 +438,7 @@ func reportBatch(c *cli.Context) (*report.BatchPage, error) {
 		if meta != nil && digest != meta.Items {
 			return nil, mismatch("items", p, digest, "items", meta.Items)
 		}
+		plannedTiming(items, res.Rows)
 		in.Items, in.ItemsFile = items, p
 		fmt.Fprintf(c.App.ErrWriter, "ergostock: re-optimising %d items at %d fill-rate targets for the exchange curve\n", len(items), len(targets))
 	}
@@ -473,4 +480,40 @@ func locationMismatch(items, results string, itemsByLocation bool) error {
 		return fmt.Errorf("%s:1: the items file has a location column but %s has none (it was planned by SKU alone): give the items file the batch read", items, results)
 	}
 	return fmt.Errorf("%s:1: the items file has no location column but %s was planned by (sku, location) (its location column): give the items file the batch read", items, results)
+}
+
+// plannedTiming gives each item the lead time, lead-time model and review
+// period its results row was planned under (a law from batch --receipts,
+// the batch's --review-period), so that the exchange curve re-optimises
+// the items as the batch planned them; rows without the timing columns
+// (older files) leave the items file's.
+func plannedTiming(items []batch.Item, rows []report.ResultRow) {
+	byKey := make(map[string]*report.ResultRow, len(rows))
+	for i := range rows {
+		if _, dup := byKey[rows[i].Key()]; !dup {
+			byKey[rows[i].Key()] = &rows[i]
+		}
+	}
+	for i := range items {
+		it := &items[i]
+		r := byKey[it.Key()]
+		if it.Err != nil || r == nil || r.LeadTime == "" {
+			continue
+		}
+		fixed, law, err := inventory.ParseLeadTime(r.LeadTime)
+		if err != nil {
+			continue
+		}
+		sys := it.System
+		sys.LeadTime, sys.LeadTimeLaw = fixed, law
+		if m, err := inventory.ParseLeadTimeModel(r.LeadTimeModel); err == nil && r.LeadTimeModel != "" {
+			sys.LeadTimeModel = m
+		}
+		if r.ReviewPeriod > 0 {
+			sys.ReviewPeriod = r.ReviewPeriod
+		}
+		if sys.Demand == nil || sys.Validate() == nil {
+			it.System = sys
+		}
+	}
 }

@@ -99,6 +99,7 @@ const (
 	colLocation       = "location"
 	colLeadTimeDays   = "lead_time_days"
 	colReviewPeriod   = "review_period"
+	colLeadTimeModel  = "lead_time_model"
 	requiredColumnsNo = 4
 )
 
@@ -106,6 +107,7 @@ var itemColumns = []string{
 	colSKU, colLeadTime, colHolding, colShortage, // required, in this order
 	colOrderCost, colUnitCost, colUnmet, colPolicy, colMinFillRate, colDemand,
 	colCurReorder, colCurOrderUpTo, colCurMultiple, colLocation, colLeadTimeDays, colReviewPeriod,
+	colLeadTimeModel,
 }
 
 // ItemColumns lists the columns the items reader knows, in normal form (see
@@ -130,6 +132,14 @@ type ReadOptions struct {
 	PeriodDays float64
 	// PeriodName names the planning period in warnings ("week").
 	PeriodName string
+	// ReviewPeriod is the review period of the rows whose review_period
+	// cell is empty or absent (batch --review-period); 0 means every
+	// period.
+	ReviewPeriod int
+	// LeadTimeModel is the lead-time model of the rows whose
+	// lead_time_model cell is empty or absent (batch --lead-time-model);
+	// "" means sequential.
+	LeadTimeModel inventory.LeadTimeModel
 }
 
 // Catalogue is an items file as read.
@@ -312,6 +322,9 @@ func markFrom(nums *tabular.Numbers, cell func(int) string, line int) {
 		case colMinFillRate:
 			nums.Fraction(v, line)
 		case colLeadTime, colLeadTimeDays, colCurReorder, colCurOrderUpTo, colCurMultiple:
+			if c == colLeadTime && isLaw(v) {
+				continue // a law's numbers use the grammar's decimal point
+			}
 			nums.Parse(v, line)
 		}
 	}
@@ -505,11 +518,23 @@ func parseItem(it *Item, cell func(int) string, nums *tabular.Numbers, line int,
 		if warn != "" {
 			it.Warnings = append(it.Warnings, warn)
 		}
+	} else if isLaw(raw[colLeadTime]) {
+		// A law in the demand grammar, read as --lead-time reads it; a
+		// one-point law is the fixed lead time. Validate below checks that
+		// the model can realise it.
+		fixed, law, err := inventory.ParseLeadTime(raw[colLeadTime])
+		if err != nil {
+			return withCell(err, raw)
+		}
+		sys.LeadTime, sys.LeadTimeLaw = fixed, law
 	} else if l, big, ok := whole(raw[colLeadTime]); ok {
 		sys.LeadTime = l
 	} else if big {
 		return &inventory.FieldError{Field: colLeadTime, Value: raw[colLeadTime],
 			Want: fmt.Sprintf("a whole number of periods >= 0 below %d (2^53)", maxWhole)}
+	} else if raw[colLeadTime] != "" {
+		return &inventory.FieldError{Field: colLeadTime, Value: raw[colLeadTime],
+			Want: "a whole number of periods >= 0 (at most 1000000000), or a lead-time law such as pmf:2=0.2,3=0.5,5=0.3 or poisson:mean=4 (quoted where it holds commas)"}
 	}
 	sys.Holding = num(colHolding, false)
 	sys.Shortage = num(colShortage, false)
@@ -541,13 +566,23 @@ func parseItem(it *Item, cell func(int) string, nums *tabular.Numbers, line int,
 			return &inventory.FieldError{Field: colReviewPeriod, Value: s, Want: "a whole number of periods >= 1 between reviews"}
 		}
 		sys.ReviewPeriod = r
+	} else {
+		sys.ReviewPeriod = opt.ReviewPeriod
+	}
+	sys.LeadTimeModel = opt.LeadTimeModel
+	if s := raw[colLeadTimeModel]; s != "" {
+		m, err := inventory.ParseLeadTimeModel(s)
+		if err != nil {
+			return withCell(err, raw)
+		}
+		sys.LeadTimeModel = m
 	}
 	check := *sys
 	if check.Demand == nil {
 		check.Demand = placeholderDemand{}
 	}
 	if err := check.Validate(); err != nil {
-		return withCell(err, raw)
+		return itemsWording(withCell(err, raw))
 	}
 
 	if s := raw[colPolicy]; s != "" {
@@ -594,6 +629,22 @@ func leadTimeDays(s string, nums *tabular.Numbers, line int, opt ReadOptions) (i
 		per = "period"
 	}
 	return int(up), fmt.Sprintf("lead_time_days %s is %.3g %ss: rounded up to %d (a whole number of periods)", s, p, per, int(up)), nil
+}
+
+// isLaw reports whether a lead_time cell holds a law in the demand
+// grammar (family:parameters) rather than a whole number.
+func isLaw(s string) bool { return strings.Contains(s, ":") }
+
+// itemsWording speaks of the items file's columns where an engine message
+// names the command-line option of the same setting.
+func itemsWording(err error) error {
+	var fe *inventory.FieldError
+	if errors.As(err, &fe) && fe.Field == colLeadTime && strings.Contains(fe.Want, "--lead-time-model independent") {
+		c := *fe
+		c.Want = strings.ReplaceAll(c.Want, "--lead-time-model independent", "lead_time_model independent")
+		return &c
+	}
+	return err
 }
 
 // withCell replaces the Value of a *inventory.FieldError about a column of

@@ -39,6 +39,8 @@ func FuzzReadItems(f *testing.F) {
 		"\ufeffSKU;Lead Time Days;Holding Cost;Shortage Cost;Min Fill Rate;Location\r\nA;14;€0,25;12,50 EUR;98,5 %;north\r\nA;3;$1;2;95%;north\r\n",
 		"Title\nsku|lead_time|holding_cost|shortage_cost|Order Csot\nA|1|1.200,5|3|4\n",
 		"sku;lead_time;holding_cost;shortage_cost\nA;1;0,5;3\nB;1;1.200;3\n;1;€2;$3\n",
+		"sku,lead_time,holding_cost,shortage_cost,lead_time_model,review_period\nA,\"pmf:1=0.5,3=0.5\",1,2,independent,7\nB,\"pmf:2=0.2,3=0.5,5=0.3\",1,2,,\nC,poisson:mean=1e6,1,2,crossing,\nD,pmf:4=1,1,2,,\n",
+		"sku;lead_time;holding_cost;shortage_cost\nA;pmf:1=0.25,2=0.75;0,5;3\nB;negbin:mean=4,var=NaN;1;2\n",
 	} {
 		f.Add(s)
 	}

@@ -60,6 +60,14 @@ type Meta struct {
 	// were. Unit is the unit the quantities count in when the history was
 	// scaled (--quantity-scale 10: "0.1"), else "".
 	Reading, Unit string
+	// ReviewPeriod and LeadTimeModel are the defaults the run gave the
+	// items without a review_period or lead_time_model cell (batch
+	// --review-period, --lead-time-model), recorded (review_period=,
+	// lead_time_model=) and folded into the run digest only when they
+	// differ from review every period and sequential deliveries, so that a
+	// plain run's record and digest stay as they were; 0 and "" mean those.
+	ReviewPeriod  int
+	LeadTimeModel string
 }
 
 // NewDigest returns the hash whose sum DigestSum prints.
@@ -79,6 +87,12 @@ func (m Meta) RunDigest() string {
 	if m.Reading != "" {
 		fmt.Fprintf(h, "reading=%s\nunit=%s\n", m.Reading, m.Unit)
 	}
+	if m.ReviewPeriod > 1 {
+		fmt.Fprintf(h, "review_period=%d\n", m.ReviewPeriod)
+	}
+	if m.LeadTimeModel != "" {
+		fmt.Fprintf(h, "lead_time_model=%s\n", m.LeadTimeModel)
+	}
 	return DigestSum(h)
 }
 
@@ -97,6 +111,12 @@ func (m Meta) String() string {
 	}
 	if m.Unit != "" {
 		s += "; unit=" + m.Unit
+	}
+	if m.ReviewPeriod > 1 {
+		s += fmt.Sprintf("; review_period=%d", m.ReviewPeriod)
+	}
+	if m.LeadTimeModel != "" {
+		s += "; lead_time_model=" + m.LeadTimeModel
 	}
 	s += "; costs=per " + m.Period
 	if m.Cells.decimal() == ',' {
@@ -166,6 +186,12 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			m.Reading = val
 		case "unit":
 			m.Unit = val
+		case "review_period":
+			if r, err := strconv.Atoi(val); err == nil && r > 1 {
+				m.ReviewPeriod = r
+			}
+		case "lead_time_model":
+			m.LeadTimeModel = val
 		}
 	}
 	if m.Period == "" || m.Items == "" {

@@ -155,12 +155,25 @@ func (p *Planner) PlanContext(ctx context.Context, it Item) (row Row) {
 	best, err := optimize(sys, kind, policies.SearchOptions{MinFillRate: it.MinFillRate, Eval: opt})
 	if err != nil {
 		row.Err = fmt.Errorf("optimize %s: %w", kind, err)
+		if errors.Is(err, policies.ErrNotExact) && sys.Model() == inventory.Independent {
+			// The engine names its flags; say which cells answer it.
+			row.Err = fmt.Errorf("%w; in the items file: policy base-stock, or lead_time_model sequential", row.Err)
+		}
 		return row
 	}
 	var cur *policies.Evaluation
 	if it.Current != nil {
 		SetStage(ctx, fmt.Sprintf("evaluating the current policy %v", *it.Current))
 		cur, err = evaluate(sys, *it.Current, opt)
+		if errors.Is(err, policies.ErrNotExact) {
+			// The recommendation is exact; the policy in use is of a
+			// type the engine does not evaluate exactly under these lead
+			// times (s-S or s-nQ with orders that may cross): say so and
+			// leave its cost and the saving empty rather than fail the
+			// item.
+			row.Warnings = append(row.Warnings, fmt.Sprintf("current policy %v not evaluated (current_total_cost and saving left empty): %v", *it.Current, err))
+			cur, err = nil, nil
+		}
 		if err != nil {
 			row.Err = fmt.Errorf("current policy %v: %w", *it.Current, err)
 			return row
@@ -268,6 +281,9 @@ func (p *Planner) PlanAll(ctx context.Context, items []Item, opt RunOptions, emi
 func CostOrder(items []Item) []int {
 	weight := func(it *Item) float64 {
 		L := float64(it.System.LeadTime)
+		if law := it.System.LeadTimeLaw; law != nil {
+			L = law.Mean()
+		}
 		if it.System.Mode == inventory.Lost {
 			return 1e3 * math.Pow(L+2, 4)
 		}

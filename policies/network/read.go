@@ -30,7 +30,31 @@ func ReadFile(path string, levels Levels, opt tabular.Options) (*Network, error)
 		return nil, err
 	}
 	defer closer()
-	return read(r, levels)
+	return read(r, levels, CatalogueOptions{})
+}
+
+// ReadFileWith reads a network file as ReadFile does, with the column map,
+// decimal mark and demand source of opt (opt.Table is the dialect; the
+// sku passed to opt.Demand is ""). Notes from opt.Demand are returned.
+func ReadFileWith(path string, levels Levels, opt CatalogueOptions) (*Network, []string, error) {
+	r, closer, err := tabular.OpenFile(path, opt.Table)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer closer()
+	var notes []string
+	hook := opt.Demand
+	if hook != nil {
+		opt.Demand = func(sku string, l Location) (inventory.Distribution, string, error) {
+			d, note, err := hook(sku, l)
+			if note != "" {
+				notes = append(notes, note)
+			}
+			return d, note, err
+		}
+	}
+	n, err := read(r, levels, opt)
+	return n, notes, err
 }
 
 // Read reads a network from r, named name in messages.
@@ -39,15 +63,24 @@ func Read(r io.Reader, name string, levels Levels, opt tabular.Options) (*Networ
 	if err != nil {
 		return nil, err
 	}
-	return read(t, levels)
+	return read(t, levels, CatalogueOptions{})
 }
 
-func read(r *tabular.Reader, levels Levels) (*Network, error) {
-	idx, err := tabular.Columns{Known: Columns, Required: required}.Index(r)
+func read(r *tabular.Reader, levels Levels, opt CatalogueOptions) (*Network, error) {
+	req := required
+	if opt.Demand != nil {
+		req = nil
+		for _, k := range required {
+			if k != "demand" {
+				req = append(req, k)
+			}
+		}
+	}
+	idx, err := tabular.Columns{Known: Columns, Required: req, Map: opt.Columns, MapFlag: opt.ColumnsFlag}.Index(r)
 	if err != nil {
 		return nil, err
 	}
-	nums := &tabular.Numbers{File: r.Name}
+	nums := &tabular.Numbers{File: r.Name, Decimal: opt.Decimal}
 	var locs []Location
 	for {
 		rec, line, err := r.Read()
@@ -61,6 +94,9 @@ func read(r *tabular.Reader, levels Levels) (*Network, error) {
 			return nil, &tabular.Error{File: r.Name, Line: line, Err: fmt.Errorf("more than %d locations: want a smaller network", MaxLocations)}
 		}
 		l, err := parseRow(r.Name, rec, line, idx, nums)
+		if err == nil && l.Demand == nil && opt.Demand != nil {
+			l.Demand, _, err = opt.Demand("", l)
+		}
 		if err != nil {
 			return nil, err
 		}

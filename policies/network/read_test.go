@@ -1,9 +1,11 @@
 package network
 
 import (
+	"errors"
 	"strings"
 	"testing"
 
+	"ergostock/inventory"
 	"ergostock/inventory/tabular"
 )
 
@@ -89,5 +91,50 @@ func TestReadCatalogue(t *testing.T) {
 		if items[i].Err == nil || !strings.HasPrefix(items[i].Err.Error(), want) {
 			t.Errorf("%s: %v, want %q", items[i].SKU, items[i].Err, want)
 		}
+	}
+}
+
+// ReadCatalogueWith asks the demand source for every location whose demand
+// cell is empty, and not for the others; the demand column is optional
+// then, the column map and decimal comma apply, and an error of the source
+// fails its SKU alone.
+func TestReadCatalogueWithDemand(t *testing.T) {
+	in := "Part;location;parent;lead_time;holding_cost;shortage_cost;demand\n" +
+		"A;hub;;2;0,1;;\nA;east;hub;1;0,2;5;poisson:mean=2\nA;west;hub;1;0,2;5;\n" +
+		"B;hub;;2;0,1;;\nB;north;hub;1;0,2;5;\n"
+	var asked []string
+	opt := CatalogueOptions{Columns: map[string]string{"sku": "Part"}, ColumnsFlag: "--items-columns",
+		Demand: func(sku string, l Location) (inventory.Distribution, string, error) {
+			asked = append(asked, sku+"/"+l.Name)
+			switch {
+			case l.Parent == "":
+				return nil, "no demand at " + l.Name, nil
+			case sku == "B":
+				return nil, "", errors.New("items.csv:6: no history")
+			}
+			d, err := inventory.Parse("poisson:mean=3")
+			return d, "fitted", err
+		}}
+	items, err := ReadCatalogueWith(strings.NewReader(in), "items.csv", Echelon, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(asked, ","); got != "A/hub,A/west,B/hub,B/north" {
+		t.Errorf("asked %s", got)
+	}
+	if len(items) != 2 || items[0].Err != nil || items[1].Err == nil || !strings.Contains(items[1].Err.Error(), "no history") {
+		t.Fatalf("items %+v", items)
+	}
+	n := items[0].Network
+	if n.Centre.Holding != 0.1 || n.Stores[0].Demand.Mean() != 2 || n.Stores[1].Demand.Mean() != 3 {
+		t.Errorf("network %+v", n)
+	}
+	if strings.Join(items[0].Notes, "|") != "no demand at hub|fitted" {
+		t.Errorf("notes %q", items[0].Notes)
+	}
+	// Without a demand source the demand column stays required.
+	noDemand := "sku,location,parent,lead_time,holding_cost,shortage_cost\nA,hub,,2,0.1,\n"
+	if _, err := ReadCatalogue(strings.NewReader(noDemand), "items.csv", Echelon, tabular.Options{}); err == nil || !strings.Contains(err.Error(), "demand") {
+		t.Errorf("no demand column, no source: %v", err)
 	}
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+	"strings"
 
 	"ergostock/inventory"
 	"ergostock/inventory/history"
@@ -17,6 +18,11 @@ type itemRow struct {
 	CurrentFill                       cell // fill rate of the policy in use, when the results give it
 	Warnings                          int
 	Failed                            bool
+	// Lead is the timing the item was planned under (lead time or law,
+	// model when independent, review period when above 1), LeadFull its
+	// whole text when Lead is cut; shown only when some row has a law or
+	// a review period.
+	Lead, LeadFull string
 }
 
 // cell is a table cell with its sort key.
@@ -73,9 +79,9 @@ var batchTemplate = mustTemplate("batch", `{{template "head" .}}
 <h2 id="items" class="pagebreak">Items</h2>
 <p>One row per item, in the order of the results file{{if .Sortable}}; click a column head to sort (optional script){{end}}. Costs are per period; the saving is the current policy's total cost minus the recommended one's.</p>
 <table class="items sortable">
-<thead><tr><th>SKU</th>{{if .ByLocation}}<th>location</th>{{end}}<th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th><th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">current fill rate</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
+<thead><tr><th>SKU</th>{{if .ByLocation}}<th>location</th>{{end}}<th>pattern</th><th class="num">mean demand</th><th>policy</th><th>levels</th>{{if $.Timing}}<th>lead time</th>{{end}}<th class="num">fill rate</th><th class="num">total cost</th><th class="num">current cost</th><th class="num">current fill rate</th><th class="num">saving</th><th class="num">warnings</th></tr></thead>
 <tbody>
-{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td>{{if $.ByLocation}}<td>{{.Location}}</td>{{end}}<td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td><td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.CurrentFill.Key}}">{{.CurrentFill.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
+{{range .Items}}<tr{{if .Failed}} class="warn"{{end}}><td class="sku">{{.SKU}}</td>{{if $.ByLocation}}<td>{{.Location}}</td>{{end}}<td>{{.Pattern}}</td><td class="num" data-v="{{.Mean.Key}}">{{.Mean.Text}}</td><td>{{.Policy}}</td><td class="lv">{{.Levels}}</td>{{if $.Timing}}<td class="lv"{{if .LeadFull}} title="{{.LeadFull}}"{{end}}>{{.Lead}}</td>{{end}}<td class="num" data-v="{{.Fill.Key}}">{{.Fill.Text}}</td><td class="num" data-v="{{.Cost.Key}}">{{.Cost.Text}}</td><td class="num" data-v="{{.Current.Key}}">{{.Current.Text}}</td><td class="num" data-v="{{.CurrentFill.Key}}">{{.CurrentFill.Text}}</td><td class="num" data-v="{{.Saving.Key}}">{{.Saving.Text}}</td><td class="num" data-v="{{.Warnings}}">{{if .Warnings}}{{.Warnings}}{{end}}</td></tr>
 {{end}}</tbody></table>
 <h2 id="errors">Errors</h2>
 {{if .Errors}}<p>These items could not be planned; their rows in the results file carry no figures.</p>
@@ -159,6 +165,7 @@ func (pg *BatchPage) view() batchView {
 			sku = fmt.Sprintf("(no SKU, line %d)", r.Line)
 		}
 		row := itemRow{SKU: sku, Location: r.Location, Pattern: r.Pattern, Warnings: len(r.Warnings)}
+		row.Lead, row.LeadFull = leadText(r)
 		if r.Location != "" {
 			v.ByLocation = true
 			sku += " @ " + r.Location // in the lists of errors and warnings
@@ -268,6 +275,29 @@ func batchTimingCautions(rows []ResultRow) []string {
 		c = append(c, fmt.Sprintf("Review only every few periods (review_period) for %s: orders are placed only at reviews, and costs and figures stay per period.", plural(reviews, "item")))
 	}
 	return c
+}
+
+// leadText writes the timing of a results row for the items table: the
+// lead time or its law (cut after 40 characters, with the whole text
+// returned as full), "independent" when orders may cross, and "R=7" for a
+// review period above 1.
+func leadText(r ResultRow) (text, full string) {
+	text = r.LeadTime
+	if len(text) > 40 {
+		full = text
+		cut := strings.LastIndexByte(text[:40], ',') + 1
+		if cut == 0 {
+			cut = 40
+		}
+		text = text[:cut] + "…"
+	}
+	if r.LeadTimeModel == string(inventory.Independent) && strings.Contains(r.LeadTime, ":") {
+		text += ", independent"
+	}
+	if r.ReviewPeriod > 1 {
+		text += fmt.Sprintf(", R=%d", r.ReviewPeriod)
+	}
+	return strings.TrimPrefix(text, ", "), full
 }
 
 func levels(p policies.Policy) string {

@@ -176,3 +176,24 @@ func TestBatchTimingCautions(t *testing.T) {
 		}
 	}
 }
+
+// The items table's lead-time cell: the law (cut when long, with the whole
+// text kept for the title), the model when orders may cross, the review
+// period above 1.
+func TestLeadText(t *testing.T) {
+	long := "pmf:1=0.1111111111,2=0.2222222222,3=0.3333333333,4=0.3333333334"
+	for _, c := range []struct {
+		r          ResultRow
+		text, full string
+	}{
+		{ResultRow{LeadTime: "2", LeadTimeModel: "sequential", ReviewPeriod: 1}, "2", ""},
+		{ResultRow{LeadTime: "2", LeadTimeModel: "independent", ReviewPeriod: 7}, "2, R=7", ""},
+		{ResultRow{LeadTime: "pmf:1=0.5,3=0.5", LeadTimeModel: "independent", ReviewPeriod: 2}, "pmf:1=0.5,3=0.5, independent, R=2", ""},
+		{ResultRow{LeadTime: long, LeadTimeModel: "sequential"}, "pmf:1=0.1111111111,2=0.2222222222,…", long},
+		{ResultRow{LeadTime: "", ReviewPeriod: 3}, "R=3", ""},
+	} {
+		if text, full := leadText(c.r); text != c.text || full != c.full {
+			t.Errorf("%+v: %q %q, want %q %q", c.r, text, full, c.text, c.full)
+		}
+	}
+}
