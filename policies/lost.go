@@ -137,7 +137,7 @@ func lostBound(top, L int) float64 {
 // building a row costs one map access whatever the number of its
 // transitions.
 //
-// When the mixed-radix keys are few ((top+1)^(L-1) at most about twice the
+// When the mixed-radix keys are few ((top+1)^(L-1) at most about four times the
 // states expected, and at most denseIndexMax), the first level is a table
 // indexed by the key instead of a map: the same groups at the same
 // offsets (so the same numbering and the same chain, bit for bit), without
@@ -176,7 +176,7 @@ func (ix *stateIndex) reset(top, n, hint, states int) {
 	ix.useD, ix.ndense = false, 0
 	if float64(n)*math.Log2(float64(top)+1) < 63 {
 		ix.large = nil
-		if keys := math.Pow(float64(top)+1, float64(n)); keys <= denseIndexMax && keys <= 2*float64(states)+1<<16 {
+		if keys := math.Pow(float64(top)+1, float64(n)); keys <= denseIndexMax && keys <= 4*float64(states)+1<<16 {
 			ix.useD = true
 			ix.dense = grow(ix.dense, int(keys))
 			clear(ix.dense)
