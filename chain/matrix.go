@@ -110,19 +110,27 @@ func NewCSR(n int, rowPtr []int, col []int32, val []float64) (*CSR, error) {
 		if lo > hi {
 			return nil, &ShapeError{Msg: fmt.Sprintf("sparse matrix: rowPtr decreases at row %d", i)}
 		}
+		cs := col[lo:hi:hi]
+		vs := val[lo:hi:hi][:len(cs)]
 		var s float64
-		for k := lo; k < hi; k++ {
-			j := int(col[k])
+		prev := int32(-1)
+		for k, c := range cs {
+			j := int(c)
 			if j < 0 || j >= n {
 				return nil, &ShapeError{Msg: fmt.Sprintf("sparse matrix: row %d has column %d: want a column in [0,%d)", i, j, n)}
 			}
-			if k > lo && col[k-1] >= col[k] {
+			if k > 0 && prev >= c {
 				return nil, &ShapeError{Msg: fmt.Sprintf("sparse matrix: row %d, column %d: columns must increase strictly within a row", i, j)}
 			}
-			if err := checkEntry(i, j, val[k]); err != nil {
-				return nil, err
+			prev = c
+			// A probability in [0,1] passes checkEntry (NaN and the
+			// infinities fail the comparison): only the others need it.
+			if p := vs[k]; !(p >= 0 && p <= 1) {
+				if err := checkEntry(i, j, p); err != nil {
+					return nil, err
+				}
 			}
-			s += val[k]
+			s += vs[k]
 		}
 		if err := checkRowSum(i, s); err != nil {
 			return nil, err

@@ -351,9 +351,10 @@ func gaussSeidel(ctx context.Context, c *CSR, tol float64, maxIter int, init []f
 			if xi == 0 {
 				continue
 			}
-			for k := rp[i]; k < rp[i+1]; k++ {
-				if j := int(col[k]); j != i {
-					in[j] += xi * val[k]
+			cs, vs := rowOf(rp, col, val, i)
+			for k, j := range cs {
+				if int(j) != i {
+					in[j] += xi * vs[k]
 				}
 			}
 		}
@@ -369,9 +370,10 @@ func gaussSeidel(ctx context.Context, c *CSR, tol float64, maxIter int, init []f
 			xi := max(in[i], 0) / off[i]
 			if d := xi - x[i]; d != 0 {
 				x[i] = xi
-				for k := rp[i]; k < rp[i+1]; k++ {
-					if j := int(col[k]); j != i {
-						in[j] += d * val[k]
+				cs, vs := rowOf(rp, col, val, i)
+				for k, j := range cs {
+					if int(j) != i {
+						in[j] += d * vs[k]
 					}
 				}
 			}
@@ -401,6 +403,16 @@ func gaussSeidel(ctx context.Context, c *CSR, tol float64, maxIter int, init []f
 		}
 	}
 	return x, maxIter, fmt.Errorf("gauss-seidel: %w after %d sweeps: residual %.3g, want <= %g (the chain may be nearly decomposable or slowly mixing: raise the iteration cap or the tolerance, or use gmres, or gth on up to %d states)", ErrNotConverged, maxIter, r, tol, MaxGTHStates)
+}
+
+// rowOf returns the columns and values of row i of a CSR matrix as slices
+// of the same length, so that a loop over them needs no bounds checks on
+// the row's entries (the sweeps of gaussSeidel; the arithmetic and its
+// order are those of a loop over rp[i] <= k < rp[i+1]).
+func rowOf(rp []int, col []int32, val []float64, i int) ([]int32, []float64) {
+	lo, hi := rp[i], rp[i+1]
+	cs := col[lo:hi:hi]
+	return cs, val[lo:hi:hi][:len(cs)]
 }
 
 // residualFrom returns sum_j |in(j) + P(j,j) x_j - x_j|, the residual

@@ -136,29 +136,52 @@ func lostBound(top, L int) float64 {
 // a <= top - sum(o). All successors of a state share the next pipeline, so
 // building a row costs one map access whatever the number of its
 // transitions.
+//
+// When the mixed-radix keys are few ((top+1)^(L-1) at most about four times the
+// states expected, and at most denseIndexMax), the first level is a table
+// indexed by the key instead of a map: the same groups at the same
+// offsets (so the same numbering and the same chain, bit for bit), without
+// hashing.
 type stateIndex struct {
 	top   int
 	radix uint64
 	small map[uint64]int32 // pipeline key -> offset of its group in slots
 	large map[string]int32
-	buf   []byte
-	slots []int32 // state index, or -1 for a state not yet seen
+	// dense, when not nil, replaces small: dense[key] is the offset of the
+	// group plus one, 0 for a group not yet seen; ndense counts them.
+	dense  []int32
+	ndense int
+	useD   bool
+	buf    []byte
+	slots  []int32 // state index, or -1 for a state not yet seen
 }
+
+// denseIndexMax is the most keys a dense first level of stateIndex holds
+// (4 bytes each).
+const denseIndexMax = 1 << 22
 
 // newStateIndex returns an index for pipelines of n components (n = L-1).
 func newStateIndex(top, n, hint int) *stateIndex {
 	ix := &stateIndex{}
-	ix.reset(top, n, hint)
+	ix.reset(top, n, hint, 0)
 	return ix
 }
 
 // reset empties ix for pipelines of n components below top, keeping its
-// storage.
-func (ix *stateIndex) reset(top, n, hint int) {
+// storage; hint is the number of groups expected, states that of states
+// (which decides whether the first level may be a dense table).
+func (ix *stateIndex) reset(top, n, hint, states int) {
 	ix.top, ix.radix = top, uint64(top)+1
 	ix.slots = ix.slots[:0]
+	ix.useD, ix.ndense = false, 0
 	if float64(n)*math.Log2(float64(top)+1) < 63 {
 		ix.large = nil
+		if keys := math.Pow(float64(top)+1, float64(n)); keys <= denseIndexMax && keys <= 4*float64(states)+1<<16 {
+			ix.useD = true
+			ix.dense = grow(ix.dense, int(keys))
+			clear(ix.dense)
+			return
+		}
 		if ix.small == nil {
 			ix.small = make(map[uint64]int32, hint)
 		}
@@ -173,7 +196,12 @@ func (ix *stateIndex) reset(top, n, hint int) {
 }
 
 // groups returns the number of groups in ix.
-func (ix *stateIndex) groups() int { return len(ix.small) + len(ix.large) }
+func (ix *stateIndex) groups() int {
+	if ix.useD {
+		return ix.ndense
+	}
+	return len(ix.small) + len(ix.large)
+}
 
 // baseStockStart returns a starting vector for the lost-sales chain of a
 // base-stock policy: the law the state would have if nothing were lost.
@@ -229,6 +257,19 @@ func (ix *stateIndex) group(o []int32) int {
 			ix.slots = append(ix.slots, -1)
 		}
 		return off
+	}
+	if ix.useD {
+		var k uint64
+		for _, v := range o {
+			k = k*ix.radix + uint64(v)
+		}
+		if off := ix.dense[k]; off > 0 {
+			return int(off - 1)
+		}
+		off := add()
+		ix.dense[k] = off + 1
+		ix.ndense++
+		return int(off)
 	}
 	if ix.small != nil {
 		var k uint64
@@ -478,7 +519,7 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 	w.avail, w.groups, w.rowPtr = w.avail[:0], w.groups[:0], append(w.rowPtr[:0], 0)
 	w.order, w.ordFreq, w.ordQty = w.order[:0], w.ordFreq[:0], w.ordQty[:0]
 	ix := &w.ix
-	ix.reset(top, k-1, hint/max(top, 1)+1)
+	ix.reset(top, k-1, hint/max(top, 1)+1, hint)
 	ix.slots = slices.Grow(ix.slots, hint)
 
 	// memory estimates the bytes of the chain so far with states growing
@@ -491,7 +532,7 @@ func buildLost(dtab lossTable, p Policy, top, L int, opt Options, w *lostWork) (
 	}
 	memory := func(n, nnz int) float64 {
 		g := float64(ix.groups())
-		return lostMemory(L, float64(max(n, cap(w.avail))), float64(nnz), float64(cap(ix.slots)), g) + g*keyBytes
+		return lostMemory(L, float64(max(n, cap(w.avail))), float64(nnz), float64(cap(ix.slots)), g) + g*keyBytes + 4*float64(cap(ix.dense))
 	}
 
 	// With L = 0, nx[x] = x + Order(x) is the on-hand after the next
