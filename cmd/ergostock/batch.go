@@ -318,7 +318,7 @@ func runBatch(c *cli.Context, stderr io.Writer) error {
 	meta.Items, meta.ItemCount = digest, count
 	read := "; read: items " + cat.Dialect
 	hopt.ByLocation = cat.ByLocation
-	if err := applyDecisionsFile(c.String("decisions"), items, cat.ByLocation, stderr); err != nil {
+	if meta.Decisions, err = applyDecisionsFile(c.String("decisions"), items, cat.ByLocation, stderr); err != nil {
 		return err
 	}
 	var carried []string

@@ -375,6 +375,25 @@ func TestServeDecisions(t *testing.T) {
 	if !strings.Contains(stderr.String(), "3 items take their latest decision") {
 		t.Errorf("batch said %q", stderr.String())
 	}
+	// The decisions shape current_total_cost and saving: the header record
+	// names their digest, and the run digest differs from a run without them.
+	head, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	first, _, _ := strings.Cut(string(head), "\n")
+	meta, err := batch.ParseMeta(first, out, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if meta.Decisions == "" || meta.RunDigest() != meta.Run {
+		t.Errorf("header record %q: want decisions= and a run digest that takes it in", first)
+	}
+	plain := *meta
+	plain.Decisions = ""
+	if plain.RunDigest() == meta.Run {
+		t.Errorf("the run digest ignores the decisions file: %q", first)
+	}
 	cur := currentCosts(t, out)
 	var want bytes.Buffer
 	if code := run([]string{"ergostock", "evaluate", "--demand", "poisson:mean=3", "--lead-time", "2", "--holding-cost", "0.5",

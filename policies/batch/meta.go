@@ -68,6 +68,11 @@ type Meta struct {
 	// plain run's record and digest stay as they were; 0 and "" mean those.
 	ReviewPeriod  int
 	LeadTimeModel string
+	// Decisions is the digest of the decisions file a run took the
+	// policies in use from (batch --decisions), recorded (decisions=) and
+	// folded into the run digest only then: the decisions change
+	// current_total_cost and saving. "" for a run without one.
+	Decisions string
 }
 
 // NewDigest returns the hash whose sum DigestSum prints.
@@ -93,6 +98,9 @@ func (m Meta) RunDigest() string {
 	if m.LeadTimeModel != "" {
 		fmt.Fprintf(h, "lead_time_model=%s\n", m.LeadTimeModel)
 	}
+	if m.Decisions != "" {
+		fmt.Fprintf(h, "decisions=%s\n", m.Decisions)
+	}
 	return DigestSum(h)
 }
 
@@ -117,6 +125,9 @@ func (m Meta) String() string {
 	}
 	if m.LeadTimeModel != "" {
 		s += "; lead_time_model=" + m.LeadTimeModel
+	}
+	if m.Decisions != "" {
+		s += "; decisions=" + m.Decisions
 	}
 	s += "; costs=per " + m.Period
 	if m.Cells.decimal() == ',' {
@@ -192,6 +203,8 @@ func ParseMeta(s, name string, line int) (*Meta, error) {
 			}
 		case "lead_time_model":
 			m.LeadTimeModel = val
+		case "decisions":
+			m.Decisions = val
 		}
 	}
 	if m.Period == "" || m.Items == "" {
