@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -42,6 +44,7 @@ func fitCommand() *cli.Command {
 			&cli.StringFlag{Name: "period", Usage: "review period for dated rows: day, week (ISO 8601, Monday first) or month; an integer period column is taken as it is", Value: "week"},
 			&cli.BoolFlag{Name: "json", Usage: "print a JSON array, one object per SKU"},
 			&cli.StringFlag{Name: "out", Usage: "write the results as CSV to `FILE` (atomically) instead of a table"},
+			&cli.BoolFlag{Name: "by-location", Usage: "fit each (sku, location) of a history with a location column on its own (default: each SKU on the sum over its locations, as batch does for an items file without locations)"},
 		}, receiptsFlags()...), append(tableFlags(), historyReadFlags()...)...),
 		Action: fitAction,
 	}
@@ -52,12 +55,13 @@ func fitCommand() *cli.Command {
 // inventory.MaxSupport), so a catalogue of lot-sized items would need
 // gigabytes; their strings are formatted as each SKU is fitted.
 type fitResult struct {
-	SKU     string
-	First   string
-	Summary history.Summary // Demand and Candidates[i].Demand cleared
-	Demand  string          // the chosen model's SPEC, "" when none
-	Specs   []string        // per candidate (with --json), "" when it cannot be built
-	Err     error
+	SKU      string
+	Location string // with --by-location, else ""
+	First    string
+	Summary  history.Summary // Demand and Candidates[i].Demand cleared
+	Demand   string          // the chosen model's SPEC, "" when none
+	Specs    []string        // per candidate (with --json), "" when it cannot be built
+	Err      error
 }
 
 func fitAction(c *cli.Context) error {
@@ -85,9 +89,13 @@ func fitAction(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	opt.ByLocation = c.Bool("by-location")
 	h, err := fitRead(c, path, period, opt)
 	if err != nil {
 		return err
+	}
+	if opt.ByLocation && !h.Location {
+		return fmt.Errorf("%s:1: --by-location: want a location column in the history's header (map another name with --history-columns location=NAME)", h.File)
 	}
 	if len(h.SKUs) == 0 && len(h.Errors) == 0 {
 		return fmt.Errorf("%s:2: no data rows, want at least one row of sku, date and quantity", h.File)
@@ -136,10 +144,14 @@ func fitAction(c *cli.Context) error {
 	if left > 0 {
 		notes += fmt.Sprintf("; %d rows left out, far from the bulk of their SKU's dates", left)
 	}
-	fmt.Fprintf(stderr, "fit: %d SKUs from %s (%s periods%s): %d fitted, %d without a model%s; read as %s\n",
-		len(res), h.File, h.Period, span, len(res)-failed, failed, notes, historyNotes(h, opt))
+	noun := "SKUs"
+	if h.Location {
+		noun = "(sku, location) pairs"
+	}
+	fmt.Fprintf(stderr, "fit: %d %s from %s (%s periods%s): %d fitted, %d without a model%s; read as %s\n",
+		len(res), noun, h.File, h.Period, span, len(res)-failed, failed, notes, historyNotes(h, opt))
 	if failed > 0 {
-		return &exitError{code: 3, err: fmt.Errorf("%d of %d SKUs have no demand model", failed, len(res))}
+		return &exitError{code: 3, err: fmt.Errorf("%d of %d %s have no demand model", failed, len(res), noun)}
 	}
 	return nil
 }
@@ -184,11 +196,11 @@ func fitAll(h *history.History, specs bool) []fitResult {
 				k := h.SKUs[i]
 				if err := k.FieldCountError(); err != nil {
 					// As in batch: the SKU fails (history.SKU.FieldCountError).
-					res[i] = fitResult{SKU: k.SKU, Err: err}
+					res[i] = fitResult{SKU: k.SKU, Location: k.Location, Err: err}
 					continue
 				}
 				s, err := k.Fit()
-				res[i] = fitResult{SKU: k.SKU, Summary: s, Err: err}
+				res[i] = fitResult{SKU: k.SKU, Location: k.Location, Summary: s, Err: err}
 				if s.Demand != nil {
 					res[i].Demand = s.Demand.String()
 				}
@@ -327,7 +339,13 @@ func fitBrief(spec string) string {
 
 func fitWriteTable(w io.Writer, res []fitResult) error {
 	tw := newTable(w)
-	fmt.Fprintln(tw, "sku\tperiods\tmean\tvariance\tpattern\tdemand\twarnings")
+	byLoc := fitByLocation(res)
+	if byLoc {
+		fmt.Fprint(tw, "sku\tlocation\t")
+	} else {
+		fmt.Fprint(tw, "sku\t")
+	}
+	fmt.Fprintln(tw, "periods\tmean\tvariance\tpattern\tdemand\twarnings")
 	for _, r := range res {
 		s := r.Summary
 		d := fitBrief(r.demand())
@@ -341,6 +359,10 @@ func fitWriteTable(w io.Writer, res []fitResult) error {
 		pat := string(s.Pattern)
 		if pat == "" {
 			pat = "-"
+		}
+		if byLoc {
+			fmt.Fprintf(tw, "%s\t", r.SKU)
+			r.SKU = r.Location
 		}
 		fmt.Fprintf(tw, "%s\t%d\t%s\t%s\t%s\t%s\t%s\n", r.SKU, s.Periods, fitShort(s.Mean), fitShort(s.Variance),
 			pat, d, strings.Join(notes, "; "))
@@ -371,6 +393,7 @@ type fitCandidateJSON struct {
 
 type fitJSON struct {
 	SKU          string             `json:"sku"`
+	Location     string             `json:"location,omitempty"`
 	FirstPeriod  string             `json:"first_period"`
 	Periods      int                `json:"periods"`
 	Total        int                `json:"total"`
@@ -394,7 +417,7 @@ func fitWriteJSON(w io.Writer, res []fitResult) error {
 	for i, r := range res {
 		s := r.Summary
 		j := fitJSON{
-			SKU: r.SKU, FirstPeriod: r.First, Periods: s.Periods, Total: s.Total,
+			SKU: r.SKU, Location: r.Location, FirstPeriod: r.First, Periods: s.Periods, Total: s.Total,
 			Mean: fitFloat(s.Mean), Variance: fitFloat(s.Variance), ZeroFraction: fitFloat(s.ZeroFraction),
 			ADI: fitFloat(s.ADI), CV2: fitFloat(s.CV2), Pattern: string(s.Pattern),
 			TrendSlope: fitFloat(s.Trend.Slope), TrendP: fitFloat(s.Trend.P),
@@ -461,7 +484,40 @@ func fitWriteCSV(w io.Writer, res []fitResult) error {
 		}
 		rows = append(rows, row)
 	}
-	return gocsv.Marshal(rows, w)
+	if !fitByLocation(res) {
+		return gocsv.Marshal(rows, w)
+	}
+	// By location: the same columns with location after sku.
+	var buf bytes.Buffer
+	if err := gocsv.Marshal(rows, &buf); err != nil {
+		return err
+	}
+	recs, err := csv.NewReader(&buf).ReadAll()
+	if err != nil {
+		return err
+	}
+	cw := csv.NewWriter(w)
+	for i, rec := range recs {
+		loc := "location"
+		if i > 0 {
+			loc = res[i-1].Location
+		}
+		if err := cw.Write(append([]string{rec[0], loc}, rec[1:]...)); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// fitByLocation reports whether the results are by (sku, location).
+func fitByLocation(res []fitResult) bool {
+	for _, r := range res {
+		if r.Location != "" {
+			return true
+		}
+	}
+	return false
 }
 
 // fitWriteAtomic writes the --out file through the batch package's atomic

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -357,5 +358,68 @@ func TestFitKeepsNoDistributions(t *testing.T) {
 				t.Errorf("%s: candidate %s kept its law", r.SKU, c.Model)
 			}
 		}
+	}
+}
+
+// fit --by-location fits each (sku, location) on its own, with a location
+// column in every output form, and each pair's fit equals the fit of a
+// history holding that location's rows alone.
+func TestFitByLocation(t *testing.T) {
+	dir := t.TempDir()
+	hist := "date,site,sku,quantity\n"
+	alone := map[string]string{"north": "date,sku,quantity\n", "south": "date,sku,quantity\n"}
+	for w := 0; w < 30; w++ {
+		day := time.Date(2025, 1, 6, 0, 0, 0, 0, time.UTC).AddDate(0, 0, 7*w).Format("2006-01-02")
+		for _, c := range []struct {
+			site string
+			q    int
+		}{{"north", 3 + w%4}, {"south", 10 + (w*7)%5}} {
+			hist += fmt.Sprintf("%s,%s,A,%d\n", day, c.site, c.q)
+			alone[c.site] += fmt.Sprintf("%s,A,%d\n", day, c.q)
+		}
+	}
+	write := func(name, body string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	hp := write("h.csv", hist)
+	demand := func(args ...string) []map[string]any {
+		var out, errb bytes.Buffer
+		if code := run(append([]string{"ergostock", "fit", "--json"}, args...), nil, &out, &errb); code != 0 {
+			t.Fatalf("fit %v: exit %d: %s", args, code, errb.String())
+		}
+		var v []map[string]any
+		if err := json.Unmarshal(out.Bytes(), &v); err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	got := demand("--history", hp, "--by-location", "--history-columns", "location=site")
+	if len(got) != 2 {
+		t.Fatalf("want 2 pairs, got %d", len(got))
+	}
+	for _, g := range got {
+		loc, _ := g["location"].(string)
+		want := demand("--history", write(loc+".csv", alone[loc]))
+		if g["demand"] != want[0]["demand"] {
+			t.Errorf("%s: demand %v, want the location alone's %v", loc, g["demand"], want[0]["demand"])
+		}
+	}
+	var out, errb bytes.Buffer
+	if code := run([]string{"ergostock", "fit", "--history", hp, "--by-location", "--history-columns", "location=site", "--out", filepath.Join(dir, "f.csv")}, nil, &out, &errb); code != 0 {
+		t.Fatal(errb.String())
+	}
+	b, _ := os.ReadFile(filepath.Join(dir, "f.csv"))
+	if !strings.HasPrefix(string(b), "sku,location,first_period,") || !strings.Contains(string(b), "\nA,north,") {
+		t.Errorf("fit --out by location:\n%.200s", b)
+	}
+	// Without a location column: refused naming the flag and the file.
+	errb.Reset()
+	if code := run([]string{"ergostock", "fit", "--history", write("plain.csv", alone["north"]), "--by-location"}, nil, &out, &errb); code != 1 ||
+		!strings.Contains(errb.String(), "plain.csv:1: --by-location") {
+		t.Errorf("exit %d: %s", code, errb.String())
 	}
 }

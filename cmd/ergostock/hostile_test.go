@@ -381,6 +381,7 @@ func hostileCases() []hostileCase {
 		add(hostileCase{name: c.name, args: []string{"fit", "--history", "{dir}/h.csv"}, files: map[string]string{"h.csv": c.body}, code: c.code, names: c.want})
 	}
 	add(hostileCase{name: "fit-missing-file", args: []string{"fit", "--history", "{dir}/none.csv"}, code: 1, names: []string{"none.csv"}})
+	add(hostileCase{name: "fit-by-location-without-column", args: []string{"fit", "--history", "{dir}/h.csv", "--by-location"}, files: map[string]string{"h.csv": okHistory}, code: 1, names: []string{"h.csv:1", "--by-location"}})
 	add(hostileCase{name: "fit-period-bad", args: []string{"fit", "--history", "{dir}/h.csv", "--period", "fortnight"}, files: map[string]string{"h.csv": okHistory}, code: 2, names: []string{"--period"}})
 
 	// Batch: items files whose bad rows must fail alone (exit 3), and runs
