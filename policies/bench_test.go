@@ -4,6 +4,7 @@ import (
 	"testing"
 
 	"ergostock/inventory"
+	"ergostock/policies/internal/cputime"
 )
 
 // BenchmarkEvaluateSS: s-S in backorder mode, Poisson demand of mean 400,
@@ -13,7 +14,7 @@ func BenchmarkEvaluateSS(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 400), LeadTime: 3, Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
 	p := Policy{Kind: SS, ReorderPoint: 1500, OrderUpTo: 3500}
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		if _, err := Evaluate(sys, p, Options{}); err != nil {
@@ -29,7 +30,7 @@ func BenchmarkEvaluateLost(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 5), LeadTime: 4, Holding: 1, Shortage: 20, Mode: inventory.Lost}
 	p := Policy{Kind: BaseStock, OrderUpTo: 30}
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		e, err := Evaluate(sys, p, Options{})
@@ -62,7 +63,7 @@ func BenchmarkOptimizeLostSS(b *testing.B) {
 func benchOptimizeLost(b *testing.B, k Kind) {
 	sys := lostOptCase(b)
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		o, err := Optimize(sys, k, SearchOptions{})
@@ -81,7 +82,7 @@ func BenchmarkEvaluateSSLevels(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 400), LeadTime: 3, Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
 	p := Policy{Kind: SS, ReorderPoint: 1500, OrderUpTo: 3500}
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		e, err := Evaluate(sys, p, Options{Levels: true})
@@ -97,7 +98,7 @@ func BenchmarkEvaluateLostLevels(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 5), LeadTime: 4, Holding: 1, Shortage: 20, Mode: inventory.Lost}
 	p := Policy{Kind: BaseStock, OrderUpTo: 30}
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		e, err := Evaluate(sys, p, Options{Levels: true})

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"ergostock/inventory"
+	"ergostock/policies/internal/cputime"
 )
 
 // latticePMF returns demand on the multiples of step with the given
@@ -312,7 +313,7 @@ func TestFloorExtreme(t *testing.T) {
 // benchFloor runs Optimize for s-S under a fill-rate floor.
 func benchFloor(b *testing.B, sys inventory.System, fill float64) {
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		o, err := Optimize(sys, SS, SearchOptions{MinFillRate: fill})
@@ -356,7 +357,7 @@ func BenchmarkOptimizeSSFloorLattice(b *testing.B) {
 // Zheng-Federgruen, the sweep; no Evaluate) for the lattice demo item.
 func BenchmarkFloorSweepLattice(b *testing.B) {
 	sys := rivetSystem(b)
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		mo, err := newBOModel(sys)

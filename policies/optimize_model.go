@@ -105,9 +105,6 @@ func (t *cumTable) above(y int) float64 {
 // since the order totals j, and M(n) = sum_{j<n} m(j) is the expected cycle
 // length of a policy with S - s = n (Zheng and Federgruen 1991).
 type boModel struct {
-	// tm is the timing the model was built from (reused by the final
-	// evaluation of a search).
-	tm         timing
 	h, b, k, c float64
 	mu         float64
 	x1, x0     *cumTable              // X_{L+1} and X_L (mixed: see timing)
@@ -201,7 +198,7 @@ func newBOModelKind(sys inventory.System, opt Options, kind Kind) (*boModel, err
 		limit: limit, ctx: opt.Context,
 		h: sys.Holding, b: sys.Shortage, k: sys.OrderCost / float64(tm.r), c: sys.UnitCost,
 		mu: sys.Demand.Mean(), x1: newCumTable(x1d), x0: newCumTable(x0d),
-		negl: n1 + n0, pos: d, tm: tm,
+		negl: n1 + n0, pos: d,
 	}
 	p0 := d.PMF(0)
 	if !(p0 < 1) {

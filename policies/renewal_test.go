@@ -6,6 +6,7 @@ import (
 
 	"ergostock/chain"
 	"ergostock/inventory"
+	"ergostock/policies/internal/cputime"
 )
 
 // TestRenewalMatchesMatrix checks the matrix-free evaluation of s-S and
@@ -98,7 +99,7 @@ func BenchmarkEvaluateSSMatrix(b *testing.B) {
 	p := Policy{Kind: SS, ReorderPoint: 1500, OrderUpTo: 3500}
 	opt := Options{Chain: chain.Options{Method: chain.MethodForward}}
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		if _, err := Evaluate(sys, p, opt); err != nil {
@@ -113,7 +114,7 @@ func BenchmarkEvaluateSS8000(b *testing.B) {
 	sys := inventory.System{Demand: poisson(b, 400), LeadTime: 3, Holding: 1, Shortage: 20, OrderCost: 500, Mode: inventory.Backorder}
 	p := Policy{Kind: SS, ReorderPoint: 1000, OrderUpTo: 9000}
 	b.ReportAllocs()
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		if _, err := Evaluate(sys, p, Options{}); err != nil {

@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"ergostock/inventory"
+	"ergostock/policies/internal/cputime"
 )
 
 // BenchmarkScaling records how one evaluation or search grows with the
@@ -23,7 +24,7 @@ import (
 func BenchmarkScaling(b *testing.B) {
 	eval := func(b *testing.B, sys inventory.System, p Policy) {
 		b.ReportAllocs()
-		defer reportCPU(b, processCPU())
+		defer cputime.Report(b, cputime.Process())
 		var e *Evaluation
 		for b.Loop() {
 			var err error
@@ -54,7 +55,7 @@ func BenchmarkScaling(b *testing.B) {
 			b.Run(name, func(b *testing.B) {
 				sys := inventory.System{Demand: poisson(b, 40), LeadTime: L, Holding: 1, Shortage: 19, OrderCost: 500, Mode: inventory.Backorder}
 				b.ReportAllocs()
-				defer reportCPU(b, processCPU())
+				defer cputime.Report(b, cputime.Process())
 				for b.Loop() {
 					if _, err := Optimize(sys, SS, SearchOptions{MinFillRate: floor}); err != nil {
 						b.Fatal(err)

@@ -16,6 +16,7 @@ import (
 	"ergostock/inventory"
 	"ergostock/inventory/history"
 	"ergostock/policies"
+	"ergostock/policies/internal/cputime"
 )
 
 // catalogue describes a synthetic catalogue for writeSynthetic.
@@ -280,7 +281,7 @@ func benchCatalogue(b *testing.B, name string, c catalogue) {
 		b.Run(name+"/"+mode, func(b *testing.B) {
 			b.ReportAllocs()
 			failed := 0
-			defer reportCPU(b, processCPU())
+			defer cputime.Report(b, cputime.Process())
 
 			for b.Loop() {
 				pl := &Planner{}

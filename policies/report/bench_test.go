@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"ergostock/policies/batch"
+	"ergostock/policies/internal/cputime"
 )
 
 // BenchmarkBatchPageDemo builds the batch page of the demo catalogue with
@@ -37,7 +38,7 @@ func BenchmarkBatchPageDemo(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	defer reportCPU(b, processCPU())
+	defer cputime.Report(b, cputime.Process())
 
 	for b.Loop() {
 		if _, err := BuildBatch(BatchInput{ResultsFile: path, Rows: res.Rows, ItemsFile: "items.csv", Items: items}); err != nil {
